@@ -1,0 +1,2 @@
+/* chart.c - placeholder until the module lands.
+ * SPDX-License-Identifier: MIT */

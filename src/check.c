@@ -1,0 +1,2 @@
+/* check.c - placeholder until the module lands.
+ * SPDX-License-Identifier: MIT */

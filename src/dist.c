@@ -1,0 +1,2 @@
+/* dist.c - placeholder until the module lands.
+ * SPDX-License-Identifier: MIT */

@@ -1,0 +1,2 @@
+/* hash.c - placeholder until the module lands.
+ * SPDX-License-Identifier: MIT */

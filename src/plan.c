@@ -1,0 +1,2 @@
+/* plan.c - placeholder until the module lands.
+ * SPDX-License-Identifier: MIT */

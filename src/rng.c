@@ -1,0 +1,2 @@
+/* rng.c - placeholder until the module lands.
+ * SPDX-License-Identifier: MIT */

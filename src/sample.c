@@ -1,0 +1,2 @@
+/* sample.c - placeholder until the module lands.
+ * SPDX-License-Identifier: MIT */

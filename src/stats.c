@@ -1,0 +1,2 @@
+/* stats.c - placeholder until the module lands.
+ * SPDX-License-Identifier: MIT */

@@ -1,0 +1,2 @@
+/* table_csv.c - placeholder until the module lands.
+ * SPDX-License-Identifier: MIT */

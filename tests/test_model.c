@@ -1,0 +1,1 @@
+#include <criterion/criterion.h>
