@@ -259,10 +259,12 @@ typedef enum surety_bigm {
     SURETY_BIGM_STRENGTHENED = 1, /* order-statistic M (METHODS.md s.6) */
 } surety_bigm;
 
-/* Writes the sample approximation on `sc` as a MIP in MPS format: binaries
- * x_<job>_<resource>, one indicator z_<l> per scenario (per scenario and
- * resource when the model is separate), big-M rows, the allowance row and
- * the mean-profit objective (written as a minimisation of minus profit).
+/* Writes the sample approximation on `sc` as a MIP in free MPS (read by
+ * CBC and by glpsol --freemps): binaries x_<j>_<i> (job and resource
+ * indices; comment lines at the top map them to ids), one indicator z_<l>
+ * per scenario (z_<l>_<i> when the model is separate), big-M rows
+ * cap_<l>_<i>, the allowance row(s), assignment rows assign_<j> and the
+ * mean-profit objective (written as a minimisation of minus profit).
  * Written atomically. */
 surety_code surety_export_mps(const surety_model *model,
                               const surety_scenarios *sc, surety_bigm bigm,
@@ -355,6 +357,236 @@ void surety_clopper_pearson(size_t x, size_t n, double c, double *lo,
 
 /* P{Bin(N,p) <= k} */
 double surety_binom_cdf(long k, long N, double p);
+
+/* ------------------------------------------------------------------ */
+/* Standing behind a plan: sample sizes, assurance, bounds, frontier   */
+/* (src/advise.c, src/assure.c, src/frontier.c, src/chart.c)           */
+/* ------------------------------------------------------------------ */
+
+/* What a row of sample-size advice rests on. */
+typedef enum surety_advice_kind {
+    /* Luedtke & Ahmed 2008, finite plan set: with confidence C, EVERY plan
+     * that fits all but k of the N scenarios has true risk <= eps. Valid
+     * for binary plans, including a time-limited incumbent. */
+    SURETY_ADVICE_FINITE = 0,
+    /* Campi & Garatti 2011, sampling and discarding: a result for CONVEX
+     * programs with d variables (here: the LP relaxation). It certifies no
+     * binary plan; shown for comparison only. */
+    SURETY_ADVICE_DISCARDING = 1,
+    /* Fresh scenarios a finished plan needs to be certified when none of
+     * them overloads (one-sided Clopper-Pearson, METHODS.md s.4). */
+    SURETY_ADVICE_CHECK = 2,
+} surety_advice_kind;
+
+typedef struct surety_advice_row {
+    surety_advice_kind kind;
+    double alpha;      /* allowance as a share of N (k = floor(alpha*N));
+                          NaN when the row fixes k instead */
+    long k;            /* fixed allowance, or -1 when k follows alpha */
+    size_t N;          /* scenarios asked for: N and every larger count
+                          pass (checked over a window); 0 when beyond
+                          SURETY_ADVICE_NMAX */
+    size_t N_first;    /* smallest passing count (may be below N when the
+                          condition is not monotone in N) */
+    double chernoff;   /* closed forms of the finite rows (scenarios), NaN */
+    double hoeffding;  /* when they do not apply */
+    const char *source; /* citation, a static string */
+} surety_advice_row;
+
+#define SURETY_ADVICE_NMAX 100000000u
+
+typedef struct surety_advice {
+    double eps;        /* risk in (0,1) */
+    double confidence; /* C = 1 - delta in (0,1) */
+    double log_plans;  /* ln |X|, the natural log of the number of plans */
+    size_t d;          /* variables of the LP relaxation (job-resource pairs) */
+    size_t nrows;
+    surety_advice_row *row; /* nrows entries, owned */
+} surety_advice;
+
+/* ln |X| and d for a model: every job may go to any allowed resource or,
+ * unless required, stay out; d counts the allowed job-resource pairs. */
+double surety_advise_log_plans(const surety_model *model);
+size_t surety_advise_variables(const surety_model *model);
+
+/* Sample sizes for risk eps at confidence C: finite-set rows for k = 0 and
+ * allowances alpha = eps/4, eps/2, 3eps/4, a fixed-k row when allow >= 0,
+ * sampling-and-discarding rows (k = 0 and k = allow), and the fresh check
+ * size. All bounds are sufficient, not necessary: conservative. Release
+ * with surety_advice_free. Pure; thread-safe. */
+surety_code surety_advise(double eps, double confidence, double log_plans,
+                          size_t d, long allow, surety_advice *out,
+                          surety_error *err);
+void surety_advice_free(surety_advice *a);
+
+/* Assurance: solve, check out of sample, and grow the sample (doubling;
+ * the first N scenarios are reused) and/or lower the risk solved at, until
+ * the one-sided Clopper-Pearson lower bound reaches the target. */
+typedef struct surety_assure_options {
+    double target;         /* reliability R in (0,1); <= 0: 1 - model risk */
+    double confidence;     /* C in (0,1); default 0.95 */
+    size_t samples;        /* fresh scenarios per screening; default 10000 */
+    size_t certify_samples; /* fresh scenarios of the final certificate,
+                              disjoint from screening; 0: = samples */
+    size_t start_scenarios; /* first N; 0: the model's */
+    size_t max_scenarios;  /* largest N; 0: 16 times the first N */
+    int max_steps;         /* solves at most; default 12 */
+    double time_limit_s;   /* whole run; <= 0: none */
+    surety_solve_options solve; /* per solve; its time limit is capped by
+                                   what remains of time_limit_s */
+} surety_assure_options;
+
+void surety_assure_options_init(surety_assure_options *opt);
+
+typedef struct surety_assure_step {
+    size_t N;              /* scenarios solved on */
+    double risk;           /* risk solved at */
+    size_t k;              /* allowance floor(risk*N) */
+    surety_status status;
+    surety_stop stop;
+    double objective;      /* in-sample mean profit; NaN without a plan */
+    double bound;          /* solver's upper bound */
+    size_t M, fit;         /* screening scenarios and how many fit */
+    double reliability, lo, hi, lower; /* Clopper-Pearson at confidence */
+    double profit_mean;    /* out-of-sample mean profit */
+    double solve_seconds, sample_seconds, check_seconds;
+} surety_assure_step;
+
+typedef enum surety_assure_end {
+    SURETY_ASSURE_MET = 0,        /* certified on fresh scenarios */
+    SURETY_ASSURE_NOT_CERTIFIED = 1, /* screening passed, the fresh
+                                     certificate did not */
+    SURETY_ASSURE_SCENARIO_LIMIT = 2, /* max_scenarios / max_steps reached */
+    SURETY_ASSURE_TIME_LIMIT = 3,
+    SURETY_ASSURE_INFEASIBLE = 4, /* no plan at the risk levels tried */
+    SURETY_ASSURE_INTERRUPTED = 5,
+} surety_assure_end;
+
+typedef struct surety_assure_report {
+    double target, confidence;
+    size_t nsteps;
+    surety_assure_step *step; /* nsteps entries, owned */
+    long chosen;           /* step whose plan is returned, or -1 */
+    surety_plan *plan;     /* that plan (owned), or NULL */
+    surety_assure_end end;
+    /* the returned plan on scenarios never used for screening: CHECK
+     * stream, scenarios samples .. samples+certify_samples-1 */
+    int certified;         /* cert.lower >= target */
+    surety_check_report cert; /* valid when plan != NULL */
+    double solve_seconds, sample_seconds, check_seconds, seconds;
+} surety_assure_report;
+
+/* The model itself is not changed (risk and N are varied on a copy). */
+surety_code surety_assure(const surety_model *model,
+                          const surety_assure_options *opt,
+                          surety_assure_report *out, surety_error *err);
+void surety_assure_report_free(surety_assure_report *rep);
+const char *surety_assure_end_name(surety_assure_end end);
+
+/* Statistical bounds on the true optimal profit (Pagnoncelli, Ahmed &
+ * Shapiro 2009). */
+typedef struct surety_bounds_options {
+    size_t replications;   /* M independent samples; default 10 */
+    double confidence;     /* of the whole interval; default 0.95 */
+    double gamma;          /* risk each replication is solved at; <= 0:
+                              the model's eps */
+    size_t samples;        /* fresh scenarios for the lower side; 10000 */
+    surety_solve_options solve;
+} surety_bounds_options;
+
+void surety_bounds_options_init(surety_bounds_options *opt);
+
+typedef struct surety_bounds_report {
+    double eps, gamma, confidence;
+    size_t N, M;
+    double *bound;         /* M dual bounds, most optimistic first */
+    double *objective;     /* M incumbents, in the same order */
+    long *replication;     /* M replication indexes, same order */
+    int all_optimal;       /* every replication proven optimal */
+    double theta;          /* theta_N = B(floor(gamma N); N, eps) */
+    long L;                /* order statistic used, 0 when none exists */
+    double upper;          /* the L-th largest bound, NaN when L = 0 */
+    double beta_upper;     /* its error probability */
+    /* lower side: the most profitable candidate whose reliability is
+     * shown >= 1-eps (Bonferroni over candidates), profit measured on
+     * fresh scenarios not used for screening */
+    surety_plan *plan;     /* owned, or NULL when none qualified */
+    long plan_source;      /* replication index, or -1: extra solve at eps/2 */
+    double lower;          /* one-sided lower confidence bound on its mean
+                              profit; NaN when no plan */
+    double profit_mean, profit_sd;
+    double reliability_lower; /* its screening lower bound */
+    double beta_lower;     /* error probability of the lower side */
+    double solve_seconds, check_seconds, seconds;
+} surety_bounds_report;
+
+surety_code surety_bounds(const surety_model *model,
+                          const surety_bounds_options *opt,
+                          surety_bounds_report *out, surety_error *err);
+void surety_bounds_report_free(surety_bounds_report *rep);
+
+/* Frontier: the optimal sampled plan per risk level, checked out of sample
+ * on common fresh scenarios. Levels are solved from the smallest risk up,
+ * each plan passed as the start of the next (it stays feasible). */
+typedef struct surety_frontier_options {
+    size_t samples;        /* fresh scenarios per level; default 10000 */
+    double confidence;     /* default 0.95 */
+    surety_solve_options solve;
+} surety_frontier_options;
+
+void surety_frontier_options_init(surety_frontier_options *opt);
+
+typedef struct surety_frontier_point {
+    double risk;           /* eps of this level */
+    size_t k;
+    surety_status status;
+    surety_stop stop;
+    double objective;      /* in-sample mean profit; NaN without a plan */
+    double bound;
+    long nodes;
+    double solve_seconds;
+    surety_plan *plan;     /* owned, or NULL */
+    int in_sample_ok;      /* the plan satisfies the sampled constraint */
+    size_t M, fit;         /* fresh scenarios, how many fit */
+    double reliability, lo, hi, lower; /* Clopper-Pearson at confidence */
+    double profit_mean;    /* out of sample */
+    double overload_hours; /* E[sum over resources of max(0, load-cap)] */
+} surety_frontier_point;
+
+typedef struct surety_frontier_report {
+    size_t N;              /* scenarios solved on (shared by all levels) */
+    double confidence;
+    size_t npoints;
+    surety_frontier_point *point; /* in the order of the risks given */
+    double sample_seconds, solve_seconds, check_seconds;
+} surety_frontier_report;
+
+surety_code surety_frontier(const surety_model *model, const double *risks,
+                            size_t nrisks, const surety_frontier_options *opt,
+                            surety_frontier_report *out, surety_error *err);
+void surety_frontier_report_free(surety_frontier_report *rep);
+
+/* Charts (cairo; when built without it, these fail with SURETY_EUSAGE and
+ * surety_chart_available() is 0). Files are written atomically. */
+typedef enum surety_chart_format {
+    SURETY_CHART_SVG = 0,
+    SURETY_CHART_PNG = 1,
+} surety_chart_format;
+
+int surety_chart_available(void);
+/* Profit against out-of-sample reliability, one point per level with its
+ * Clopper-Pearson interval; `target` (or <= 0 for none) drawn as a line. */
+surety_code surety_chart_frontier(const surety_frontier_report *f,
+                                  double target, surety_chart_format fmt,
+                                  const char *path, surety_error *err);
+/* Each resource's load under the plan over the fresh scenarios named by
+ * `opt` (stream, first, samples: the ones surety_check counts), as a
+ * histogram against its capacity line. */
+surety_code surety_chart_loads(const surety_model *model,
+                               const surety_plan *plan,
+                               const surety_check_options *opt,
+                               surety_chart_format fmt, const char *path,
+                               surety_error *err);
 
 #ifdef __cplusplus
 }
