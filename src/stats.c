@@ -1,7 +1,10 @@
 /* stats.c - normal distribution, binomial tails, incomplete beta,
  * Clopper-Pearson and Wilson intervals, sample-size formulas.
  * SPDX-License-Identifier: MIT */
+#include <float.h>
 #include <math.h>
+#include <stdint.h>
+#include <string.h>
 
 #include "stats.h"
 #include "surety.h"
@@ -78,4 +81,819 @@ double surety_norm_quantile(double p)
         x = poly7(e, r) / poly7(f, r);
     }
     return q < 0.0 ? -x : x;
+}
+
+/* ------------------------------------------------------------------ */
+/* Binomial probabilities: Loader's saddle-point form                  */
+/* ------------------------------------------------------------------ */
+
+#define LN_SQRT_2PI 0.918938533204672741780329736406
+#define LN_2PI 1.837877066409345483560659472811
+
+/* stirlerr(n) = ln Gamma(n+1) - (n+1/2) ln n + n - ln sqrt(2 pi), the error
+ * of Stirling's formula (Loader 2000, "Fast and accurate computation of
+ * binomial probabilities"). Exact values at the half-integers up to 15
+ * (computed once with 50-digit decimal arithmetic from exact factorials and
+ * double factorials); the asymptotic series above. stirlerr(0) is unused
+ * and set to 0 as in the original. */
+static double stirlerr(double n)
+{
+    static const double halves[31] = {
+        0.0, 1.534264097200273452914e-1,
+        8.106146679532725821967e-2, 5.481412105191765389614e-2,
+        4.134069595540929409382e-2, 3.316287351993628748511e-2,
+        2.767792568499833914879e-2, 2.374616365629749597133e-2,
+        2.079067210376509311152e-2, 1.848845053267318523078e-2,
+        1.664469118982119216319e-2, 1.513497322191737887351e-2,
+        1.387612882307074799875e-2, 1.281046524292022692425e-2,
+        1.189670994589177009506e-2, 1.110455975820691732663e-2,
+        1.041126526197209649748e-2, 9.799416126158803298390e-3,
+        9.255462182712732917729e-3, 8.768700134139385462955e-3,
+        8.330563433362871256469e-3, 7.934114564314020547250e-3,
+        7.573675487951840794972e-3, 7.244554301320383179546e-3,
+        6.942840107209529865664e-3, 6.665247032707682442356e-3,
+        6.408994188004207068440e-3, 6.171712263039457647535e-3,
+        5.951370112758847735624e-3, 5.746216513010115682026e-3,
+        5.554733551962801371039e-3,
+    };
+    const double S0 = 1.0 / 12, S1 = 1.0 / 360, S2 = 1.0 / 1260,
+                 S3 = 1.0 / 1680, S4 = 1.0 / 1188;
+    if (n <= 15.0) {
+        double nn = n + n;
+        if (nn == floor(nn))
+            return halves[(int)nn];
+        /* Off the half-integers (only reached from the incomplete beta
+         * with real a, b): the cancellation costs about 1e-14 absolute,
+         * which is a relative error of the same size in the result. */
+        return lgamma(n + 1.0) - (n + 0.5) * log(n) + n - LN_SQRT_2PI;
+    }
+    double nn = n * n;
+    if (n > 500)
+        return (S0 - S1 / nn) / n;
+    if (n > 80)
+        return (S0 - (S1 - S2 / nn) / nn) / n;
+    if (n > 35)
+        return (S0 - (S1 - (S2 - S3 / nn) / nn) / nn) / n;
+    return (S0 - (S1 - (S2 - (S3 - S4 / nn) / nn) / nn) / nn) / n;
+}
+
+/* bd0(x, np) = x ln(x/np) + np - x, the deviance term, summed as a series
+ * when x is close to np where the direct form cancels (Loader 2000). */
+static double bd0(double x, double np)
+{
+    if (fabs(x - np) < 0.1 * (x + np)) {
+        double v = (x - np) / (x + np);
+        double s = (x - np) * v;
+        if (fabs(s) < DBL_MIN)
+            return s;
+        double ej = 2 * x * v;
+        v = v * v;
+        for (int j = 1; j < 1000; j++) {
+            ej *= v;
+            double s1 = s + ej / (2 * j + 1);
+            if (s1 == s)
+                return s1;
+            s = s1;
+        }
+    }
+    return x * log(x / np) + np - x;
+}
+
+/* ln [Gamma(n+1) / (Gamma(x+1) Gamma(n-x+1)) p^x q^(n-x)] for real
+ * 0 <= x <= n, with q = 1-p passed separately so that neither loses
+ * precision near 0 (Loader 2000). */
+static double log_dbinom_raw(double x, double n, double p, double q)
+{
+    if (p == 0.0)
+        return x == 0.0 ? 0.0 : -INFINITY;
+    if (q == 0.0)
+        return x == n ? 0.0 : -INFINITY;
+    if (x < 0.0 || x > n)
+        return -INFINITY;
+    if (x == 0.0)
+        return n == 0.0 ? 0.0 : n * (p < 0.5 ? log1p(-p) : log(q));
+    if (x == n)
+        return n * (q < 0.5 ? log1p(-q) : log(p));
+    double lc = stirlerr(n) - stirlerr(x) - stirlerr(n - x)
+                - bd0(x, n * p) - bd0(n - x, n * q);
+    double lf = LN_2PI + log(x) + log1p(-x / n);
+    return lc - 0.5 * lf;
+}
+
+/* ln(1 - e^x) for x <= 0 without cancellation (Maechler's log1mexp). */
+static double log1mexp(double x)
+{
+    if (x > -M_LN2)
+        return log(-expm1(x));
+    return log1p(-exp(x));
+}
+
+double surety_stats_log_choose(double n, double k)
+{
+    if (isnan(n) || isnan(k) || k < 0.0 || k > n)
+        return -INFINITY;
+    if (k == 0.0 || k == n)
+        return 0.0;
+    /* C(n,k) 2^-n is the Bin(n, 1/2) probability of k. */
+    return log_dbinom_raw(k, n, 0.5, 0.5) + n * M_LN2;
+}
+
+static int binom_args_ok(long N, double p)
+{
+    return N >= 0 && !isnan(p) && p >= 0.0 && p <= 1.0;
+}
+
+double surety_stats_binom_logpmf(long k, long N, double p)
+{
+    if (!binom_args_ok(N, p))
+        return NAN;
+    if (k < 0 || k > N)
+        return -INFINITY;
+    return log_dbinom_raw((double)k, (double)N, p, 1.0 - p);
+}
+
+double surety_stats_binom_pmf(long k, long N, double p)
+{
+    return exp(surety_stats_binom_logpmf(k, N, p));
+}
+
+/* ------------------------------------------------------------------ */
+/* Regularized incomplete beta                                         */
+/* ------------------------------------------------------------------ */
+
+/* Continued fraction of I_x(a,b) / [x^a (1-x)^b / (a B(a,b))],
+ *   1 / (1 + d1 / (1 + d2 / (1 + ...))),
+ *   d_{2m+1} = -(a+m)(a+b+m) x / ((a+2m)(a+2m+1)),
+ *   d_{2m}   =  m (b-m) x / ((a+2m-1)(a+2m)),
+ * by the modified Lentz method (Lentz 1976; Thompson & Barnett 1986). It
+ * converges quickly for x < (a+1)/(a+b+2), in O(sqrt(min(a,b))) terms near
+ * that point. */
+static double beta_cf(double x, double a, double b)
+{
+    const double tiny = 1e-300, eps = 1e-16;
+    double qab = a + b, qap = a + 1.0, qam = a - 1.0;
+    double c = 1.0, d = 1.0 - qab * x / qap;
+    if (fabs(d) < tiny)
+        d = tiny;
+    d = 1.0 / d;
+    double h = d;
+    long maxit = 100000 + (long)(20.0 * sqrt(fmin(a, b)));
+    for (long m = 1; m <= maxit; m++) {
+        double m2 = 2.0 * (double)m, dm = (double)m;
+        double aa = dm * (b - dm) * x / ((qam + m2) * (a + m2));
+        d = 1.0 + aa * d;
+        if (fabs(d) < tiny)
+            d = tiny;
+        c = 1.0 + aa / c;
+        if (fabs(c) < tiny)
+            c = tiny;
+        d = 1.0 / d;
+        h *= d * c;
+        aa = -(a + dm) * (qab + dm) * x / ((a + m2) * (qap + m2));
+        d = 1.0 + aa * d;
+        if (fabs(d) < tiny)
+            d = tiny;
+        c = 1.0 + aa / c;
+        if (fabs(c) < tiny)
+            c = tiny;
+        d = 1.0 / d;
+        double del = d * c;
+        h *= del;
+        if (fabs(del - 1.0) < eps)
+            break;
+    }
+    return h;
+}
+
+/* ln I_x(a,b) and ln(1 - I_x(a,b)) for a, b > 0, 0 < x < 1, y = 1-x.
+ * The continued fraction is applied on the side where it converges and
+ * gives the smaller tail there; the other is its complement. Prefactor:
+ * x^a y^b / (a B(a,b)) = dbinom(a; a+b, x) * b/(a+b), which Loader's form
+ * evaluates without the cancellation of ln Gamma differences. */
+static void ibeta_log(double x, double y, double a, double b, double *lI,
+                      double *lIc)
+{
+    if (x > (a + 1.0) / (a + b + 2.0)) {
+        ibeta_log(y, x, b, a, lIc, lI);
+        return;
+    }
+    double lpre = log_dbinom_raw(a, a + b, x, y) + log(b / (a + b));
+    *lI = lpre + log(beta_cf(x, a, b));
+    if (*lI > 0.0)
+        *lI = 0.0;
+    *lIc = log1mexp(*lI);
+}
+
+static int ibeta_args_ok(double x, double a, double b)
+{
+    return !isnan(x) && a > 0.0 && b > 0.0 && isfinite(a) && isfinite(b)
+           && x >= 0.0 && x <= 1.0;
+}
+
+double surety_stats_ibeta(double x, double a, double b)
+{
+    if (!ibeta_args_ok(x, a, b))
+        return NAN;
+    if (x == 0.0)
+        return 0.0;
+    if (x == 1.0)
+        return 1.0;
+    double lI, lIc;
+    ibeta_log(x, 1.0 - x, a, b, &lI, &lIc);
+    return exp(lI);
+}
+
+double surety_stats_ibetac(double x, double a, double b)
+{
+    if (!ibeta_args_ok(x, a, b))
+        return NAN;
+    if (x == 0.0)
+        return 1.0;
+    if (x == 1.0)
+        return 0.0;
+    double lI, lIc;
+    ibeta_log(x, 1.0 - x, a, b, &lI, &lIc);
+    return exp(lIc);
+}
+
+static uint64_t double_bits(double x)
+{
+    uint64_t u;
+    memcpy(&u, &x, sizeof u);
+    return u;
+}
+
+static double bits_double(uint64_t u)
+{
+    double x;
+    memcpy(&x, &u, sizeof x);
+    return x;
+}
+
+/* The x with I_x(a,b) = y, given y and yc = 1-y separately so that the
+ * smaller of the two carries full precision. Positive doubles are ordered
+ * like their bit patterns, so bisecting the patterns between 0 and 1 ends
+ * in at most 62 steps with two adjacent doubles around the root, whatever
+ * its size (1e-200 as well as 0.5). The comparison is made on the smaller
+ * tail, in logs, so that it stays exact far out in the tails. */
+static double beta_root(double y, double yc, double a, double b)
+{
+    if (y <= 0.0)
+        return 0.0;
+    if (yc <= 0.0)
+        return 1.0;
+    int use_lower = y <= yc;
+    double target = use_lower ? log(y) : log(yc);
+    uint64_t lo = 0, hi = double_bits(1.0);
+    double flo = use_lower ? -INFINITY : 0.0;
+    double fhi = use_lower ? 0.0 : -INFINITY;
+    while (hi - lo > 1) {
+        uint64_t mid = lo + (hi - lo) / 2;
+        double x = bits_double(mid), lI, lIc;
+        ibeta_log(x, 1.0 - x, a, b, &lI, &lIc);
+        double f = use_lower ? lI : lIc;
+        int below = use_lower ? f < target : f > target;
+        if (below) {
+            lo = mid;
+            flo = f;
+        } else {
+            hi = mid;
+            fhi = f;
+        }
+    }
+    return fabs(flo - target) < fabs(fhi - target) ? bits_double(lo)
+                                                   : bits_double(hi);
+}
+
+double surety_stats_ibeta_inv(double y, double a, double b)
+{
+    if (isnan(y) || y < 0.0 || y > 1.0 || !ibeta_args_ok(0.5, a, b))
+        return NAN;
+    return beta_root(y, 1.0 - y, a, b);
+}
+
+/* ------------------------------------------------------------------ */
+/* Binomial tails                                                      */
+/* ------------------------------------------------------------------ */
+
+/* Terms summed before falling back to the continued fraction. Each term
+ * carries a relative error of at most (terms so far) ulp, so the sum stays
+ * within about 2e-12 even at the cap. */
+#define TAIL_TERMS 20000
+
+/* ln P{X <= k} and ln P{X > k} for X ~ Bin(N,p), 0 <= k < N, 0 < p < 1.
+ * The tail that excludes the mode is summed outward from its term nearest
+ * the mode (the largest), as a multiple of that term so that nothing
+ * underflows; when it would need more than TAIL_TERMS terms it is
+ * I_{1-p}(N-k, k+1) (lower) or I_p(k+1, N-k) (upper), METHODS.md s.1. */
+static void binom_log_tails(long k, long N, double p, double *lcdf,
+                            double *lsf)
+{
+    double q = 1.0 - p, dN = (double)N;
+    double mode = floor((dN + 1.0) * p);
+    double s = 1.0, t = 1.0;
+    long steps = 0;
+    if ((double)k < mode) {
+        long j = k;
+        for (; j >= 1 && steps < TAIL_TERMS; j--, steps++) {
+            t *= (double)j * q / ((dN - (double)j + 1.0) * p);
+            s += t;
+            if (t < 1e-17 * s)
+                break;
+        }
+        if (steps < TAIL_TERMS) {
+            *lcdf = surety_stats_binom_logpmf(k, N, p) + log(s);
+            *lsf = log1mexp(*lcdf);
+        } else {
+            ibeta_log(q, p, dN - (double)k, (double)k + 1.0, lcdf, lsf);
+        }
+    } else {
+        long j = k + 1;
+        for (; j < N && steps < TAIL_TERMS; j++, steps++) {
+            t *= (dN - (double)j) * p / (((double)j + 1.0) * q);
+            s += t;
+            if (t < 1e-17 * s)
+                break;
+        }
+        if (steps < TAIL_TERMS) {
+            *lsf = surety_stats_binom_logpmf(k + 1, N, p) + log(s);
+            *lcdf = log1mexp(*lsf);
+        } else {
+            ibeta_log(p, q, (double)k + 1.0, dN - (double)k, lsf, lcdf);
+        }
+    }
+}
+
+double surety_stats_binom_logcdf(long k, long N, double p)
+{
+    if (!binom_args_ok(N, p))
+        return NAN;
+    if (k < 0)
+        return -INFINITY;
+    if (k >= N || p == 0.0)
+        return 0.0;
+    if (p == 1.0)
+        return -INFINITY;
+    double lcdf, lsf;
+    binom_log_tails(k, N, p, &lcdf, &lsf);
+    return lcdf;
+}
+
+double surety_stats_binom_logsf(long k, long N, double p)
+{
+    if (!binom_args_ok(N, p))
+        return NAN;
+    if (k < 0)
+        return 0.0;
+    if (k >= N || p == 0.0)
+        return -INFINITY;
+    if (p == 1.0)
+        return 0.0;
+    double lcdf, lsf;
+    binom_log_tails(k, N, p, &lcdf, &lsf);
+    return lsf;
+}
+
+double surety_stats_binom_cdf(long k, long N, double p)
+{
+    return exp(surety_stats_binom_logcdf(k, N, p));
+}
+
+double surety_stats_binom_sf(long k, long N, double p)
+{
+    return exp(surety_stats_binom_logsf(k, N, p));
+}
+
+double surety_binom_cdf(long k, long N, double p)
+{
+    return surety_stats_binom_cdf(k, N, p);
+}
+
+/* ------------------------------------------------------------------ */
+/* Intervals                                                           */
+/* ------------------------------------------------------------------ */
+
+/* Clopper & Pearson (1934) with tail probability t on one side:
+ * lower = Beta^{-1}(t; x, n-x+1), upper = Beta^{-1}(1-t; x+1, n-x), with
+ * the closed forms at x = 0 and x = n. */
+static double cp_lower(size_t x, size_t n, double t)
+{
+    if (x == 0)
+        return 0.0;
+    if (x == n)
+        return exp(log(t) / (double)n);
+    return beta_root(t, 1.0 - t, (double)x, (double)(n - x) + 1.0);
+}
+
+static double cp_upper(size_t x, size_t n, double t)
+{
+    if (x == n)
+        return 1.0;
+    if (x == 0)
+        return -expm1(log(t) / (double)n);
+    return beta_root(1.0 - t, t, (double)x + 1.0, (double)(n - x));
+}
+
+static int interval_args_ok(size_t x, size_t n, double c)
+{
+    return n > 0 && x <= n && c > 0.0 && c < 1.0;
+}
+
+double surety_stats_cp_lower1(size_t x, size_t n, double c)
+{
+    if (!interval_args_ok(x, n, c))
+        return NAN;
+    return cp_lower(x, n, 1.0 - c);
+}
+
+double surety_stats_cp_upper1(size_t x, size_t n, double c)
+{
+    if (!interval_args_ok(x, n, c))
+        return NAN;
+    return cp_upper(x, n, 1.0 - c);
+}
+
+void surety_clopper_pearson(size_t x, size_t n, double c, double *lo,
+                            double *hi, double *lower1)
+{
+    double l = NAN, h = NAN, l1 = NAN;
+    if (interval_args_ok(x, n, c)) {
+        double a = 1.0 - c;
+        l = cp_lower(x, n, 0.5 * a);
+        h = cp_upper(x, n, 0.5 * a);
+        l1 = cp_lower(x, n, a);
+    }
+    if (lo)
+        *lo = l;
+    if (hi)
+        *hi = h;
+    if (lower1)
+        *lower1 = l1;
+}
+
+/* Wilson (1927) score interval; z from the lower tail, -Phi^{-1}(t),
+ * which is exact where 1 - t would round. At x = 0 the lower end and at
+ * x = n the upper end are exactly 0 and 1. */
+void surety_stats_wilson(size_t x, size_t n, double c, int sides,
+                         double *lo, double *hi)
+{
+    double l = NAN, h = NAN;
+    if (interval_args_ok(x, n, c) && (sides == 1 || sides == 2)) {
+        double a = 1.0 - c;
+        double z = -surety_norm_quantile(sides == 2 ? 0.5 * a : a);
+        double dn = (double)n, ph = (double)x / dn, z2 = z * z;
+        double den = 1.0 + z2 / dn;
+        double centre = (ph + z2 / (2.0 * dn)) / den;
+        double half = z * sqrt(ph * (1.0 - ph) / dn + z2 / (4.0 * dn * dn))
+                      / den;
+        l = x == 0 ? 0.0 : fmax(0.0, centre - half);
+        h = x == n ? 1.0 : fmin(1.0, centre + half);
+    }
+    if (lo)
+        *lo = l;
+    if (hi)
+        *hi = h;
+}
+
+/* ------------------------------------------------------------------ */
+/* Sample sizes                                                        */
+/* ------------------------------------------------------------------ */
+
+/* Largest N any search or closed form returns; beyond it the answer is
+ * reported as 0 (no useful sample size). */
+#define N_MAX 1e15
+
+/* Smallest integer N >= v, with a relative guard of 1e-12 so that a value
+ * that is an integer in exact arithmetic (d/(eps beta) - 1) is not pushed
+ * one up by rounding. At least 1. */
+static size_t ceil_count(double v)
+{
+    if (isnan(v) || v > N_MAX)
+        return 0;
+    double c = ceil(v - 1e-12 * fabs(v));
+    return c < 1.0 ? 1 : (size_t)c;
+}
+
+static int prob_ok(double p)
+{
+    return p > 0.0 && p < 1.0;
+}
+
+/* Smallest N > k with ln B(k; N, eps) <= lt (lt = ln of the target). The
+ * left side decreases strictly in N for fixed k, so an exponential search
+ * followed by bisection finds it. lt >= 0 is met by every N; 1 then. */
+static size_t min_n_fixed_k(double eps, size_t k, double lt)
+{
+    if (lt >= 0.0)
+        return 1;
+    size_t lo = k, hi = k + 1; /* B(k; k, eps) = 1 fails */
+    while (surety_stats_binom_logcdf((long)k, (long)hi, eps) > lt) {
+        lo = hi;
+        hi = 2 * hi;
+        if ((double)hi > N_MAX)
+            return 0;
+    }
+    while (hi - lo > 1) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (surety_stats_binom_logcdf((long)k, (long)mid, eps) <= lt)
+            hi = mid;
+        else
+            lo = mid;
+    }
+    return hi;
+}
+
+size_t surety_stats_la_fixed_k(double eps, size_t k, double delta,
+                               double lnX)
+{
+    if (!prob_ok(eps) || !prob_ok(delta) || !(lnX >= 0.0))
+        return 0;
+    return min_n_fixed_k(eps, k, log(delta) - lnX);
+}
+
+/* The Luedtke-Ahmed condition with k = floor(alpha N) (METHODS.md s.3.1).
+ * For fixed k it is monotone in N, so the N axis splits into plateaus of
+ * constant k on each of which the passing N form a suffix. */
+typedef struct la_ctx {
+    double eps, alpha, lt; /* lt = ln delta - ln|X| */
+} la_ctx;
+
+static int la_pass(const la_ctx *c, size_t N)
+{
+    size_t k = surety_allowance(c->alpha, N);
+    return surety_stats_binom_logcdf((long)k, (long)N, c->eps) <= c->lt;
+}
+
+/* Smallest N >= 1 whose allowance is at least k (alpha > 0). */
+static size_t plateau_start(double alpha, size_t k)
+{
+    if (k == 0)
+        return 1;
+    double g = ceil(((double)k - 1e-9) / alpha);
+    size_t N = g < 1.0 ? 1 : (size_t)g;
+    while (N > 1 && surety_allowance(alpha, N - 1) >= k)
+        N--;
+    while (surety_allowance(alpha, N) < k)
+        N++;
+    return N;
+}
+
+/* Smallest passing N in [lo, hi] of one plateau, given that hi passes. */
+static size_t plateau_first_pass(const la_ctx *c, size_t lo, size_t hi)
+{
+    if (la_pass(c, lo))
+        return lo;
+    while (hi - lo > 1) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (la_pass(c, mid))
+            hi = mid;
+        else
+            lo = mid;
+    }
+    return hi;
+}
+
+/* Beyond this N every N passes: B(k; N, eps) <= exp(-N D(k/N || eps)) for
+ * k/N <= eps (the Chernoff bound in Kullback-Leibler form), and
+ * D(k/N || eps) >= D(alpha || eps) because k/N <= alpha < eps. One extra
+ * unit covers the 1e-9 guard in the allowance. */
+static size_t la_cap(const la_ctx *c)
+{
+    double a = c->alpha, e = c->eps;
+    double D = -log1p(-e);
+    if (a > 0.0)
+        D = a * log(a / e) + (1.0 - a) * (log1p(-a) - log1p(-e));
+    double v = -c->lt / D;
+    if (!(v <= N_MAX))
+        return 0;
+    return (size_t)ceil(v * (1.0 + 1e-12)) + 1;
+}
+
+static int la_setup(la_ctx *c, double eps, double alpha, double delta,
+                    double lnX)
+{
+    if (!prob_ok(eps) || !prob_ok(delta) || !(lnX >= 0.0) || !(alpha >= 0.0)
+        || !(alpha < eps))
+        return 0;
+    c->eps = eps;
+    c->alpha = alpha;
+    c->lt = log(delta) - lnX;
+    return 1;
+}
+
+/* Plateaus visited before giving up (each costs one binomial tail). */
+#define PLATEAU_MAX 2000000
+
+size_t surety_stats_la_first(double eps, double alpha, double delta,
+                             double lnX)
+{
+    la_ctx c;
+    if (!la_setup(&c, eps, alpha, delta, lnX))
+        return 0;
+    size_t cap = la_cap(&c);
+    if (cap == 0)
+        return 0;
+    size_t N = 1;
+    for (long it = 0; N <= cap && it < PLATEAU_MAX; it++) {
+        size_t end = cap;
+        if (alpha > 0.0) {
+            size_t k = surety_allowance(alpha, N);
+            end = plateau_start(alpha, k + 1) - 1;
+            if (end > cap)
+                end = cap;
+        }
+        if (la_pass(&c, end))
+            return plateau_first_pass(&c, N, end);
+        N = end + 1;
+    }
+    return 0;
+}
+
+size_t surety_stats_la_stable(double eps, double alpha, double delta,
+                              double lnX)
+{
+    la_ctx c;
+    if (!la_setup(&c, eps, alpha, delta, lnX))
+        return 0;
+    size_t cap = la_cap(&c);
+    if (cap == 0)
+        return 0;
+    /* Invariant: every N' > N passes. Walk the plateaus downward; within
+     * one the first N is the hardest to pass. */
+    size_t N = cap;
+    for (long it = 0; N >= 1 && it < PLATEAU_MAX; it++) {
+        size_t s = alpha > 0.0
+                       ? plateau_start(alpha, surety_allowance(alpha, N))
+                       : 1;
+        if (la_pass(&c, s)) {
+            if (s == 1)
+                return 1;
+            N = s - 1;
+            continue;
+        }
+        if (!la_pass(&c, N))
+            return N + 1;
+        return plateau_first_pass(&c, s, N);
+    }
+    return 0;
+}
+
+size_t surety_stats_la_chernoff(double eps, double alpha, double delta,
+                                double lnX)
+{
+    if (!prob_ok(eps) || !prob_ok(delta) || !(lnX >= 0.0) || !(alpha >= 0.0)
+        || !(alpha < eps))
+        return 0;
+    double g = eps - alpha;
+    return ceil_count(2.0 * eps * (lnX - log(delta)) / (g * g));
+}
+
+size_t surety_stats_la_hoeffding(double eps, double alpha, double delta,
+                                 double lnX)
+{
+    if (!prob_ok(eps) || !prob_ok(delta) || !(lnX >= 0.0) || !(alpha >= 0.0)
+        || !(alpha < eps))
+        return 0;
+    double g = eps - alpha;
+    return ceil_count((lnX - log(delta)) / (2.0 * g * g));
+}
+
+size_t surety_stats_la_zero(double eps, double delta, double lnX)
+{
+    if (!prob_ok(eps) || !prob_ok(delta) || !(lnX >= 0.0))
+        return 0;
+    return ceil_count((lnX - log(delta)) / eps);
+}
+
+size_t surety_stats_la_lower(double eps, double alpha, double delta)
+{
+    if (!prob_ok(eps) || !prob_ok(delta) || !(alpha > eps) || !(alpha < 1.0))
+        return 0;
+    double g = alpha - eps;
+    return ceil_count(-log(delta) / (2.0 * g * g));
+}
+
+size_t surety_stats_cg2008(double eps, double beta, size_t d)
+{
+    if (!prob_ok(eps) || !prob_ok(beta) || d == 0)
+        return 0;
+    return min_n_fixed_k(eps, d - 1, log(beta));
+}
+
+size_t surety_stats_cgp2009(double eps, double beta, size_t d)
+{
+    if (!prob_ok(eps) || !prob_ok(beta) || d == 0)
+        return 0;
+    return ceil_count(2.0 / eps * (-log(beta) + (double)d));
+}
+
+size_t surety_stats_cc2006(double eps, double beta, size_t d)
+{
+    if (!prob_ok(eps) || !prob_ok(beta) || d == 0)
+        return 0;
+    double dd = (double)d;
+    return ceil_count(2.0 / eps * -log(beta) + 2.0 * dd
+                      + 2.0 * dd / eps * log(2.0 / eps));
+}
+
+size_t surety_stats_cc2005(double eps, double beta, size_t d)
+{
+    if (!prob_ok(eps) || !prob_ok(beta) || d == 0)
+        return 0;
+    return ceil_count((double)d / (eps * beta) - 1.0);
+}
+
+double surety_stats_discard_logprob(size_t N, size_t k, size_t d,
+                                    double eps)
+{
+    if (!prob_ok(eps) || d == 0)
+        return NAN;
+    double r = (double)k + (double)d - 1.0;
+    return surety_stats_log_choose(r, (double)k)
+           + surety_stats_binom_logcdf((long)(k + d - 1), (long)N, eps);
+}
+
+double surety_stats_discard_prob(size_t N, size_t k, size_t d, double eps)
+{
+    return exp(surety_stats_discard_logprob(N, k, d, eps));
+}
+
+size_t surety_stats_discard_min_n(size_t k, size_t d, double eps,
+                                  double beta)
+{
+    if (!prob_ok(eps) || !prob_ok(beta) || d == 0)
+        return 0;
+    double lc = surety_stats_log_choose((double)k + (double)d - 1.0,
+                                        (double)k);
+    return min_n_fixed_k(eps, k + d - 1, log(beta) - lc);
+}
+
+/* The right side grows with k (both factors do), so the passing k form a
+ * prefix of 0..N-d; beyond N-d the binomial factor is 1 and it fails. */
+long surety_stats_discard_max_k(size_t N, size_t d, double eps, double beta)
+{
+    if (!prob_ok(eps) || !prob_ok(beta) || d == 0 || N < d)
+        return -1;
+    double lb = log(beta);
+    if (surety_stats_discard_logprob(N, 0, d, eps) > lb)
+        return -1;
+    size_t lo = 0, hi = N - d + 1; /* lo passes, hi fails */
+    while (hi - lo > 1) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (surety_stats_discard_logprob(N, mid, d, eps) <= lb)
+            lo = mid;
+        else
+            hi = mid;
+    }
+    return (long)lo;
+}
+
+size_t surety_stats_certify_min_samples(double eps, double beta, size_t v)
+{
+    if (!prob_ok(eps) || !prob_ok(beta))
+        return 0;
+    return min_n_fixed_k(eps, v, log(beta));
+}
+
+long surety_stats_certify_max_violations(size_t N, double eps, double beta)
+{
+    return surety_stats_discard_max_k(N, 1, eps, beta);
+}
+
+double surety_stats_cgr2018_eps(size_t N, size_t sigma, double beta)
+{
+    if (!prob_ok(beta) || N == 0)
+        return NAN;
+    if (sigma >= N)
+        return 1.0;
+    double dN = (double)N;
+    double l = (log(beta) - log(dN) - surety_stats_log_choose(dN, (double)sigma))
+               / (dN - (double)sigma);
+    return -expm1(l);
+}
+
+double surety_stats_pas_theta(size_t N, double gamma, double eps)
+{
+    if (!prob_ok(eps) || !(gamma >= 0.0) || !(gamma <= 1.0) || N == 0)
+        return NAN;
+    return surety_stats_binom_cdf((long)surety_allowance(gamma, N), (long)N,
+                                  eps);
+}
+
+/* B(L-1; M, theta) grows with L, so the admissible L form a prefix. */
+size_t surety_stats_pas_rank(size_t M, double theta, double beta)
+{
+    if (!prob_ok(beta) || !(theta >= 0.0) || !(theta <= 1.0) || M == 0)
+        return 0;
+    if (surety_stats_binom_cdf(0, (long)M, theta) > beta)
+        return 0;
+    size_t lo = 1, hi = M + 1; /* L = lo passes, hi is out of range */
+    while (hi - lo > 1) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (surety_stats_binom_cdf((long)mid - 1, (long)M, theta) <= beta)
+            lo = mid;
+        else
+            hi = mid;
+    }
+    return lo;
 }
