@@ -221,6 +221,15 @@ typedef struct surety_resource_check {
     double overload_hours_p95;  /* 95th percentile of the same, hours */
     double load_mean;           /* mean load, hours */
     double load_p95;            /* 95th percentile of the load, hours */
+    /* This resource on its own (the separate constraint): the fraction of
+     * fresh scenarios in which it holds, its one-sided Clopper-Pearson
+     * lower bound and verdict against 1-eps. For a separate model the bound
+     * is at confidence 1-(1-c)/m (Bonferroni), so that all m statements
+     * hold together with confidence c; for a joint model it is at c and
+     * only informative. */
+    double reliability;
+    double reliability_lower;
+    surety_verdict verdict;
 } surety_resource_check;
 
 typedef struct surety_check_report {
@@ -245,6 +254,16 @@ typedef struct surety_check_report {
     double check_seconds;    /* time evaluating the plan on them */
 } surety_check_report;
 
+/* Evaluates `plan` on the model's own scenarios (when opt->in_sample) and
+ * on opt->samples fresh scenarios of opt->stream, drawn in blocks so that
+ * memory grows with M only by the kept per-scenario loads and profits
+ * (8(m+1) bytes a scenario; refused up front when that exceeds a quarter
+ * of physical memory). Percentiles are exact order statistics of the kept
+ * values, interpolated linearly between neighbours (position (M-1)q).
+ * The verdict is on the joint reliability for a joint model and the worst
+ * per-resource verdict for a separate one. opt may be NULL (defaults).
+ * On success the caller frees *out with surety_check_report_free. The plan
+ * must suit the model (allowed resources, required jobs placed). */
 surety_code surety_check(const surety_model *model, const surety_plan *plan,
                          const surety_check_options *opt,
                          surety_check_report *out, surety_error *err);
