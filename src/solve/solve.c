@@ -1,1 +1,485 @@
-/* placeholder */
+/* solve.c - the public solve API: options, the result record, incumbent
+ * acceptance by exact recount, progress lines, and the driver that runs
+ * presolve, heuristics and the tree search.
+ * SPDX-License-Identifier: MIT */
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <string.h>
+#include <time.h>
+
+#include "alloc.h"
+#include "solve/solve.h"
+
+struct surety_result {
+    surety_stop stop;
+    surety_status status;
+    double objective;  /* mean profit of the plan; NAN without a plan */
+    double bound;      /* valid upper bound on the optimum */
+    double gap;        /* relative; INFINITY when unknown */
+    double seconds;
+    long nodes;
+    surety_plan *plan; /* owned; NULL without a plan */
+    size_t fit;        /* scenarios where the plan fits (joint) */
+    size_t k;          /* allowance */
+    char reason[768];  /* why infeasible, or "" */
+};
+
+void surety_solve_options_init(surety_solve_options *opt)
+{
+    if (!opt)
+        return;
+    memset(opt, 0, sizeof *opt);
+    opt->time_limit_s = 0;
+    opt->gap = 1e-9;
+    opt->node_limit = 0;
+    opt->threads = 1;
+    opt->verbosity = SURETY_LOG_INFO;
+    opt->progress_s = 5;
+    opt->log = NULL;
+    opt->log_ctx = NULL;
+    opt->interrupt = NULL;
+    opt->start = NULL;
+}
+
+double surety_solve_now(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+static void logf_(const surety_solver *s, surety_log_level level,
+                  const char *fmt, ...) __attribute__((format(printf, 3, 4)));
+static void logf_(const surety_solver *s, surety_log_level level,
+                  const char *fmt, ...)
+{
+    const surety_solve_options *o = s->opt;
+    if (!o->log || (int)level > o->verbosity)
+        return;
+    char line[512];
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(line, sizeof line, fmt, ap);
+    va_end(ap);
+    o->log(o->log_ctx, level, line);
+}
+
+static double global_bound(const surety_solver *s)
+{
+    double b = s->have_inc ? s->inc : -INFINITY;
+    if (!s->open_bound)
+        return s->root_bound > b ? s->root_bound : b;
+    for (size_t d = 0; d <= s->depth && d <= s->nb; d++)
+        if (s->open_bound[d] > b)
+            b = s->open_bound[d];
+    return b;
+}
+
+static double rel_gap(double obj, double bound)
+{
+    if (isnan(obj) || bound == INFINITY)
+        return INFINITY;
+    double d = bound - obj;
+    if (d <= 0)
+        return 0;
+    double den = fabs(obj);
+    return den > 0 ? d / den : INFINITY;
+}
+
+/* One progress line: a mark ('*' new incumbent from the tree, 'H' from a
+ * heuristic, ' ' timed), elapsed seconds, nodes, open subtrees on the
+ * dive path, incumbent, bound, gap. Header every 20 lines. */
+void surety_solve_log_progress(surety_solver *s, int force, char mark)
+{
+    const surety_solve_options *o = s->opt;
+    if (!o->log || o->verbosity < SURETY_LOG_PROGRESS)
+        return;
+    double now = surety_solve_now();
+    if (!force && (o->progress_s <= 0 || now - s->last_log < o->progress_s))
+        return;
+    s->last_log = now;
+    static const char *head =
+        "     time_s        nodes   open        incumbent            bound"
+        "       gap";
+    if (s->log_lines++ % 20 == 0)
+        o->log(o->log_ctx, SURETY_LOG_PROGRESS, head);
+    size_t open = 0;
+    if (s->open_bound)
+        for (size_t d = 0; d <= s->depth && d <= s->nb; d++)
+            open += s->open_bound[d] > -INFINITY;
+    double b = global_bound(s);
+    char inc[32], gap[32];
+    if (s->have_inc) {
+        snprintf(inc, sizeof inc, "%16.6f", s->inc);
+        double g = rel_gap(s->inc, b);
+        if (isinf(g))
+            snprintf(gap, sizeof gap, "%9s", "inf");
+        else
+            snprintf(gap, sizeof gap, "%8.4f%%", 100 * g);
+    } else {
+        snprintf(inc, sizeof inc, "%16s", "-");
+        snprintf(gap, sizeof gap, "%9s", "-");
+    }
+    char line[256];
+    snprintf(line, sizeof line, "%c %9.2f %12ld %6zu %s %16.6f %s", mark,
+             now - s->t0, s->nodes, open, inc, b, gap);
+    o->log(o->log_ctx, SURETY_LOG_PROGRESS, line);
+}
+
+/* Canonical value of a plan: mean profits of accepted jobs added in
+ * ascending job order (the same sum as surety_plan_profit). */
+static double plan_value(const surety_solver *s, const long *plan)
+{
+    double v = 0;
+    for (size_t j = 0; j < s->n; j++)
+        if (plan[j] >= 0)
+            v += s->p[j];
+    return v;
+}
+
+/* A plan is accepted only after the exact recount of plan.c on the
+ * scenarios as given (not the merged ones, not the search's loads), with
+ * the model's own allowed and required flags. */
+static int plan_valid(const surety_solver *s, const long *plan, size_t *fit)
+{
+    const surety_model *model = s->model;
+    for (size_t j = 0; j < s->n; j++) {
+        long i = plan[j];
+        if (i < 0) {
+            if (model->jobs[j].required)
+                return 0;
+            continue;
+        }
+        if ((size_t)i >= s->m || !model->jobs[j].allowed[i])
+            return 0;
+    }
+    surety_plan tmp = {s->n, (long *)plan};
+    if (!surety_plan_feasible(model, &tmp, s->sc))
+        return 0;
+    if (fit)
+        *fit = surety_plan_count_fit(model, &tmp, s->sc, NULL);
+    return 1;
+}
+
+int surety_solve_offer(surety_solver *s, const long *plan)
+{
+    double v = plan_value(s, plan);
+    if (s->have_inc && !(v > s->inc))
+        return 0;
+    size_t fit = 0;
+    if (!plan_valid(s, plan, &fit))
+        return 0;
+    for (size_t j = 0; j < s->n; j++)
+        s->inc_plan[j] = plan[j] >= 0 ? plan[j] : -1;
+    s->inc = v;
+    s->have_inc = 1;
+    s->inc_fit = fit;
+    return 1;
+}
+
+static void solver_free(surety_solver *s)
+{
+    surety_presolve_free(s);
+    surety_heur_free(s);
+    surety_xfree(s->state);
+    surety_xfree(s->nin);
+    surety_xfree(s->load);
+    surety_xfree(s->dead);
+    surety_xfree(s->dead_w);
+    surety_xfree(s->trail);
+    surety_xfree(s->saved_load);
+    surety_xfree(s->saved_dead_w);
+    surety_xfree(s->frames);
+    surety_xfree(s->ub);
+    surety_xfree(s->ubw);
+    surety_xfree(s->ubl);
+    surety_xfree(s->kn);
+    surety_xfree(s->q);
+    surety_xfree(s->inc_plan);
+    surety_xfree(s->open_bound);
+    surety_xfree(s->tplan);
+    surety_xfree(s->tfix);
+}
+
+static int search_alloc(surety_solver *s)
+{
+    size_t n = s->n, m = s->m, N = s->N, G = s->G, nb = s->nb;
+    s->state = surety_xmalloc(n, sizeof *s->state);
+    s->nin = surety_xcalloc(m, sizeof *s->nin);
+    s->load = surety_xcalloc(m * N, sizeof *s->load);
+    s->dead = surety_xcalloc(G * N, 1);
+    s->dead_w = surety_xcalloc(G, sizeof *s->dead_w);
+    s->trail_cap = 2 * G * N + 16;
+    s->trail = surety_xmalloc(s->trail_cap, sizeof *s->trail);
+    s->saved_load = surety_xmalloc((nb + 1) * N, sizeof *s->saved_load);
+    s->saved_dead_w = surety_xmalloc((nb + 1) * G, sizeof *s->saved_dead_w);
+    s->frames = surety_xcalloc(nb + 1, sizeof *s->frames);
+    s->ub = surety_xmalloc(N, sizeof *s->ub);
+    s->ubw = surety_xmalloc(N, sizeof *s->ubw);
+    s->ubl = surety_xmalloc(N, sizeof *s->ubl);
+    s->kn = surety_xmalloc(G * N + m, sizeof *s->kn);
+    s->q = surety_xmalloc(G, sizeof *s->q);
+    s->open_bound = surety_xmalloc(nb + 1, sizeof *s->open_bound);
+    s->tplan = surety_xmalloc(n, sizeof *s->tplan);
+    s->tfix = surety_xmalloc(n, sizeof *s->tfix);
+    if (!s->state || !s->nin || !s->load || !s->dead || !s->dead_w ||
+        !s->trail || !s->saved_load || !s->saved_dead_w || !s->frames ||
+        !s->ub || !s->ubw || !s->ubl || !s->kn || !s->q || !s->open_bound ||
+        !s->tplan || !s->tfix)
+        return -1;
+    for (size_t j = 0; j < n; j++)
+        s->state[j] = JOB_OUT;
+    for (size_t t = 0; t < nb; t++)
+        s->state[s->order[t]] = JOB_FREE;
+    for (size_t d = 0; d <= nb; d++)
+        s->open_bound[d] = -INFINITY;
+    s->req_left = 0;
+    s->req_profit = 0;
+    for (size_t j = 0; j < n; j++)
+        if (s->required[j]) {
+            s->req_left++;
+            s->req_profit += s->p[j];
+        }
+    return 0;
+}
+
+static surety_result *result_new(void)
+{
+    surety_result *r = surety_xcalloc(1, sizeof *r);
+    if (!r)
+        return NULL;
+    r->stop = SURETY_STOP_FINISHED;
+    r->status = SURETY_UNKNOWN;
+    r->objective = NAN;
+    r->bound = INFINITY;
+    r->gap = INFINITY;
+    return r;
+}
+
+surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
+                         const surety_solve_options *opt, surety_result **out,
+                         surety_error *err)
+{
+    if (out)
+        *out = NULL;
+    if (!model || !sc || !out) {
+        surety_error_set(err, NULL, 0, 0, NULL,
+                         "surety_solve needs a model, scenarios and a result "
+                         "pointer");
+        return SURETY_EUSAGE;
+    }
+    if (model->n == 0 || model->m == 0) {
+        surety_error_set(err, model->path, 0, 0,
+                         model->n == 0 ? "jobs" : "resources",
+                         "the model has no %s; there is nothing to plan",
+                         model->n == 0 ? "jobs" : "resources");
+        return SURETY_EINPUT;
+    }
+    if (sc->n != model->n || sc->N == 0) {
+        surety_error_set(err, NULL, 0, 0, "scenarios",
+                         sc->N == 0 ? "the scenario set is empty"
+                                    : "the scenario set has %zu jobs, the "
+                                      "model %zu",
+                         sc->n, model->n);
+        return SURETY_EUSAGE;
+    }
+    surety_solve_options defaults;
+    if (!opt) {
+        surety_solve_options_init(&defaults);
+        opt = &defaults;
+    }
+
+    surety_solver s;
+    memset(&s, 0, sizeof s);
+    s.model = model;
+    s.sc = sc;
+    s.opt = opt;
+    s.t0 = surety_solve_now();
+    s.last_log = s.t0;
+    s.root_bound = INFINITY;
+
+    surety_result *res = result_new();
+    if (!res) {
+        surety_error_set(err, NULL, 0, 0, NULL, "out of memory");
+        return SURETY_EINTERNAL;
+    }
+    int infeasible = 0;
+    surety_code rc = surety_presolve_run(&s, res->reason, sizeof res->reason,
+                                         &infeasible, err);
+    if (rc != SURETY_OK)
+        goto fail;
+    res->k = s.k;
+    s.inc_plan = surety_xmalloc(s.n, sizeof *s.inc_plan);
+    if (!s.inc_plan || search_alloc(&s) != 0) {
+        surety_error_set(err, NULL, 0, 0, NULL,
+                         "out of memory for the search (%zu jobs, %zu "
+                         "scenarios)", s.n, s.N);
+        rc = SURETY_EINTERNAL;
+        goto fail;
+    }
+    logf_(&s, SURETY_LOG_INFO,
+          "solve: %zu jobs (%zu to decide), %zu resources, %zu scenarios "
+          "(%zu distinct), allowance %zu, %s",
+          s.n, s.nb, s.m, s.N0, s.N, s.k, s.separate ? "separate" : "joint");
+
+    if (!infeasible) {
+        /* the empty plan, a caller's plan, then the greedy + local search */
+        if (s.req_left == 0) {
+            for (size_t j = 0; j < s.n; j++)
+                s.tplan[j] = JOB_OUT;
+            surety_solve_offer(&s, s.tplan);
+        }
+        if (opt->start && opt->start->n == s.n &&
+            surety_solve_offer(&s, opt->start->resource))
+            logf_(&s, SURETY_LOG_INFO, "starting plan accepted: %.6f", s.inc);
+        memcpy(s.tfix, s.state, s.n * sizeof *s.tfix);
+        if (surety_heur_complete(&s, s.tfix, s.tplan, 1))
+            surety_solve_offer(&s, s.tplan);
+        if (s.have_inc)
+            surety_solve_log_progress(&s, 1, 'H');
+        double open = surety_tree_search(&s);
+        if (s.stop) {
+            res->stop = (surety_stop)(s.stop - 1);
+            double b = s.have_inc ? s.inc : -INFINITY;
+            res->bound = open > b ? open : b;
+        } else {
+            res->stop = SURETY_STOP_FINISHED;
+            /* every pruned node had a bound at most the final cutoff */
+            if (s.have_inc) {
+                double tol = opt->gap * fabs(s.inc);
+                double noise = 1e-12 * (s.pscale + 1);
+                res->bound = s.inc + (tol > noise ? tol : noise);
+            } else {
+                res->bound = -INFINITY;
+            }
+        }
+    } else {
+        res->stop = SURETY_STOP_FINISHED;
+        res->bound = -INFINITY;
+    }
+
+    if (s.have_inc) {
+        /* independent final recount; a plan that fails it is withheld */
+        size_t fit = 0;
+        if (!plan_valid(&s, s.inc_plan, &fit)) {
+            surety_error_set(err, NULL, 0, 0, NULL,
+                             "internal error: the best plan failed its "
+                             "final recount");
+            rc = SURETY_EINTERNAL;
+            goto fail;
+        }
+        res->plan = surety_xmalloc(1, sizeof *res->plan);
+        long *r = surety_xmalloc(s.n, sizeof *r);
+        if (!res->plan || !r) {
+            surety_xfree(r);
+            surety_error_set(err, NULL, 0, 0, NULL, "out of memory");
+            rc = SURETY_EINTERNAL;
+            goto fail;
+        }
+        memcpy(r, s.inc_plan, s.n * sizeof *r);
+        res->plan->n = s.n;
+        res->plan->resource = r;
+        res->fit = fit;
+        res->objective = s.inc;
+        if (res->bound < s.inc)
+            res->bound = s.inc;
+        res->status = res->stop == SURETY_STOP_FINISHED ? SURETY_OPTIMAL
+                                                        : SURETY_FEASIBLE;
+        res->gap = rel_gap(res->objective, res->bound);
+    } else if (res->stop == SURETY_STOP_FINISHED) {
+        res->status = SURETY_INFEASIBLE;
+        if (!res->reason[0]) {
+            unsigned char *mark = NULL;
+            (void)mark;
+            char names[400];
+            size_t used = 0, shown = 0;
+            names[0] = '\0';
+            for (size_t j = 0; j < s.n && shown < 6; j++)
+                if (s.required[j]) {
+                    int w = snprintf(names + used, sizeof names - used, "%s%s",
+                                     shown ? ", " : "", model->jobs[j].id);
+                    if (w < 0 || (size_t)w >= sizeof names - used)
+                        break;
+                    used += (size_t)w;
+                    shown++;
+                }
+            snprintf(res->reason, sizeof res->reason,
+                     "no placement of the required jobs (%s%s) fits %zu of "
+                     "the %zu scenarios; at most %zu may fail",
+                     names, s.req_left > shown ? ", ..." : "", s.N0 - s.k,
+                     s.N0, s.k);
+        }
+    } else {
+        res->status = SURETY_UNKNOWN;
+    }
+    res->nodes = s.nodes;
+    res->seconds = surety_solve_now() - s.t0;
+    logf_(&s, SURETY_LOG_INFO,
+          "solve: %s (%s), objective %.6f, bound %.6f, %ld nodes, %.2f s",
+          surety_status_name(res->status), surety_stop_name(res->stop),
+          res->objective, res->bound, res->nodes, res->seconds);
+    solver_free(&s);
+    *out = res;
+    return SURETY_OK;
+fail:
+    solver_free(&s);
+    surety_result_free(res);
+    return rc;
+}
+
+void surety_result_free(surety_result *res)
+{
+    if (!res)
+        return;
+    if (res->plan) {
+        surety_xfree(res->plan->resource);
+        surety_xfree(res->plan);
+    }
+    surety_xfree(res);
+}
+
+surety_stop surety_result_stop(const surety_result *res)
+{
+    return res ? res->stop : SURETY_STOP_FINISHED;
+}
+surety_status surety_result_status(const surety_result *res)
+{
+    return res ? res->status : SURETY_UNKNOWN;
+}
+double surety_result_objective(const surety_result *res)
+{
+    return res ? res->objective : NAN;
+}
+double surety_result_bound(const surety_result *res)
+{
+    return res ? res->bound : INFINITY;
+}
+double surety_result_gap(const surety_result *res)
+{
+    return res ? res->gap : INFINITY;
+}
+long surety_result_nodes(const surety_result *res)
+{
+    return res ? res->nodes : 0;
+}
+double surety_result_seconds(const surety_result *res)
+{
+    return res ? res->seconds : 0;
+}
+const surety_plan *surety_result_plan(const surety_result *res)
+{
+    return res ? res->plan : NULL;
+}
+size_t surety_result_fit(const surety_result *res)
+{
+    return res ? res->fit : 0;
+}
+size_t surety_result_allowance(const surety_result *res)
+{
+    return res ? res->k : 0;
+}
+const char *surety_result_reason(const surety_result *res)
+{
+    return res ? res->reason : "";
+}

@@ -1,0 +1,387 @@
+/* heur.c - incumbents: greedy insertion with a violation budget and a
+ * local search of add, swap and drop/re-insert moves (METHODS.md s.8).
+ * Every plan found here is re-counted exactly by surety_solve_offer.
+ * SPDX-License-Identifier: MIT */
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
+#include "solve/solve.h"
+
+static int over(const surety_solver *s, size_t i, double load)
+{
+    const surety_resource *r = &s->model->resources[i];
+    return !surety_plan_holds(r->hours_factor, load, r->capacity);
+}
+
+static size_t group_of(const surety_solver *s, size_t i)
+{
+    return s->separate ? i : 0;
+}
+
+/* Loads recomputed from scratch, jobs added in ascending order as the
+ * canonical recount does, so the heuristic's counts start exact. */
+static void reset(surety_solver *s, const long *plan)
+{
+    size_t N = s->N, m = s->m, n = s->n, G = s->G;
+    memset(s->hload, 0, m * N * sizeof *s->hload);
+    for (size_t j = 0; j < n; j++) {
+        long i = plan[j];
+        if (i < 0)
+            continue;
+        double *ld = s->hload + (size_t)i * N;
+        const double *wj = s->wt + j * N;
+        for (size_t l = 0; l < N; l++)
+            ld[l] += wj[l];
+    }
+    memset(s->hov, 0, G * N * sizeof *s->hov);
+    memset(s->hfail, 0, G * sizeof *s->hfail);
+    for (size_t i = 0; i < m; i++) {
+        size_t g = group_of(s, i);
+        s->htot[i] = 0;
+        for (size_t l = 0; l < N; l++) {
+            double ld = s->hload[i * N + l];
+            s->htot[i] += ld;
+            unsigned char o = (unsigned char)over(s, i, ld);
+            s->hover[i * N + l] = o;
+            if (o && s->hov[g * N + l]++ == 0)
+                s->hfail[g] += s->cnt[l];
+        }
+    }
+}
+
+/* Failed weight of resource i's group if job `add` (or none, SIZE_MAX)
+ * joined and job `rem` (or none) left resource i. */
+static size_t fail_after(const surety_solver *s, size_t i, size_t add,
+                         size_t rem)
+{
+    size_t N = s->N, g = group_of(s, i);
+    const double *ld = s->hload + i * N;
+    const unsigned char *ov = s->hover + i * N;
+    const unsigned *hv = s->hov + g * N;
+    const double *wa = add != SIZE_MAX ? s->wt + add * N : NULL;
+    const double *wr = rem != SIZE_MAX ? s->wt + rem * N : NULL;
+    size_t fail = s->hfail[g];
+    for (size_t l = 0; l < N; l++) {
+        double x = ld[l];
+        if (wa)
+            x += wa[l];
+        if (wr)
+            x -= wr[l];
+        int o = over(s, i, x);
+        if (o == ov[l])
+            continue;
+        unsigned c = hv[l] - ov[l] + (unsigned)o;
+        int was = hv[l] > 0, now = c > 0;
+        if (now && !was)
+            fail += s->cnt[l];
+        else if (was && !now)
+            fail -= s->cnt[l];
+    }
+    return fail;
+}
+
+/* Adds (sign > 0) or removes job j in resource i. */
+static void change(surety_solver *s, size_t j, size_t i, int sign)
+{
+    size_t N = s->N, g = group_of(s, i);
+    double *ld = s->hload + i * N;
+    unsigned char *ov = s->hover + i * N;
+    unsigned *hv = s->hov + g * N;
+    const double *wj = s->wt + j * N;
+    for (size_t l = 0; l < N; l++) {
+        double x = sign > 0 ? ld[l] + wj[l] : ld[l] - wj[l];
+        s->htot[i] += x - ld[l];
+        ld[l] = x;
+        unsigned char o = (unsigned char)over(s, i, x);
+        if (o == ov[l])
+            continue;
+        ov[l] = o;
+        if (o) {
+            if (hv[l]++ == 0)
+                s->hfail[g] += s->cnt[l];
+        } else {
+            if (--hv[l] == 0)
+                s->hfail[g] -= s->cnt[l];
+        }
+    }
+}
+
+/* The best resource for job j: allowed, keeps its group within the
+ * allowance (unless `force`, for required jobs), fewest new failures, then
+ * the least loaded. Returns -1 when none. */
+static long best_resource(surety_solver *s, size_t j, int force)
+{
+    long best = -1;
+    size_t bestf = SIZE_MAX;
+    double bestt = INFINITY;
+    for (size_t i = 0; i < s->m; i++) {
+        if (!s->allowed[j * s->m + i])
+            continue;
+        size_t g = group_of(s, i);
+        size_t f = fail_after(s, i, j, SIZE_MAX);
+        if (!force && f > s->k)
+            continue;
+        size_t add = f - s->hfail[g];
+        double t = s->htot[i] / s->cap[i];
+        if (add < bestf || (add == bestf && t < bestt)) {
+            best = (long)i;
+            bestf = add;
+            bestt = t;
+        }
+    }
+    return best;
+}
+
+static int within(const surety_solver *s)
+{
+    for (size_t g = 0; g < s->G; g++)
+        if (s->hfail[g] > s->k)
+            return 0;
+    return 1;
+}
+
+/* Inserts the free jobs of plan (JOB_FREE entries) greedily: required
+ * jobs first, then candidates in the order `ord`. Free jobs left over
+ * become JOB_OUT. */
+static int greedy(surety_solver *s, long *plan, const size_t *ord)
+{
+    for (size_t t = 0; t < s->nb; t++) {
+        size_t j = s->order[t];
+        if (!s->required[j] || plan[j] != JOB_FREE)
+            continue;
+        long i = best_resource(s, j, 1);
+        if (i < 0)
+            return 0;
+        change(s, j, (size_t)i, 1);
+        plan[j] = i;
+    }
+    if (!within(s))
+        return 0;
+    for (size_t t = 0; t < s->ncand; t++) {
+        size_t j = ord[t];
+        if (plan[j] != JOB_FREE)
+            continue;
+        long i = best_resource(s, j, 0);
+        if (i >= 0) {
+            change(s, j, (size_t)i, 1);
+            plan[j] = i;
+        } else {
+            plan[j] = JOB_OUT;
+        }
+    }
+    for (size_t j = 0; j < s->n; j++)
+        if (plan[j] == JOB_FREE)
+            plan[j] = JOB_OUT;
+    return 1;
+}
+
+static double profit_of(const surety_solver *s, const long *plan)
+{
+    double v = 0;
+    for (size_t j = 0; j < s->n; j++)
+        if (plan[j] >= 0)
+            v += s->p[j];
+    return v;
+}
+
+/* Local search until no move improves (METHODS.md s.8 rule 2): add an
+ * outside job; swap a placed optional job for a more profitable outside
+ * one in the same resource; drop a placed job and re-insert greedily
+ * (itself included, so it may move), kept when profit rises. Jobs fixed
+ * by the caller (fixed[j] != JOB_FREE) are never touched. */
+static void polish(surety_solver *s, long *plan, const long *fixed)
+{
+    size_t N = s->N, m = s->m;
+    for (int round = 0; round < 50; round++) {
+        int improved = 0;
+        /* add */
+        for (size_t t = 0; t < s->ncand; t++) {
+            size_t j = s->hordp[t];
+            if (plan[j] != JOB_OUT || (fixed && fixed[j] != JOB_FREE))
+                continue;
+            long i = best_resource(s, j, 0);
+            if (i >= 0) {
+                change(s, j, (size_t)i, 1);
+                plan[j] = i;
+                improved = 1;
+            }
+        }
+        /* swap in resource i: a out, b in, p_b > p_a */
+        for (size_t ta = 0; ta < s->ncand; ta++) {
+            size_t a = s->hordp[s->ncand - 1 - ta]; /* least profitable first */
+            if (plan[a] < 0 || (fixed && fixed[a] != JOB_FREE))
+                continue;
+            size_t i = (size_t)plan[a];
+            for (size_t tb = 0; tb < s->ncand; tb++) {
+                size_t b = s->hordp[tb];
+                if (!(s->p[b] > s->p[a]))
+                    break;
+                if (plan[b] != JOB_OUT || (fixed && fixed[b] != JOB_FREE) ||
+                    !s->allowed[b * m + i])
+                    continue;
+                if (fail_after(s, i, b, a) <= s->k) {
+                    change(s, a, i, -1);
+                    change(s, b, i, 1);
+                    plan[a] = JOB_OUT;
+                    plan[b] = (long)i;
+                    improved = 1;
+                    break;
+                }
+            }
+        }
+        /* drop one job, re-insert greedily */
+        for (size_t ta = 0; ta < s->ncand; ta++) {
+            size_t a = s->hordp[ta];
+            if (plan[a] < 0 || (fixed && fixed[a] != JOB_FREE))
+                continue;
+            double before = profit_of(s, plan);
+            memcpy(s->hsave, plan, s->n * sizeof *plan);
+            change(s, a, (size_t)plan[a], -1);
+            plan[a] = JOB_OUT;
+            for (size_t tb = 0; tb < s->ncand; tb++) {
+                size_t b = s->hordp[tb];
+                if (b == a || plan[b] != JOB_OUT ||
+                    (fixed && fixed[b] != JOB_FREE))
+                    continue;
+                long i = best_resource(s, b, 0);
+                if (i >= 0) {
+                    change(s, b, (size_t)i, 1);
+                    plan[b] = i;
+                }
+            }
+            long i = best_resource(s, a, 0);
+            if (i >= 0) {
+                change(s, a, (size_t)i, 1);
+                plan[a] = i;
+            }
+            if (profit_of(s, plan) > before + 1e-12 * (s->pscale + 1)) {
+                improved = 1;
+            } else {
+                memcpy(plan, s->hsave, s->n * sizeof *plan);
+                reset(s, plan);
+            }
+        }
+        (void)N;
+        if (!improved)
+            break;
+        reset(s, plan); /* drop the drift of incremental sums */
+    }
+}
+
+typedef struct key_ctx {
+    const double *key;
+} key_ctx;
+
+static int cmp_key(const void *a, const void *b, void *ctx)
+{
+    const double *key = ctx;
+    size_t ja = *(const size_t *)a, jb = *(const size_t *)b;
+    if (key[ja] != key[jb])
+        return key[ja] > key[jb] ? -1 : 1;
+    return (ja > jb) - (ja < jb);
+}
+
+typedef struct wq {
+    double w;
+    unsigned c;
+} wq;
+
+static int cmp_wq(const void *a, const void *b)
+{
+    double x = ((const wq *)a)->w, y = ((const wq *)b)->w;
+    return (x > y) - (x < y);
+}
+
+/* Greedy keys: p_j over the (N-k)-th smallest hours of job j, the hours
+ * it needs in all scenarios that must hold (METHODS.md s.8 rule 1). */
+static int heur_init(surety_solver *s)
+{
+    size_t N = s->N, n = s->n;
+    wq *tmp = surety_xmalloc(N, sizeof *tmp);
+    if (!tmp)
+        return -1;
+    size_t target = s->N0 - s->k; /* 1-based rank */
+    size_t c = 0;
+    for (size_t j = 0; j < n; j++) {
+        if (!s->cand[j]) {
+            s->hkey[j] = 0;
+            continue;
+        }
+        for (size_t l = 0; l < N; l++) {
+            tmp[l].w = s->wt[j * N + l];
+            tmp[l].c = s->cnt[l];
+        }
+        qsort(tmp, N, sizeof *tmp, cmp_wq);
+        size_t acc = 0;
+        double q = tmp[N - 1].w;
+        for (size_t l = 0; l < N; l++) {
+            acc += tmp[l].c;
+            if (acc >= target) {
+                q = tmp[l].w;
+                break;
+            }
+        }
+        s->hkey[j] = q > 0 ? s->p[j] / q : INFINITY;
+        s->hord[c] = j;
+        s->hordp[c] = j;
+        c++;
+    }
+    qsort_r(s->hord, c, sizeof *s->hord, cmp_key, s->hkey);
+    qsort_r(s->hordp, c, sizeof *s->hordp, cmp_key, s->p);
+    surety_xfree(tmp);
+    return 0;
+}
+
+int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
+                         int polish_it)
+{
+    if (!s->hkey) {
+        size_t N = s->N, m = s->m, n = s->n;
+        s->hload = surety_xmalloc(m * N, sizeof *s->hload);
+        s->hover = surety_xmalloc(m * N, 1);
+        s->hov = surety_xmalloc(s->G * N, sizeof *s->hov);
+        s->hfail = surety_xmalloc(s->G, sizeof *s->hfail);
+        s->htot = surety_xmalloc(m, sizeof *s->htot);
+        s->hkey = surety_xmalloc(n, sizeof *s->hkey);
+        s->hord = surety_xmalloc(n, sizeof *s->hord);
+        s->hordp = surety_xmalloc(n, sizeof *s->hordp);
+        s->hplan = surety_xmalloc(n, sizeof *s->hplan);
+        s->hsave = surety_xmalloc(n, sizeof *s->hsave);
+        if (!s->hload || !s->hover || !s->hov || !s->hfail || !s->htot ||
+            !s->hkey || !s->hord || !s->hordp || !s->hplan || !s->hsave ||
+            heur_init(s) != 0)
+            return 0;
+    }
+    int ok = 1;
+    for (int pass = 0; pass < (polish_it ? 2 : 1); pass++) {
+        memcpy(plan, fixed, s->n * sizeof *plan);
+        long *start = s->hplan;
+        for (size_t j = 0; j < s->n; j++)
+            start[j] = plan[j] >= 0 ? plan[j] : JOB_OUT;
+        reset(s, start);
+        ok = greedy(s, plan, pass == 0 ? s->hord : s->hordp);
+        if (ok && polish_it)
+            polish(s, plan, fixed);
+        if (ok)
+            ok = within(s);
+        if (ok && polish_it && pass == 0)
+            surety_solve_offer(s, plan);
+    }
+    return ok;
+}
+
+void surety_heur_free(surety_solver *s)
+{
+    surety_xfree(s->hload);
+    surety_xfree(s->hover);
+    surety_xfree(s->hov);
+    surety_xfree(s->hfail);
+    surety_xfree(s->htot);
+    surety_xfree(s->hkey);
+    surety_xfree(s->hord);
+    surety_xfree(s->hordp);
+    surety_xfree(s->hplan);
+    surety_xfree(s->hsave);
+}

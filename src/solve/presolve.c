@@ -1,0 +1,393 @@
+/* presolve.c - the solver's view of a model and scenario set: merged
+ * duplicate scenarios, pruned (job, resource) pairs, branching order and
+ * per-scenario efficiency orders, plus early infeasibility proofs.
+ * SPDX-License-Identifier: MIT */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
+#include "solve/solve.h"
+
+/* Lexicographic order of scenario rows, ties by index (deterministic). */
+static int cmp_rows(const void *a, const void *b, void *ctx)
+{
+    const surety_scenarios *sc = ctx;
+    size_t la = *(const size_t *)a, lb = *(const size_t *)b;
+    const double *ra = sc->hours + la * sc->n, *rb = sc->hours + lb * sc->n;
+    for (size_t j = 0; j < sc->n; j++) {
+        if (ra[j] < rb[j])
+            return -1;
+        if (ra[j] > rb[j])
+            return 1;
+    }
+    return (la > lb) - (la < lb);
+}
+
+static int rows_equal(const surety_scenarios *sc, size_t la, size_t lb)
+{
+    const double *ra = sc->hours + la * sc->n, *rb = sc->hours + lb * sc->n;
+    for (size_t j = 0; j < sc->n; j++)
+        if (!(ra[j] == rb[j]))
+            return 0;
+    return 1;
+}
+
+/* Identical scenario rows give identical loads for every plan, whatever
+ * the summation order, so they fail or hold together: merging them into
+ * one scenario with weight = multiplicity (the allowance counting weights)
+ * is exact. Equality is tested element by element, never by hash alone. */
+static int merge_scenarios(surety_solver *s)
+{
+    const surety_scenarios *sc = s->sc;
+    size_t N0 = s->N0, n = s->n;
+    size_t *idx = surety_xmalloc(N0, sizeof *idx);
+    size_t *rep = surety_xmalloc(N0, sizeof *rep);
+    if (!idx || !rep) {
+        surety_xfree(idx);
+        surety_xfree(rep);
+        return -1;
+    }
+    for (size_t l = 0; l < N0; l++)
+        idx[l] = l;
+    qsort_r(idx, N0, sizeof *idx, cmp_rows, (void *)sc);
+    for (size_t t = 0; t < N0;) {
+        size_t u = t + 1;
+        while (u < N0 && rows_equal(sc, idx[t], idx[u]))
+            u++;
+        /* idx[t] is the smallest index of the run (ties by index) */
+        for (size_t v = t; v < u; v++)
+            rep[idx[v]] = idx[t];
+        t = u;
+    }
+    size_t N = 0;
+    for (size_t l = 0; l < N0; l++)
+        N += rep[l] == l;
+    s->N = N;
+    s->w = surety_xmalloc(N * n, sizeof *s->w);
+    s->cnt = surety_xcalloc(N, sizeof *s->cnt);
+    size_t *pos = idx; /* reuse: position of a representative */
+    if (!s->w || !s->cnt) {
+        surety_xfree(idx);
+        surety_xfree(rep);
+        return -1;
+    }
+    size_t c = 0;
+    for (size_t l = 0; l < N0; l++) {
+        if (rep[l] == l) {
+            memcpy(s->w + c * n, sc->hours + l * n, n * sizeof *s->w);
+            pos[l] = c++;
+        }
+        s->cnt[pos[rep[l]]]++;
+    }
+    surety_xfree(idx);
+    surety_xfree(rep);
+    return 0;
+}
+
+static int cmp_branch(const void *a, const void *b, void *ctx)
+{
+    const surety_solver *s = ctx;
+    size_t ja = *(const size_t *)a, jb = *(const size_t *)b;
+    /* required jobs first: they constrain everything else */
+    if (s->required[ja] != s->required[jb])
+        return s->required[ja] ? -1 : 1;
+    if (s->p[ja] != s->p[jb])
+        return s->p[ja] > s->p[jb] ? -1 : 1;
+    return (ja > jb) - (ja < jb);
+}
+
+typedef struct eff_ctx {
+    const double *p;
+    const double *row;
+} eff_ctx;
+
+/* p/w descending; w = 0 first (infinite efficiency); ties by index. */
+static int cmp_eff(const void *a, const void *b, void *ctx)
+{
+    const eff_ctx *e = ctx;
+    uint32_t ja = *(const uint32_t *)a, jb = *(const uint32_t *)b;
+    double wa = e->row[ja], wb = e->row[jb];
+    /* compare p_a/w_a with p_b/w_b as p_a*w_b vs p_b*w_a (w >= 0, p > 0) */
+    double x = e->p[ja] * wb, y = e->p[jb] * wa;
+    if (x != y)
+        return x > y ? -1 : 1;
+    return (ja > jb) - (ja < jb);
+}
+
+static void name_list(const surety_solver *s, const unsigned char *mark,
+                      char *buf, size_t len)
+{
+    size_t used = 0, shown = 0, total = 0;
+    buf[0] = '\0';
+    for (size_t j = 0; j < s->n; j++) {
+        if (!mark[j])
+            continue;
+        total++;
+        if (shown < 6 && used + 1 < len) {
+            int w = snprintf(buf + used, len - used, "%s%s",
+                             shown ? ", " : "", s->model->jobs[j].id);
+            if (w > 0)
+                used += (size_t)w < len - used ? (size_t)w : len - used - 1;
+            shown++;
+        }
+    }
+    if (total > shown && used + 1 < len)
+        snprintf(buf + used, len - used, " and %zu more", total - shown);
+}
+
+/* Scenarios (weighted) in which the required jobs that have a single
+ * allowed resource overload it by themselves; such a scenario fails in
+ * every plan. For the joint constraint also the scenarios in which all
+ * required jobs together exceed the summed capacity of every resource any
+ * of them may use. Proves infeasibility when the count exceeds k. */
+static int required_check(surety_solver *s, char *reason, size_t rlen)
+{
+    size_t n = s->n, m = s->m, N = s->N;
+    unsigned char *mark = surety_xcalloc(n, 1);
+    unsigned char *usable = surety_xcalloc(m, 1);
+    double *sum = surety_xcalloc(m, sizeof *sum);
+    int found = 0;
+    if (!mark || !usable || !sum)
+        goto done;
+    for (size_t j = 0; j < n; j++) {
+        if (!s->required[j])
+            continue;
+        for (size_t i = 0; i < m; i++)
+            usable[i] |= s->allowed[j * m + i];
+    }
+    double capsum = 0;
+    for (size_t i = 0; i < m; i++)
+        if (usable[i])
+            capsum += s->cap_hi[i];
+    capsum *= 1 + SURETY_SOLVE_LOAD_TOL;
+
+    size_t *failg = surety_xcalloc(s->G, sizeof *failg);
+    size_t agg = 0;
+    if (!failg)
+        goto done;
+    for (size_t l = 0; l < N; l++) {
+        const double *row = s->w + l * n;
+        double all = 0;
+        memset(sum, 0, m * sizeof *sum);
+        for (size_t j = 0; j < n; j++) {
+            if (!s->required[j])
+                continue;
+            all += row[j];
+            size_t only = m, c = 0;
+            for (size_t i = 0; i < m; i++)
+                if (s->allowed[j * m + i]) {
+                    only = i;
+                    c++;
+                }
+            if (c == 1)
+                sum[only] += row[j];
+        }
+        int failed_joint = 0;
+        for (size_t i = 0; i < m; i++) {
+            if (sum[i] > s->cap_hi[i]) {
+                if (s->separate)
+                    failg[i] += s->cnt[l];
+                else
+                    failed_joint = 1;
+            }
+        }
+        if (!s->separate && (failed_joint || all > capsum))
+            failg[0] += s->cnt[l];
+        if (!s->separate && all > capsum)
+            agg += s->cnt[l];
+    }
+    for (size_t g = 0; g < s->G && !found; g++) {
+        if (failg[g] <= s->k)
+            continue;
+        for (size_t j = 0; j < n; j++)
+            mark[j] = s->required[j];
+        char names[512];
+        name_list(s, mark, names, sizeof names);
+        if (s->separate)
+            snprintf(reason, rlen,
+                     "required jobs %s overload resource %s in %zu of %zu "
+                     "scenarios; at most %zu may fail",
+                     names, s->model->resources[g].id, failg[g], s->N0, s->k);
+        else
+            snprintf(reason, rlen,
+                     "required jobs %s overload the resources allowed to "
+                     "them in %zu of %zu scenarios; at most %zu may fail",
+                     names, failg[g], s->N0, s->k);
+        found = 1;
+    }
+    (void)agg;
+    surety_xfree(failg);
+done:
+    surety_xfree(mark);
+    surety_xfree(usable);
+    surety_xfree(sum);
+    return found;
+}
+
+surety_code surety_presolve_run(surety_solver *s, char *reason,
+                                size_t reason_len, int *infeasible,
+                                surety_error *err)
+{
+    const surety_model *model = s->model;
+    const surety_scenarios *sc = s->sc;
+    size_t n = model->n, m = model->m;
+    *infeasible = 0;
+    reason[0] = '\0';
+    s->n = n;
+    s->m = m;
+    s->N0 = sc->N;
+    s->k = surety_allowance(model->risk, sc->N);
+    s->separate = model->constraint == SURETY_SEPARATE;
+    s->G = s->separate ? m : 1;
+
+    s->p = surety_xcalloc(n, sizeof *s->p);
+    s->cap = surety_xmalloc(m, sizeof *s->cap);
+    s->cap_hi = surety_xmalloc(m, sizeof *s->cap_hi);
+    s->allowed = surety_xcalloc(n * m, 1);
+    s->required = surety_xcalloc(n, 1);
+    s->cand = surety_xcalloc(n, 1);
+    s->order = surety_xmalloc(n, sizeof *s->order);
+    s->rclass = surety_xmalloc(m, sizeof *s->rclass);
+    if (!s->p || !s->cap || !s->cap_hi || !s->allowed || !s->required ||
+        !s->cand || !s->order || !s->rclass || merge_scenarios(s) != 0)
+        goto oom;
+
+    /* the job's value: its mean profit, summed as plan.c does */
+    for (size_t j = 0; j < n; j++) {
+        double t = 0;
+        for (size_t l = 0; l < s->N0; l++)
+            t += sc->profit[l * n + j];
+        s->p[j] = t / (double)s->N0;
+        s->pscale += fabs(s->p[j]);
+    }
+    for (size_t i = 0; i < m; i++) {
+        s->cap[i] = model->resources[i].capacity /
+                    model->resources[i].hours_factor;
+        s->cap_hi[i] = s->cap[i] * (1 + SURETY_SOLVE_LOAD_TOL);
+    }
+
+    /* (job, resource) pairs that overload the resource on their own in
+     * more than k scenarios can never be used (METHODS.md s.7 rule 2 at
+     * the root). Only clear overloads count, so the pruning is safe. */
+    for (size_t j = 0; j < n; j++) {
+        s->required[j] = model->jobs[j].required != 0;
+        int any_model = 0;
+        size_t least = s->N0;
+        for (size_t i = 0; i < m; i++) {
+            if (!model->jobs[j].allowed[i])
+                continue;
+            any_model = 1;
+            size_t over = 0;
+            for (size_t l = 0; l < s->N; l++)
+                if (s->w[l * n + j] > s->cap_hi[i])
+                    over += s->cnt[l];
+            if (over <= s->k)
+                s->allowed[j * m + i] = 1;
+            if (over < least)
+                least = over;
+        }
+        int any = 0;
+        for (size_t i = 0; i < m; i++)
+            any |= s->allowed[j * m + i];
+        if (s->required[j] && !any && !*infeasible) {
+            *infeasible = 1;
+            if (!any_model)
+                snprintf(reason, reason_len,
+                         "required job %s is allowed in no resource",
+                         model->jobs[j].id);
+            else
+                snprintf(reason, reason_len,
+                         "required job %s alone overloads every allowed "
+                         "resource in at least %zu of %zu scenarios; at most "
+                         "%zu may fail",
+                         model->jobs[j].id, least, s->N0, s->k);
+        }
+        s->cand[j] = !s->required[j] && any && s->p[j] > 0;
+    }
+    if (!*infeasible && required_check(s, reason, reason_len))
+        *infeasible = 1;
+
+    s->wt = surety_xmalloc(n * s->N, sizeof *s->wt);
+    s->anyres = surety_xcalloc(n, 1);
+    if (!s->wt || !s->anyres)
+        goto oom;
+    for (size_t l = 0; l < s->N; l++)
+        for (size_t j = 0; j < n; j++)
+            s->wt[j * s->N + l] = s->w[l * n + j];
+    for (size_t j = 0; j < n; j++) {
+        s->anyres[j] = 1;
+        for (size_t i = 0; i < m; i++)
+            s->anyres[j] &= s->allowed[j * m + i];
+    }
+
+    /* branching order: every job that is not fixed out */
+    s->nb = 0;
+    s->ncand = 0;
+    for (size_t j = 0; j < n; j++) {
+        if (s->required[j] || s->cand[j])
+            s->order[s->nb++] = j;
+        s->ncand += s->cand[j];
+    }
+    qsort_r(s->order, s->nb, sizeof *s->order, cmp_branch, s);
+
+    /* per scenario, candidates by efficiency p_j / w_lj, sorted once here
+     * so that each node's fractional knapsacks are linear scans */
+    s->eff = surety_xmalloc(s->N * (s->ncand ? s->ncand : 1), sizeof *s->eff);
+    if (!s->eff)
+        goto oom;
+    for (size_t l = 0; l < s->N; l++) {
+        uint32_t *e = s->eff + l * s->ncand;
+        size_t c = 0;
+        for (size_t j = 0; j < n; j++)
+            if (s->cand[j])
+                e[c++] = (uint32_t)j;
+        eff_ctx ctx = {s->p, s->w + l * n};
+        qsort_r(e, c, sizeof *e, cmp_eff, &ctx);
+    }
+
+    /* identical resources (same capacity, factor and allowed jobs) are
+     * interchangeable: the search opens only the first empty one */
+    for (size_t i = 0; i < m; i++) {
+        s->rclass[i] = (int)i;
+        for (size_t h = 0; h < i; h++) {
+            if (s->rclass[h] != (int)h)
+                continue;
+            if (model->resources[h].capacity != model->resources[i].capacity ||
+                model->resources[h].hours_factor !=
+                    model->resources[i].hours_factor)
+                continue;
+            int same = 1;
+            for (size_t j = 0; j < n && same; j++)
+                same = s->allowed[j * m + h] == s->allowed[j * m + i];
+            if (same) {
+                s->rclass[i] = (int)h;
+                break;
+            }
+        }
+    }
+    return SURETY_OK;
+oom:
+    surety_error_set(err, NULL, 0, 0, NULL,
+                     "out of memory while preparing the solver (%zu jobs, "
+                     "%zu resources, %zu scenarios)", n, m, sc->N);
+    return SURETY_EINTERNAL;
+}
+
+void surety_presolve_free(surety_solver *s)
+{
+    surety_xfree(s->w);
+    surety_xfree(s->wt);
+    surety_xfree(s->anyres);
+    surety_xfree(s->cnt);
+    surety_xfree(s->cap);
+    surety_xfree(s->cap_hi);
+    surety_xfree(s->p);
+    surety_xfree(s->allowed);
+    surety_xfree(s->required);
+    surety_xfree(s->cand);
+    surety_xfree(s->order);
+    surety_xfree(s->eff);
+    surety_xfree(s->rclass);
+}

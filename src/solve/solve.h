@@ -1,0 +1,156 @@
+/* solve.h - the solver state shared by the branch-and-bound modules
+ * (presolve, bound, heur, tree) of src/solve/.
+ * SPDX-License-Identifier: MIT */
+#ifndef SURETY_SOLVE_H
+#define SURETY_SOLVE_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "model.h"
+#include "plan.h"
+#include "sample.h"
+#include "surety.h"
+
+/* Relative slack of the "clearly overloaded" test used for pruning. The
+ * search keeps loads incrementally (sums in another order than the
+ * canonical recount of plan.h), so a scenario is counted as overloaded by
+ * the search only when it exceeds capacity by this much; borderline cases
+ * stay live (a weaker, still valid bound) and the exact recount decides. */
+#define SURETY_SOLVE_LOAD_TOL 1e-9
+
+/* Job state during the search. */
+enum { JOB_FREE = -2, JOB_OUT = -1 };
+
+/* Dead flags of a (group, scenario): live, overloaded by the committed
+ * load, or fixed as failed by the quantile bound (METHODS.md s.7 rule 4). */
+enum { LIVE = 0, DEAD_LOAD = 1, DEAD_BOUND = 2 };
+
+typedef struct surety_solver surety_solver;
+
+/* One search depth's undo record (the trail keeps the rest). */
+typedef struct solve_frame {
+    size_t trail_mark;   /* trail length before this depth's changes */
+    long res;            /* resource whose load column was saved, or -1 */
+    size_t job;          /* job decided at this depth */
+    double fixed_profit; /* P_A before */
+    double req_profit;   /* profit of undecided required jobs before */
+    size_t req_left;     /* undecided required jobs before */
+} solve_frame;
+
+struct surety_solver {
+    const surety_model *model;
+    const surety_scenarios *sc;
+    const surety_solve_options *opt;
+
+    /* ---- problem after presolve ---- */
+    size_t n, m;         /* jobs, resources */
+    size_t N0;           /* scenarios as given */
+    size_t N;            /* distinct scenarios after merging duplicates */
+    size_t k;            /* allowance floor(eps*N0), counts given scenarios */
+    int separate;        /* 1: a chance constraint per resource */
+    size_t G;            /* constraint groups: 1 (joint) or m (separate) */
+    double *w;           /* N*n base hours, scenario-major, merged rows */
+    double *wt;          /* n*N the same, job-major (load updates) */
+    unsigned char *anyres; /* n: allowed in every resource */
+    unsigned *cnt;       /* N multiplicities (sum = N0) */
+    double *cap;         /* m capacities in base hours, C_i / f_i */
+    double *cap_hi;      /* m: above this a load is clearly overloaded */
+    double *p;           /* n mean profits (sum over l / N0) */
+    unsigned char *allowed; /* n*m allowed pairs after presolve */
+    unsigned char *required; /* n */
+    unsigned char *cand; /* n: optional job worth taking (p > 0, allowed) */
+    size_t *order;       /* nb jobs to branch on, in branching order */
+    size_t nb;
+    size_t ncand;        /* candidate jobs */
+    uint32_t *eff;       /* N*ncand: per scenario, candidates by p/w desc */
+    int *rclass;         /* m: identical-resource class (symmetry) */
+    double pscale;       /* sum |p_j|, for absolute tolerances */
+
+    /* ---- search state ---- */
+    long *state;         /* n: JOB_FREE, JOB_OUT or resource */
+    size_t *nin;         /* m: jobs placed in resource i */
+    double *load;        /* m*N, resource-major: base hours placed */
+    unsigned char *dead; /* G*N flags */
+    size_t *dead_w;      /* G: weight of dead scenarios */
+    size_t *trail;       /* (g*N + l) << 2 | old flag */
+    size_t trail_len, trail_cap;
+    double *saved_load;  /* (nb+1)*N: load column saved per depth */
+    size_t *saved_dead_w; /* (nb+1)*G */
+    solve_frame *frames; /* nb+1 */
+    double fixed_profit; /* P_A: profit of placed jobs */
+    double req_profit;   /* profit of undecided required jobs */
+    size_t req_left;
+    /* bound scratch */
+    double *ub;          /* N values */
+    unsigned *ubw;       /* N weights */
+    size_t *ubl;         /* N scenario ids */
+    double *kn;          /* G*N knapsack values of the last evaluation */
+    double *q;           /* G group quantiles of the last evaluation */
+
+    /* heuristic scratch (heur.c) */
+    double *hload;       /* m*N resource-major loads, base hours */
+    unsigned char *hover; /* m*N: resource overloaded (capacity test) */
+    unsigned *hov;       /* G*N: overloaded resources of the group */
+    size_t *hfail;       /* G: weight of failed scenarios */
+    double *htot;        /* m: total load over scenarios, for tie-breaks */
+    double *hkey;        /* n: greedy key p_j / (N-k)-th smallest hours */
+    size_t *hord;        /* ncand candidates by hkey desc */
+    size_t *hordp;       /* ncand candidates by p desc */
+    long *hplan;         /* n */
+    long *hsave;         /* n */
+    long *tplan, *tfix;  /* n each: plans built by the tree */
+
+    /* ---- incumbent ---- */
+    int have_inc;
+    double inc;          /* objective of the incumbent (canonical sum) */
+    long *inc_plan;      /* n */
+    size_t inc_fit;
+
+    /* ---- limits and statistics ---- */
+    double t0;           /* start, seconds on the monotonic clock */
+    double last_log;
+    unsigned long log_lines;
+    long nodes;
+    int stop;            /* 0 running, else a surety_stop + 1 */
+    double root_bound;
+    double *open_bound;  /* nb+1: best bound of unvisited children per depth */
+    size_t depth;
+};
+
+/* presolve.c: fills the problem part of the state from model and sc.
+ * Returns SURETY_OK, or an error; `reason` receives an infeasibility
+ * sentence when the model is proven infeasible already (then *infeasible
+ * is set). */
+surety_code surety_presolve_run(surety_solver *s, char *reason,
+                                size_t reason_len, int *infeasible,
+                                surety_error *err);
+void surety_presolve_free(surety_solver *s);
+
+/* bound.c: quantile bound of the current node with scenario fixing
+ * (METHODS.md s.7 rules 1, 3, 4). Returns the bound, or -INFINITY when the
+ * node is pruned by more than k dead scenarios. Pushes fixings onto the
+ * trail. `cutoff` is the value a completion must exceed to matter. */
+double surety_bound_node(surety_solver *s, double cutoff);
+
+/* heur.c: greedy insertion with a violation budget and local search
+ * (METHODS.md s.8). Completes the partial assignment `fixed` (n entries,
+ * JOB_FREE for open jobs) into plan (n entries); returns 1 when the plan
+ * satisfies the allowance by the heuristic's own count. */
+int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
+                         int polish);
+
+void surety_heur_free(surety_solver *s);
+
+/* solve.c: offers a candidate plan (n entries); it is re-counted exactly
+ * and becomes the incumbent when feasible and better. Returns 1 when
+ * accepted. */
+int surety_solve_offer(surety_solver *s, const long *plan);
+double surety_solve_now(void);
+void surety_solve_log_progress(surety_solver *s, int force, char mark);
+
+/* tree.c: the depth-first branch and bound. Returns the best bound of the
+ * open part of the tree when stopped early, or -INFINITY when finished. */
+double surety_tree_search(surety_solver *s);
+
+#endif

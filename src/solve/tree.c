@@ -1,0 +1,219 @@
+/* tree.c - depth-first branch and bound on job placements with a trail
+ * (undo stack) for loads and dead scenarios (METHODS.md s.7).
+ * SPDX-License-Identifier: MIT */
+#include <math.h>
+#include <string.h>
+
+#include "solve/solve.h"
+
+static size_t group_of(const surety_solver *s, size_t i)
+{
+    return s->separate ? i : 0;
+}
+
+/* Absolute slack under which a bound counts as not beating the incumbent:
+ * the user's relative gap, and never below rounding noise of the sums. */
+static double cutoff_of(const surety_solver *s)
+{
+    if (!s->have_inc)
+        return -INFINITY;
+    double tol = s->opt->gap * fabs(s->inc);
+    double noise = 1e-12 * (s->pscale + 1);
+    return s->inc + (tol > noise ? tol : noise);
+}
+
+/* Decides job j at depth d: c >= 0 places it in resource c, JOB_OUT
+ * rejects it. Returns 0 when the node is already infeasible (more than k
+ * scenarios clearly overloaded in a group). O(N) work. */
+static int apply(surety_solver *s, size_t d, size_t j, long c)
+{
+    size_t N = s->N, G = s->G;
+    solve_frame *f = &s->frames[d];
+    f->trail_mark = s->trail_len;
+    f->res = c;
+    f->job = j;
+    f->fixed_profit = s->fixed_profit;
+    f->req_profit = s->req_profit;
+    f->req_left = s->req_left;
+    memcpy(s->saved_dead_w + d * G, s->dead_w, G * sizeof *s->dead_w);
+    s->state[j] = c;
+    if (s->required[j]) {
+        s->req_left--;
+        s->req_profit -= s->p[j];
+    }
+    if (c < 0)
+        return 1;
+    size_t i = (size_t)c, g = group_of(s, i);
+    s->fixed_profit += s->p[j];
+    s->nin[i]++;
+    double *ld = s->load + i * N;
+    memcpy(s->saved_load + d * N, ld, N * sizeof *ld);
+    const double *wj = s->wt + j * N;
+    unsigned char *dead = s->dead + g * N;
+    double hi = s->cap_hi[i];
+    for (size_t l = 0; l < N; l++) {
+        double x = ld[l] + wj[l];
+        ld[l] = x;
+        if (x > hi && dead[l] != DEAD_LOAD) {
+            if (dead[l] == LIVE)
+                s->dead_w[g] += s->cnt[l];
+            s->trail[s->trail_len++] = (g * N + l) << 2 | dead[l];
+            dead[l] = DEAD_LOAD;
+        }
+    }
+    return s->dead_w[g] <= s->k;
+}
+
+static void undo(surety_solver *s, size_t d)
+{
+    size_t N = s->N, G = s->G;
+    solve_frame *f = &s->frames[d];
+    while (s->trail_len > f->trail_mark) {
+        size_t e = s->trail[--s->trail_len];
+        s->dead[e >> 2] = (unsigned char)(e & 3);
+    }
+    memcpy(s->dead_w, s->saved_dead_w + d * G, G * sizeof *s->dead_w);
+    if (f->res >= 0) {
+        memcpy(s->load + (size_t)f->res * N, s->saved_load + d * N,
+               N * sizeof *s->load);
+        s->nin[f->res]--;
+    }
+    s->state[f->job] = JOB_FREE;
+    s->fixed_profit = f->fixed_profit;
+    s->req_profit = f->req_profit;
+    s->req_left = f->req_left;
+}
+
+/* The partial plan with every undecided job rejected is itself a plan when
+ * no required job is open; offer it when it would beat the incumbent and
+ * the search's own count keeps every group within the allowance. */
+static void try_partial(surety_solver *s)
+{
+    if (s->req_left || !(s->fixed_profit > cutoff_of(s)))
+        return;
+    for (size_t g = 0; g < s->G; g++) {
+        size_t w = 0;
+        for (size_t l = 0; l < s->N; l++)
+            if (s->dead[g * s->N + l] == DEAD_LOAD)
+                w += s->cnt[l];
+        if (w > s->k)
+            return;
+    }
+    long *plan = s->tplan;
+    for (size_t j = 0; j < s->n; j++)
+        plan[j] = s->state[j] >= 0 ? s->state[j] : JOB_OUT;
+    if (surety_solve_offer(s, plan))
+        surety_solve_log_progress(s, 1, '*');
+}
+
+static int out_of_limits(surety_solver *s)
+{
+    const surety_solve_options *o = s->opt;
+    if (s->stop)
+        return 1;
+    if (o->interrupt && *o->interrupt)
+        s->stop = SURETY_STOP_INTERRUPT + 1;
+    else if (o->node_limit > 0 && s->nodes >= o->node_limit)
+        s->stop = SURETY_STOP_NODES + 1;
+    else if (o->time_limit_s > 0 &&
+             surety_solve_now() - s->t0 >= o->time_limit_s)
+        s->stop = SURETY_STOP_TIME + 1;
+    return s->stop != 0;
+}
+
+typedef struct child {
+    long c;
+    double b;
+} child;
+
+/* Node at depth d (jobs order[0..d-1] decided), already evaluated. */
+static void dive(surety_solver *s, size_t d, double node_bound)
+{
+    s->open_bound[d] = node_bound;
+    if (out_of_limits(s))
+        return;
+    s->nodes++;
+    s->depth = d;
+    surety_solve_log_progress(s, 0, ' ');
+    if (d == s->nb) {
+        s->open_bound[d] = -INFINITY;
+        return;
+    }
+    if ((s->nodes & 1023) == 0) {
+        /* periodic greedy completion of this node (METHODS.md s.8) */
+        memcpy(s->tfix, s->state, s->n * sizeof *s->tfix);
+        if (surety_heur_complete(s, s->tfix, s->tplan, 0) &&
+            surety_solve_offer(s, s->tplan))
+            surety_solve_log_progress(s, 1, 'H');
+    }
+    size_t j = s->order[d], m = s->m;
+    child ch[m + 1];
+    size_t nc = 0;
+    for (size_t i = 0; i < m; i++) {
+        if (!s->allowed[j * m + i])
+            continue;
+        /* symmetry: among identical empty resources only the first */
+        int skip = 0;
+        if (s->nin[i] == 0)
+            for (size_t h = 0; h < i && !skip; h++)
+                skip = s->rclass[h] == s->rclass[i] && s->nin[h] == 0 &&
+                       s->allowed[j * m + h];
+        if (!skip)
+            ch[nc++].c = (long)i;
+    }
+    if (!s->required[j])
+        ch[nc++].c = JOB_OUT;
+    /* evaluate every child, then visit the best bound first */
+    for (size_t t = 0; t < nc; t++) {
+        double b = -INFINITY;
+        if (apply(s, d, j, ch[t].c))
+            b = surety_bound_node(s, cutoff_of(s));
+        undo(s, d);
+        ch[t].b = b;
+    }
+    for (size_t t = 1; t < nc; t++) {
+        child x = ch[t];
+        size_t u = t;
+        while (u > 0 && ch[u - 1].b < x.b) {
+            ch[u] = ch[u - 1];
+            u--;
+        }
+        ch[u] = x;
+    }
+    for (size_t t = 0; t < nc; t++) {
+        double cut = cutoff_of(s);
+        if (!(ch[t].b > cut))
+            break;
+        s->open_bound[d] = t + 1 < nc ? ch[t + 1].b : -INFINITY;
+        if (apply(s, d, j, ch[t].c)) {
+            double b = surety_bound_node(s, cut);
+            if (b > cut) {
+                try_partial(s);
+                if (b > cutoff_of(s))
+                    dive(s, d + 1, b);
+            }
+        }
+        undo(s, d);
+        if (s->stop)
+            return; /* keep open_bound[d] for the reported bound */
+    }
+    s->open_bound[d] = -INFINITY;
+}
+
+double surety_tree_search(surety_solver *s)
+{
+    double cut = cutoff_of(s);
+    double b = surety_bound_node(s, cut);
+    s->root_bound = b;
+    if (b > cut) {
+        try_partial(s);
+        dive(s, 0, b);
+    }
+    if (!s->stop)
+        return -INFINITY;
+    double open = -INFINITY;
+    for (size_t d = 0; d <= s->nb; d++)
+        if (s->open_bound[d] > open)
+            open = s->open_bound[d];
+    return open;
+}
