@@ -10,8 +10,10 @@
 #include "surety.h"
 
 /* Hours distribution of one job. Every kind may be truncated to
- * [lo, hi] (lo = -INFINITY / hi = +INFINITY when not given); truncation
- * is applied exactly by the inverse-CDF method, never by rejection. */
+ * [lo, hi] (lo = -INFINITY / hi = +INFINITY when not given, except that a
+ * normal without a stated min has lo = 0: hours are never negative);
+ * truncation is applied exactly by the inverse-CDF method, never by
+ * rejection. */
 typedef enum surety_dist_kind {
     SURETY_DIST_FIXED = 0,      /* a = value (no uncertainty) */
     SURETY_DIST_NORMAL = 1,     /* a = mean, b = sd (> 0) */
@@ -103,6 +105,12 @@ void surety_model_destroy(surety_model *model);
 surety_code surety_table_read(const surety_model *model, const char *path,
                               surety_table **out, surety_error *err);
 void surety_table_free(surety_table *t);
+
+/* Index of the job (resource) whose id is nearest to `id` by edit
+ * distance and near enough to be a likely typo, or -1; for "did you mean"
+ * hints. model_json.c. */
+long surety_model_nearest_job(const surety_model *model, const char *id);
+long surety_model_nearest_resource(const surety_model *model, const char *id);
 
 /* Fills an error record (printf-style message). */
 void surety_error_set(surety_error *err, const char *file, int line,
