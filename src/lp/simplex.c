@@ -133,6 +133,12 @@ static double nonbasic_value(const surety_lp *lp, size_t j)
     }
 }
 
+static void axpy(size_t len, double f, const double *src, double *dst)
+{
+    for (size_t j = 0; j < len; j++)
+        dst[j] += f * src[j];
+}
+
 static int grow_rows(surety_lp *lp, size_t need)
 {
     if (need <= lp->mcap)
@@ -294,9 +300,18 @@ static void btran_row(surety_lp *lp, size_t r)
             rho[lp->rowN[p]] = z[p];
         rho[r - n] = -1.0;
     }
-    surety_dense_gemv(1, m, n, 1.0, lp->A, n, rho, 0.0, lp->alpha);
+    /* rho lives on R_N (and row r): k + 1 rows of A instead of m */
+    double *al = lp->alpha;
+    memset(al, 0, n * sizeof *al);
+    for (size_t p = 0; p < k; p++) {
+        double f = rho[lp->rowN[p]];
+        if (f != 0.0)
+            axpy(n, f, lp->A + lp->rowN[p] * n, al);
+    }
+    if (r >= n)
+        axpy(n, -1.0, lp->A + (r - n) * n, al);
     for (size_t i = 0; i < m; i++)
-        lp->alpha[n + i] = -rho[i];
+        al[n + i] = -rho[i];
 }
 
 /* Basis change: q enters, r leaves. Needs dv from ftran(q) and, when r
