@@ -671,17 +671,23 @@ static int check_window(reader *r, json_t *h, surety_dist *d)
     }
     if (overlap && mass >= MIN_TRUNC_MASS)
         return 0;
-    push_key(r, json_object_get(h, "min") ? "min" : "max");
+    int has_min = json_object_get(h, "min") != NULL;
+    int has_max = json_object_get(h, "max") != NULL;
+    char window[96];
+    if (has_min && has_max)
+        snprintf(window, sizeof window, "[min, max] = [%g, %g]", lo, hi);
+    else if (has_min)
+        snprintf(window, sizeof window, "min = %g", lo);
+    else
+        snprintf(window, sizeof window, "max = %g", hi);
+    push_key(r, has_min ? "min" : "max");
     int rc;
     if (!overlap)
-        rc = fail(r, AT_VALUE,
-                  "the window [min, max] = [%g, %g] leaves none of the %s "
-                  "distribution", lo, hi, dist_names[d->kind]);
+        rc = fail(r, AT_VALUE, "%s leaves none of the %s distribution",
+                  window, dist_names[d->kind]);
     else
-        rc = fail(r, AT_VALUE,
-                  "the window [min, max] = [%g, %g] keeps almost none of the "
-                  "%s distribution (probability %.3g)", lo, hi,
-                  dist_names[d->kind], mass);
+        rc = fail(r, AT_VALUE, "%s keeps almost none of the %s distribution "
+                  "(probability %.3g)", window, dist_names[d->kind], mass);
     pop(r);
     return rc;
 }

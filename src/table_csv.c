@@ -25,7 +25,9 @@ typedef struct tparse {
     const surety_model *model;
     const char *path;
     int line, col;               /* 1-based position of the byte being fed */
-    int pending;                 /* a field ended; the next one not begun */
+    int pending;                 /* the next field has not begun: 1 after a
+                                    delimiter (an empty cell may start at a
+                                    newline), 2 after a record */
     int field_line, field_col;   /* where the current field began */
     int rec_line;                /* where the current record began */
     size_t record;               /* 0 while reading the header */
@@ -209,7 +211,7 @@ static void on_record(int c, void *data)
         end_row(t);
     t->record++;
     t->field = 0;
-    t->pending = 1;
+    t->pending = 2;
 }
 
 static void tparse_free(tparse *t)
@@ -244,7 +246,7 @@ surety_code surety_table_read(const surety_model *model, const char *path,
     t.model = model;
     t.path = path;
     t.line = t.col = 1;
-    t.pending = 1;
+    t.pending = 2;
     surety_vec_init(&t.names, sizeof(char *));
     surety_vec_init(&t.hours, sizeof(double));
     surety_vec_init(&t.profit, sizeof(double));
@@ -270,15 +272,17 @@ surety_code surety_table_read(const surety_model *model, const char *path,
      * sit, and this way every callback knows the line and column. */
     for (; pos < len && !t.failed; pos++) {
         unsigned char c = (unsigned char)buf[pos];
-        if (t.pending && c != ' ' && c != '\t' && c != '\r' && c != '\n') {
+        int skip = c == ' ' || c == '\t'
+                   || (t.pending == 2 && (c == '\r' || c == '\n'));
+        if (t.pending && !skip) {
             t.pending = 0;
             t.field_line = t.line;
             t.field_col = t.col;
         }
         if (csv_parse(&p, buf + pos, 1, on_field, on_record, &t) != 1)
-            tfail(&t, t.line, t.col, NULL, "malformed CSV (%s): a quote "
-                  "inside an unquoted cell, or text after a closing quote",
-                  csv_strerror(csv_error(&p)));
+            tfail(&t, t.line, t.col, NULL, csv_error(&p) == CSV_EPARSE
+                  ? "malformed CSV: a quote inside an unquoted cell, or text "
+                    "after a closing quote" : "out of memory");
         if (c == '\n') {
             t.line++;
             t.col = 1;
