@@ -584,6 +584,9 @@ surety_code surety_frontier(const surety_model *model, const double *risks,
                             size_t nrisks, const surety_frontier_options *opt,
                             surety_frontier_report *out, surety_error *err);
 void surety_frontier_report_free(surety_frontier_report *rep);
+/* Writes the frontier as CSV (one row per level, header first), atomically. */
+surety_code surety_frontier_write_csv(const surety_frontier_report *rep,
+                                      const char *path, surety_error *err);
 
 /* Charts (cairo; when built without it, these fail with SURETY_EUSAGE and
  * surety_chart_available() is 0). Files are written atomically. */

@@ -7,6 +7,7 @@
 #include <time.h>
 
 #include "alloc.h"
+#include "fileio.h"
 #include "model.h"
 
 static double now_s(void)
@@ -191,4 +192,29 @@ fail:
     surety_xfree(order);
     surety_frontier_report_free(out);
     return code;
+}
+
+surety_code surety_frontier_write_csv(const surety_frontier_report *rep, const char *path,
+                                      surety_error *err)
+{
+    if (!rep || !path) {
+        surety_error_set(err, NULL, 0, 0, NULL, "surety_frontier_write_csv: report and path needed");
+        return SURETY_EUSAGE;
+    }
+    surety_outfile f;
+    surety_code code = surety_outfile_open(&f, path, err);
+    if (code)
+        return code;
+    fprintf(f.fp, "risk,allowance,scenarios,status,profit_in_sample,bound,fresh_scenarios,"
+                  "fresh_fit,reliability,reliability_lo,reliability_hi,reliability_lower,"
+                  "confidence,profit_mean,overload_hours_mean,solve_seconds\n");
+    for (size_t p = 0; p < rep->npoints; p++) {
+        const surety_frontier_point *pt = &rep->point[p];
+        fprintf(f.fp, "%.17g,%zu,%zu,%s,%.17g,%.17g,%zu,%zu,%.17g,%.17g,%.17g,%.17g,%.17g,"
+                      "%.17g,%.17g,%.6f\n",
+                pt->risk, pt->k, rep->N, surety_status_name(pt->status), pt->objective,
+                pt->bound, pt->M, pt->fit, pt->reliability, pt->lo, pt->hi, pt->lower,
+                rep->confidence, pt->profit_mean, pt->overload_hours, pt->solve_seconds);
+    }
+    return surety_outfile_commit(&f, err);
 }

@@ -52,5 +52,9 @@ int cmd_sample(int argc, char **argv);
 int cmd_check(int argc, char **argv);
 int cmd_export(int argc, char **argv);
 int cmd_solve(int argc, char **argv);
+int cmd_advise(int argc, char **argv);
+int cmd_assure(int argc, char **argv);
+int cmd_bounds(int argc, char **argv);
+int cmd_frontier(int argc, char **argv);
 
 #endif

@@ -140,6 +140,10 @@ static const struct command {
     {"check", cmd_check, "check a plan in sample and on fresh scenarios"},
     {"sample", cmd_sample, "write the scenarios of a model as a CSV table"},
     {"export", cmd_export, "write the sample approximation as an MPS file"},
+    {"advise", cmd_advise, "scenario counts that published theory asks for"},
+    {"assure", cmd_assure, "grow the sample until a plan is certified on fresh scenarios"},
+    {"bounds", cmd_bounds, "confidence interval for the true optimal profit"},
+    {"frontier", cmd_frontier, "profit against reliability over several risk levels"},
 };
 
 static void usage(FILE *fp)
