@@ -94,24 +94,34 @@ def markdown(rows, meta):
             line += [cell(r) if r else "-", ratio(r, sur) if (r and sur) else "-"]
         out.append("| " + " | ".join(line) + " |")
     out.append("")
-    out.append("| solver | runs | proven optimal | median time s | median ratio to surety |")
-    out.append("|---|---|---|---|---|")
+    out.append("| solver | runs | proven optimal | median wall s | median CPU s "
+               "| median wall ratio to surety | median CPU ratio | median peak MB |")
+    out.append("|---|---|---|---|---|---|---|---|")
     for s in solvers:
         rs = [r for r in rows if r["solver"] == s]
-        ratios = []
+        ratios, cratios = [], []
         for r in rs:
             sur = by_inst[r["instance"]].get("surety")
             if sur and sur["wall_s"] > 0:
                 ratios.append(r["wall_s"] / sur["wall_s"])
-        out.append("| %s | %d | %d | %.3g | %s |" % (
+            # CPU ratios with a 10 ms floor: GNU time counts in 10 ms ticks
+            if sur and sur.get("cpu_s") is not None and r.get("cpu_s") is not None:
+                cratios.append(max(r["cpu_s"], 0.01) / max(sur["cpu_s"], 0.01))
+        cpus = [r["cpu_s"] for r in rs if r.get("cpu_s") is not None]
+        mems = [r["mem_mb"] for r in rs if r.get("mem_mb") is not None]
+        out.append("| %s | %d | %d | %.3g | %s | %s | %s | %s |" % (
             s, len(rs), sum(r["status"] == "optimal" for r in rs),
             statistics.median(r["wall_s"] for r in rs) if rs else float("nan"),
-            "%.3g" % statistics.median(ratios) if ratios and s != "surety" else "-"))
+            "%.3g" % statistics.median(cpus) if cpus else "-",
+            "%.3g" % statistics.median(ratios) if ratios and s != "surety" else "-",
+            "%.3g" % statistics.median(cratios) if cratios and s != "surety" else "-",
+            "%.3g" % statistics.median(mems) if mems else "-"))
     return "\n".join(out) + "\n"
 
 
 FIELDS = ["instance", "n", "m", "N", "eps", "seed", "solver", "status", "objective", "bound",
-          "gap", "nodes", "wall_s", "mem_mb", "fit", "required_fit", "order"]
+          "gap", "nodes", "wall_s", "cpu_s", "solver_s", "mem_mb", "fit", "required_fit",
+          "order"]
 
 
 def write_csv(rows, path):

@@ -44,6 +44,7 @@ import mpsread  # noqa: E402
 import report  # noqa: E402
 
 REL_TOL = 1e-6       # agreement between objectives, relative (the brief's tolerance)
+MPS_TOL = 1e-9       # row violation allowed when checking a plan against an MPS file, relative
 GAP = 1e-9           # relative gap every solver is asked to close (surety's default)
 PEERS = ("cbc", "glpk", "highs")
 FORMS = ("plain", "strengthened")
@@ -65,7 +66,9 @@ TIME_PROG = "/usr/bin/time"
 
 
 def measure(cmd, stdout_path, hard_timeout_s, env=None, cwd=None):
-    """Runs cmd alone; returns (exit code or -signal, wall seconds, peak RSS in MB, killed).
+    """Runs cmd alone; returns (exit code or -signal, wall seconds, peak RSS in MB, killed,
+    CPU seconds user+system). On a shared machine CPU seconds of a single-threaded solver vary
+    less than wall seconds; both are kept.
 
     Peak memory: GNU time's %M, the ru_maxrss that wait4 reports for the solver process.
     It is not taken from os.wait4 on a child of this Python process: Linux keeps the larger
@@ -74,7 +77,7 @@ def measure(cmd, stdout_path, hard_timeout_s, env=None, cwd=None):
     /usr/bin/time is a small C program, so the floor it adds is about 1-2 MB.
     The hard timeout is a safety net beyond the solver's own limit (SIGKILL to the group)."""
     tfile = stdout_path + ".time"
-    full = [TIME_PROG, "-f", "%M", "-o", tfile] + list(cmd) if os.access(TIME_PROG, os.X_OK) \
+    full = [TIME_PROG, "-f", "%M %U %S", "-o", tfile] + list(cmd) if os.access(TIME_PROG, os.X_OK) \
         else list(cmd)
     with open(stdout_path, "wb") as out, open(stdout_path + ".err", "wb") as err:
         t0 = time.perf_counter()
@@ -97,7 +100,7 @@ def measure(cmd, stdout_path, hard_timeout_s, env=None, cwd=None):
         wall = time.perf_counter() - t0
         p.returncode = os.waitstatus_to_exitcode(status)
     rc = p.returncode
-    mem = None
+    mem = cpu = None
     if full[0] == TIME_PROG:
         lines = read_text(tfile).split("\n")
         # GNU time prints "Command exited with non-zero status N" before the format line
@@ -108,10 +111,11 @@ def measure(cmd, stdout_path, hard_timeout_s, env=None, cwd=None):
             m = re.match(r"Command terminated by signal (\d+)", line)
             if m:
                 rc = -int(m.group(1))
-        vals = [x for x in lines if x.strip().isdigit()]
+        vals = [x.split() for x in lines if re.match(r"^\d+ [\d.]+ [\d.]+$", x.strip())]
         if vals:
-            mem = int(vals[-1]) / 1024.0
-    return rc, wall, mem, bool(killed)
+            mem = int(vals[-1][0]) / 1024.0
+            cpu = float(vals[-1][1]) + float(vals[-1][2])
+    return rc, wall, mem, bool(killed), cpu
 
 
 def read_text(path):
@@ -139,8 +143,8 @@ def run_surety(ctx, inst, work):
     cmd = [ctx.surety, "solve", inst["path"], "-n", str(inst["N"]), "--seed", str(inst["seed"]),
            "--json", "--quiet", "--threads", "1", "--gap", repr(GAP),
            "--time-limit", repr(ctx.time_limit), "-o", plan]
-    rc, wall, mem, killed = measure(cmd, out, ctx.hard_timeout)
-    r = {"wall_s": wall, "mem_mb": mem, "nodes": None, "objective": None, "bound": None,
+    rc, wall, mem, killed, cpu = measure(cmd, out, ctx.hard_timeout)
+    r = {"wall_s": wall, "cpu_s": cpu, "mem_mb": mem, "nodes": None, "objective": None, "bound": None,
          "x": None, "plan": None, "status": "error", "cmd": cmd}
     if killed:
         r["status"] = "killed"
@@ -277,7 +281,7 @@ def run_peer(ctx, peer, form, inst, work, mps):
                repr(ctx.time_limit), repr(GAP)]
     if os.path.exists(sol):
         os.unlink(sol)
-    rc, wall, mem, killed = measure(cmd, base + ".out", ctx.hard_timeout, env=env)
+    rc, wall, mem, killed, cpu = measure(cmd, base + ".out", ctx.hard_timeout, env=env)
     log = read_text(base + ".out")
     if killed:
         r = {"status": "killed", "objective": None, "bound": None, "nodes": None, "x": {}}
@@ -296,7 +300,7 @@ def run_peer(ctx, peer, form, inst, work, mps):
         r = parse_glpk(log, read_text(sol), mps)
     if r["status"] == "error" and "error" not in r:
         r["error"] = "%s exit %d; see %s" % (peer, rc, base + ".out")
-    r.update({"wall_s": wall, "mem_mb": mem, "cmd": cmd})
+    r.update({"wall_s": wall, "cpu_s": cpu, "mem_mb": mem, "cmd": cmd})
     return r
 
 
@@ -341,6 +345,38 @@ def plan_objective(plan, mps, cmap):
     return obj_to_profit(mps, s)
 
 
+def mps_violation(plan, mps, cmap, arrays):
+    """Largest row violation of the MPS file at the plan, with every indicator (a column that
+    is not an x_ column) set to 1 exactly where a row would otherwise be violated, and 0
+    elsewhere: the cheapest completion, so a positive result means no completion exists
+    (or needs more than the allowance). Relative to max(1, |rhs|). Exact arithmetic on the
+    file's numbers: no solver tolerance is involved. This separates an invalid export (a big-M
+    that cuts off a plan which fits N-k scenarios) from a peer's wrong optimum."""
+    import numpy as np
+    c, A, rlb, rub, clb, cub, integ = arrays
+    inv = {jr: col for col, jr in cmap.items()}
+    x = np.zeros(len(mps.cols))
+    for job, res in plan.items():
+        col = inv.get((job, res))
+        if col is None:
+            return float("inf")
+        x[mps.col_index[col]] = 1.0
+    xcols = np.zeros(len(mps.cols), dtype=bool)
+    for col in cmap:
+        xcols[mps.col_index[col]] = True
+    act = A @ x
+    for r in np.nonzero(act > rub)[0]:
+        lo, hi = A.indptr[r], A.indptr[r + 1]
+        for jj, v in zip(A.indices[lo:hi], A.data[lo:hi]):
+            if not xcols[jj] and v < 0:
+                x[jj] = 1.0
+    act = A @ x
+    scale = np.maximum(1.0, np.abs(np.where(np.isfinite(rub), rub, rlb)))
+    over = np.concatenate([(act - rub) / scale, (rlb - act) / scale])
+    over = over[np.isfinite(over)]
+    return float(max(0.0, over.max())) if over.size else 0.0
+
+
 def surety_count(ctx, inst, plan, work, tag):
     """(fit, allowance) of a plan in the model's N scenarios by `surety check --json`."""
     path = os.path.join(work, "plan-%s.json" % tag)
@@ -365,8 +401,12 @@ class Checker:
         print(line, flush=True)
 
 
-def check_instance(ctx, inst, runs, work, chk, mps):
+def check_instance(ctx, inst, runs, work, chk, mpss):
     """All agreement checks for one instance (see the module docstring)."""
+    mps = mpss["strengthened"]
+    arrays = {form: mpss[form].arrays() for form in FORMS}
+    for form in FORMS:
+        arrays[form] = arrays[form][:1] + (arrays[form][1].tocsr(),) + arrays[form][2:]
     N, k = inst["N"], allowance(inst["eps"], inst["N"])
     sur = runs["surety"]
     cmap = column_map(inst["mps"]["strengthened"])
@@ -380,10 +420,19 @@ def check_instance(ctx, inst, runs, work, chk, mps):
     s_obj = sur["objective"]
     if sur["status"] == "error":
         chk.fail(inst, "surety", sur.get("error", "failed"))
+    s_feasible = False
     if sur.get("plan") is not None:
         v = plan_objective(sur["plan"], mps, cmap)
         if v is None or rel_diff(v, s_obj) > REL_TOL:
             chk.fail(inst, "surety", "objective %r but its plan is worth %r in the MPS" % (s_obj, v))
+        s_feasible = True
+        for form in FORMS:
+            viol = mps_violation(sur["plan"], mpss[form], cmap, arrays[form])
+            if viol > MPS_TOL:
+                s_feasible = False
+                chk.fail(inst, "export", "surety's plan violates the %s MPS by %.3g (relative): "
+                         "the exported formulation cuts off a plan that fits N-k scenarios"
+                         % (form, viol))
     for name, r in runs.items():
         if r["status"] in ("error", "killed"):
             if name != "surety":
@@ -419,15 +468,24 @@ def check_instance(ctx, inst, runs, work, chk, mps):
                 chk.fail(inst, name, "%s where surety says %s" % (r["status"], sur["status"]))
             continue
         tol = REL_TOL * max(1.0, abs(s_obj or 0.0))
+        # who is wrong: a peer's optimum below surety's plan, which is exactly feasible in the
+        # very file the peer solved, is the peer's error; one above surety's optimum with a plan
+        # that fits N-k scenarios by surety's count is surety's
+        blame = (" (surety's plan is exactly feasible in this MPS file: the peer's claimed "
+                 "optimum is wrong)") if s_feasible else ""
         if r["status"] == "optimal" and s_opt:
-            if rel_diff(r["objective"], s_obj) > REL_TOL:
-                chk.fail(inst, name, "optimal %.10g but surety's optimum is %.10g"
-                         % (r["objective"], s_obj))
+            if r["objective"] < s_obj - tol:
+                chk.fail(inst, name, "optimal %.10g but surety's optimum is %.10g%s"
+                         % (r["objective"], s_obj, blame))
+            elif r["objective"] > s_obj + tol:
+                chk.fail(inst, name, "optimal %.10g above surety's optimum %.10g%s"
+                         % (r["objective"], s_obj, " (the peer's plan fits N-k scenarios: "
+                            "surety's optimum is wrong)" if r.get("fit", -1) >= N - k else ""))
         elif r["status"] == "optimal":
             # surety stopped early: the peer's optimum must lie between surety's plan and bound
             if s_obj is not None and r["objective"] < s_obj - tol:
-                chk.fail(inst, name, "optimal %.10g below surety's plan %.10g"
-                         % (r["objective"], s_obj))
+                chk.fail(inst, name, "optimal %.10g below surety's plan %.10g%s"
+                         % (r["objective"], s_obj, blame))
             if sur["bound"] is not None and r["objective"] > sur["bound"] + tol:
                 chk.fail(inst, name, "optimal %.10g above surety's bound %.10g"
                          % (r["objective"], sur["bound"]))
@@ -488,7 +546,7 @@ def run_instance(ctx, t, inst, chk):
     work = os.path.join(ctx.workdir, "%03d-%s" % (t, inst["name"]))
     os.makedirs(work, exist_ok=True)
     export(ctx, inst, work)
-    mps = mpsread.read(inst["mps"]["strengthened"])
+    mpss = {form: mpsread.read(inst["mps"][form]) for form in FORMS}
     names = ["surety"] + solver_list(ctx)
     # alternate the order across instances so no solver always runs first (cold caches) or
     # last (after the machine has warmed up)
@@ -502,8 +560,8 @@ def run_instance(ctx, t, inst, chk):
             runs[name] = run_surety(ctx, inst, work)
         else:
             peer, form = name.split("-", 1)
-            runs[name] = run_peer(ctx, peer, form, inst, work, mpsread.read(inst["mps"][form]))
-    check_instance(ctx, inst, runs, work, chk, mps)
+            runs[name] = run_peer(ctx, peer, form, inst, work, mpss[form])
+    check_instance(ctx, inst, runs, work, chk, mpss)
     rows = []
     for name in names:
         r = runs[name]
@@ -511,7 +569,8 @@ def run_instance(ctx, t, inst, chk):
                      "eps": inst["eps"], "seed": inst["seed"], "solver": name,
                      "status": r["status"], "objective": r.get("objective"),
                      "bound": r.get("bound"), "gap": gap_of(r), "nodes": r.get("nodes"),
-                     "wall_s": r["wall_s"], "mem_mb": r["mem_mb"], "fit": r.get("fit"),
+                     "wall_s": r["wall_s"], "cpu_s": r.get("cpu_s"), "mem_mb": r["mem_mb"],
+                     "solver_s": r.get("solver_s"), "fit": r.get("fit"),
                      "required_fit": inst["N"] - allowance(inst["eps"], inst["N"]),
                      "order": order.index(name)})
     if not ctx.keep:
