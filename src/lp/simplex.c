@@ -48,6 +48,8 @@
 #define ARTIFICIAL_MAX 1e13   /* give up enlarging the box beyond this */
 #define STALL_PERTURB 25      /* degenerate dual steps before perturbing */
 #define MAX_ROUNDS 8          /* dual/primal alternations per solve */
+#define DSE_EXACT 0           /* 1: exact steepest-edge update (one more
+                                 pass over A per iteration); 0: dual Devex */
 
 struct surety_lp {
     size_t n;       /* columns (fixed) */
@@ -78,6 +80,12 @@ struct surety_lp {
     double *alpha;  /* n + mcap: pivot row */
     double *dv;     /* n + mcap: change of basics per unit of entering */
     double *tmp;    /* 2 (n + mcap) */
+    double *wgt;    /* n + mcap: dual steepest-edge weight of a basic
+                       variable, ||row of B^-1||^2 (>= 1e-12) */
+    double *tau;    /* n + mcap: B^-1 rho */
+    double *fl;     /* n + mcap: change of each variable by bound flips */
+    double *X;      /* 3 n: structural parts of dv, tau, fl */
+    double *Y;      /* 3 mcap: A X, column by column */
     size_t *cand;   /* n + mcap: ratio-test candidates */
     long iter_limit;
     long iters;
@@ -172,6 +180,12 @@ static int grow_rows(surety_lp *lp, size_t need)
     GROW(dv, nv);
     GROW(tmp, 2 * nv);
     GROW(cand, nv);
+    GROW(wgt, nv);
+    GROW(tau, nv);
+    GROW(fl, nv);
+    GROW(Y, 3 * cap);
+    for (size_t v = n + lp->mcap; v < nv; v++)
+        lp->wgt[v] = 1.0;
 #undef GROW
     lp->mcap = cap;
     return 0;
@@ -197,6 +211,7 @@ static void slack_basis(surety_lp *lp)
     for (size_t i = 0; i < lp->m; i++) {
         lp->stat[n + i] = SURETY_LP_BASIC;
         lp->posN[i] = -1;
+        lp->wgt[n + i] = 1.0; /* B = -I: rows of B^-1 are unit vectors */
     }
     lp->k = 0;
     lp->factored = 1;
@@ -757,11 +772,100 @@ static int enlarge_box(surety_lp *lp)
     return 1;
 }
 
+/* Y(:,t) = A X(:,t) for t < r, X stored as r contiguous n-vectors and Y
+ * as r contiguous m-vectors (BLAS dgemv per column: a fused hand loop
+ * cannot be vectorised without reassociating the sums). */
+static void rows_times3(surety_lp *lp, int flips)
+{
+    size_t n = lp->n, m = lp->m;
+    for (int t = 0; t < 3; t++)
+        if (t == 0 || (t == 1 && DSE_EXACT) || (t == 2 && flips))
+            surety_dense_gemv(0, m, n, 1.0, lp->A, n, lp->X + (size_t)t * n, 0.0,
+                          lp->Y + (size_t)t * lp->mcap);
+}
+
+/* The three columns a dual iteration needs, from one pass over A:
+ *   dv  = -B^-1 a_q  (change of the basics per unit increase of x_q),
+ *   tau = B^-1 rho   (for the steepest-edge update),
+ *   fl  = change of every variable caused by the bound flips cand[0..flips)
+ *         (the flipped variables themselves included).
+ * Structural parts come from K^-1; the logicals of R_B follow as A times
+ * the structural part: Y = A X with X n x 3. */
+static void dual_columns(surety_lp *lp, size_t q, size_t flips)
+{
+    size_t n = lp->n, m = lp->m, k = lp->k;
+    double *X = lp->X, *Y = lp->Y, *w = lp->tmp, *wk = lp->tmp + n;
+    memset(X, 0, 3 * n * sizeof *X);
+    if (q < n) {
+        for (size_t p = 0; p < k; p++)
+            w[p] = lp->A[lp->rowN[p] * n + q];
+        surety_dense_gemv(0, k, k, 1.0, lp->Kinv, n, w, 0.0, wk);
+        for (size_t c = 0; c < k; c++)
+            X[lp->colS[c]] = -wk[c];
+        X[q] = 1.0;
+    } else {
+        size_t p = (size_t)lp->posN[q - n];
+        for (size_t c = 0; c < k; c++)
+            X[lp->colS[c]] = lp->Kinv[c * n + p];
+    }
+    if (DSE_EXACT) {
+        for (size_t p = 0; p < k; p++)
+            w[p] = lp->rho[lp->rowN[p]];
+        surety_dense_gemv(0, k, k, 1.0, lp->Kinv, n, w, 0.0, wk);
+        for (size_t c = 0; c < k; c++)
+            X[n + lp->colS[c]] = wk[c];
+    }
+    if (flips > 0) {
+        /* K dx_S = ds(R_N) - A(R_N, flipped columns) dx_flipped */
+        for (size_t p = 0; p < k; p++)
+            w[p] = 0.0;
+        for (size_t t = 0; t < flips; t++) {
+            size_t j = lp->cand[t];
+            double to = lp->stat[j] == SURETY_LP_AT_LOWER ? lp->wub[j]
+                                                          : lp->wlb[j];
+            lp->fl[j] = to - lp->x[j];
+            if (j < n)
+                X[2 * n + j] = lp->fl[j];
+            else
+                w[lp->posN[j - n]] += lp->fl[j];
+        }
+        for (size_t p = 0; p < k; p++) {
+            const double *a = lp->A + lp->rowN[p] * n;
+            double sum = 0.0;
+            for (size_t j = 0; j < n; j++)
+                sum += a[j] * X[2 * n + j];
+            w[p] -= sum;
+        }
+        surety_dense_gemv(0, k, k, 1.0, lp->Kinv, n, w, 0.0, wk);
+        for (size_t c = 0; c < k; c++)
+            X[2 * n + lp->colS[c]] = wk[c];
+    }
+    rows_times3(lp, flips > 0);
+    for (size_t j = 0; j < n; j++) {
+        lp->dv[j] = X[j];
+        lp->tau[j] = X[n + j];
+        if (flips > 0 && lp->stat[j] == SURETY_LP_BASIC)
+            lp->fl[j] = X[2 * n + j];
+    }
+    for (size_t i = 0; i < m; i++) {
+        int basic = lp->posN[i] < 0;
+        lp->dv[n + i] = basic ? Y[i] : 0.0;
+        lp->tau[n + i] = basic ? Y[lp->mcap + i] - lp->rho[i] : 0.0;
+        if (flips > 0 && basic)
+            lp->fl[n + i] = Y[2 * lp->mcap + i];
+    }
+    if (q >= n)
+        lp->dv[q] = 1.0;
+}
+
 /* Dual simplex iterations until primal feasible (returns OPTIMAL for the
  * costs and bounds in use), infeasible, or a limit. Dual feasibility is
- * kept throughout. Pricing: largest infeasibility relative to the size
- * of the variable's row of B^-1 is not tracked; plain largest
- * infeasibility is used (Dantzig-like dual pricing). */
+ * kept throughout. Pricing by dual steepest edge: the leaving variable
+ * maximises infeasibility^2 / ||row of B^-1||^2, the weights updated by
+ * the recurrence of J. J. Forrest and D. Goldfarb, "Steepest-edge simplex
+ * algorithms for linear programming", Math. Programming 57 (1992)
+ * 341-374, in the form of Koberstein 2005, sec. 3.3 (weights start at 1
+ * where unknown, a common practice). */
 static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
 {
     size_t n = lp->n;
@@ -772,15 +876,14 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
             if (rebuild(lp) < 0)
                 return SURETY_LP_NUMERIC;
         }
-        /* pricing */
         long r = -1;
-        double worst = 0.0, target = 0.0;
+        double best = 0.0, target = 0.0;
         for (size_t j = 0; j < nv; j++) {
             if (lp->stat[j] != SURETY_LP_BASIC)
                 continue;
             double t, v = infeas(lp, j, &t);
-            if (v > worst) {
-                worst = v;
+            if (v > 0.0 && v * v > best * lp->wgt[j]) {
+                best = v * v / lp->wgt[j];
                 r = (long)j;
                 target = t;
             }
@@ -792,6 +895,10 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
         double delta = lp->x[r] - target; /* > 0: leaves to its upper */
         double sgn = delta > 0 ? 1.0 : -1.0;
         btran_row(lp, (size_t)r);
+        double beta_r = 0.0;
+        for (size_t i = 0; i < lp->m; i++)
+            beta_r += lp->rho[i] * lp->rho[i];
+        lp->wgt[r] = beta_r;
         long q;
         size_t flips = ratio_test(lp, sgn, fabs(delta), &q);
         if (q < 0) {
@@ -805,7 +912,7 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
             }
             return SURETY_LP_INFEASIBLE;
         }
-        ftran(lp, (size_t)q);
+        dual_columns(lp, (size_t)q, flips);
         double arq_col = -lp->dv[r], arq_row = lp->alpha[q];
         if (fabs(arq_col - arq_row) > 1e-8 * (1.0 + fabs(arq_col)) ||
             fabs(arq_col) <= PIVOT_TOL) {
@@ -844,26 +951,42 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
         } else {
             stall = 0;
         }
-        /* bound flips, then recompute the basics they move */
+        /* bound flips move the basics by fl */
         if (flips > 0) {
+            for (size_t j = 0; j < nv; j++)
+                if (lp->stat[j] == SURETY_LP_BASIC)
+                    lp->x[j] += lp->fl[j];
             for (size_t t = 0; t < flips; t++) {
                 size_t j = lp->cand[t];
-                lp->stat[j] = lp->stat[j] == SURETY_LP_AT_LOWER
-                                  ? SURETY_LP_AT_UPPER
-                                  : SURETY_LP_AT_LOWER;
+                if (lp->stat[j] == SURETY_LP_AT_LOWER) {
+                    lp->stat[j] = SURETY_LP_AT_UPPER;
+                    lp->x[j] = lp->wub[j];
+                } else {
+                    lp->stat[j] = SURETY_LP_AT_LOWER;
+                    lp->x[j] = lp->wlb[j];
+                }
             }
-            compute_primal(lp);
-            ftran(lp, (size_t)q);
         }
         /* primal step: x_r reaches its violated bound */
         double thp = (target - lp->x[r]) / lp->dv[r];
-        for (size_t j = 0; j < n; j++)
-            if (lp->dv[j] != 0.0)
+        for (size_t j = 0; j < nv; j++)
+            if (lp->dv[j] != 0.0 &&
+                (lp->stat[j] == SURETY_LP_BASIC || j == (size_t)q))
                 lp->x[j] += thp * lp->dv[j];
-        for (size_t i = 0; i < lp->m; i++)
-            if (lp->stat[n + i] == SURETY_LP_BASIC || n + i == (size_t)q)
-                lp->x[n + i] += thp * lp->dv[n + i];
         lp->x[r] = target;
+        /* steepest-edge weights: alpha_iq / alpha_rq = dv_i / dv_r */
+        for (size_t j = 0; j < nv; j++) {
+            if (lp->stat[j] != SURETY_LP_BASIC || j == (size_t)r ||
+                lp->dv[j] == 0.0)
+                continue;
+            double f = lp->dv[j] / lp->dv[r];
+            double wj = DSE_EXACT
+                            ? lp->wgt[j] - 2.0 * f * lp->tau[j] + f * f * beta_r
+                            : lp->wgt[j];
+            lp->wgt[j] = DSE_EXACT ? fmax(wj, fmax(f * f, 1e-12))
+                                   : fmax(wj, f * f * beta_r);
+        }
+        lp->wgt[q] = fmax(beta_r / (arq_col * arq_col), 1e-12);
         lp->stat[q] = SURETY_LP_BASIC;
         lp->stat[r] = delta > 0 ? SURETY_LP_AT_UPPER : SURETY_LP_AT_LOWER;
         pivot_update(lp, (size_t)q, (size_t)r);
@@ -984,6 +1107,7 @@ static surety_lp_status primal_phase(surety_lp *lp)
             btran_row(lp, (size_t)r);
         lp->stat[q] = SURETY_LP_BASIC;
         lp->stat[r] = to_upper ? SURETY_LP_AT_UPPER : SURETY_LP_AT_LOWER;
+        lp->wgt[q] = 1.0;
         pivot_update(lp, (size_t)q, (size_t)r);
         compute_dual(lp);
     }
@@ -1014,7 +1138,8 @@ surety_lp *surety_lp_create(size_t n, const double *c, const double *lo,
     lp->rowN = surety_xmalloc(n, sizeof *lp->rowN);
     lp->posS = surety_xmalloc(n, sizeof *lp->posS);
     lp->Kinv = surety_xmalloc(n * n > 0 ? n : 1, n * sizeof *lp->Kinv);
-    if (!lp->obj || !lp->colS || !lp->rowN || !lp->posS || !lp->Kinv ||
+    lp->X = surety_xmalloc(n, 3 * sizeof *lp->X);
+    if (!lp->X || !lp->obj || !lp->colS || !lp->rowN || !lp->posS || !lp->Kinv ||
         grow_rows(lp, 16) < 0) {
         surety_lp_free(lp);
         return NULL;
@@ -1029,6 +1154,7 @@ surety_lp *surety_lp_create(size_t n, const double *c, const double *lo,
                                             : SURETY_LP_AT_ZERO;
         lp->x[j] = 0.0;
         lp->posS[j] = -1;
+        lp->wgt[j] = 1.0;
     }
     lp->factored = 1;
     lp->box = ARTIFICIAL_BOX;
@@ -1061,6 +1187,11 @@ void surety_lp_free(surety_lp *lp)
     surety_xfree(lp->dv);
     surety_xfree(lp->tmp);
     surety_xfree(lp->cand);
+    surety_xfree(lp->wgt);
+    surety_xfree(lp->tau);
+    surety_xfree(lp->fl);
+    surety_xfree(lp->X);
+    surety_xfree(lp->Y);
     surety_xfree(lp);
 }
 
@@ -1103,6 +1234,19 @@ long surety_lp_add_row(surety_lp *lp, const double *a, double rlo,
     for (size_t j = 0; j < n; j++)
         act += a[j] * lp->x[j];
     lp->x[v] = act;
+    /* weight of the new basic logical: its row of B^-1 is
+     * [A(i,S) K^-1, -1], so 1 + ||z||^2 with z = K^-T A(i,S)^T. */
+    double beta = 1.0;
+    if (lp->factored && lp->k > 0) {
+        size_t k = lp->k;
+        double *vv = lp->tmp, *z = lp->tmp + k;
+        for (size_t c = 0; c < k; c++)
+            vv[c] = a[lp->colS[c]];
+        surety_dense_gemv(1, k, k, 1.0, lp->Kinv, n, vv, 0.0, z);
+        for (size_t p = 0; p < k; p++)
+            beta += z[p] * z[p];
+    }
+    lp->wgt[v] = beta;
     lp->m = i + 1;
     lp->status = SURETY_LP_UNSOLVED;
     return (long)i;
@@ -1285,6 +1429,9 @@ int surety_lp_set_basis(surety_lp *lp, const signed char *status,
     memcpy(lp->stat, status, (n + nrows) * sizeof *status);
     for (size_t i = nrows; i < lp->m; i++)
         lp->stat[n + i] = SURETY_LP_BASIC;
+    /* a new reference framework for the steepest-edge weights */
+    for (size_t j = 0; j < n + lp->m; j++)
+        lp->wgt[j] = 1.0;
     lp->factored = 0;
     lp->status = SURETY_LP_UNSOLVED;
     return 0;
