@@ -268,26 +268,51 @@ surety_code surety_table_read(const surety_model *model, const char *path,
 
     /* A spreadsheet's byte-order mark is not part of the first name. */
     size_t pos = len >= 3 && memcmp(buf, "\xEF\xBB\xBF", 3) == 0 ? 3 : 0;
-    /* Fed one byte at a time: libcsv reports cells but not where they
-     * sit, and this way every callback knows the line and column. */
-    for (; pos < len && !t.failed; pos++) {
-        unsigned char c = (unsigned char)buf[pos];
-        int skip = c == ' ' || c == '\t'
-                   || (t.pending == 2 && (c == '\r' || c == '\n'));
-        if (t.pending && !skip) {
-            t.pending = 0;
-            t.field_line = t.line;
-            t.field_col = t.col;
+    /* libcsv reports cells but not where they sit. Feeding it chunks
+     * that end at every ',', CR and LF means a callback can fire only at a
+     * chunk's last byte, so the position of each cell's first byte is known
+     * before the chunk is parsed. */
+    while (pos < len && !t.failed) {
+        size_t end = pos;
+        while (end < len && buf[end] != ',' && buf[end] != '\n'
+               && buf[end] != '\r')
+            end++;
+        if (end < len)
+            end++;
+        if (t.pending) {
+            int col = t.col;
+            for (size_t q = pos; q < end; q++) {
+                unsigned char c = (unsigned char)buf[q];
+                int skip = c == ' ' || c == '\t'
+                           || (t.pending == 2 && (c == '\r' || c == '\n'));
+                if (!skip) {
+                    t.pending = 0;
+                    t.field_line = t.line;
+                    t.field_col = col;
+                    break;
+                }
+                if ((c & 0xC0) != 0x80)
+                    col++;
+            }
         }
-        if (csv_parse(&p, buf + pos, 1, on_field, on_record, &t) != 1)
-            tfail(&t, t.line, t.col, NULL, csv_error(&p) == CSV_EPARSE
+        size_t got = csv_parse(&p, buf + pos, end - pos, on_field, on_record,
+                               &t);
+        if (got != end - pos) {
+            int col = t.col;
+            for (size_t q = pos; q < pos + got; q++)
+                col += ((unsigned char)buf[q] & 0xC0) != 0x80;
+            tfail(&t, t.line, col, NULL, csv_error(&p) == CSV_EPARSE
                   ? "malformed CSV: a quote inside an unquoted cell, or text "
                     "after a closing quote" : "out of memory");
-        if (c == '\n') {
-            t.line++;
-            t.col = 1;
-        } else if ((c & 0xC0) != 0x80) {
-            t.col++;
+        }
+        for (; pos < end; pos++) {
+            unsigned char c = (unsigned char)buf[pos];
+            if (c == '\n') {
+                t.line++;
+                t.col = 1;
+            } else if ((c & 0xC0) != 0x80) {
+                t.col++;
+            }
         }
     }
     if (!t.failed && csv_fini(&p, on_field, on_record, &t) != 0)
