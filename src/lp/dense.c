@@ -90,6 +90,12 @@ void surety_dense_ger(size_t m, size_t n, double alpha, const double *x,
                (int)lda);
 }
 
+void surety_dense_axpy(size_t len, double f, const double *x, double *y)
+{
+    if (len > 0)
+        cblas_daxpy((int)len, f, x, 1, y, 1);
+}
+
 /* LU with partial pivoting (dgetrf), a 1-norm condition estimate (dgecon)
  * to catch near-singular bases that dgetrf alone would accept, then the
  * explicit inverse (dgetri). */

@@ -56,6 +56,9 @@ void surety_dense_gemv(int trans, size_t m, size_t n, double alpha,
 void surety_dense_ger(size_t m, size_t n, double alpha, const double *x,
                       const double *y, double *A, size_t lda);
 
+/* y += f x, vectors of length len. */
+void surety_dense_axpy(size_t len, double f, const double *x, double *y);
+
 /* Replaces the k x k matrix M by its inverse. Stores the reciprocal
  * 1-norm condition estimate of M in *rcond. Returns 0 on success, 1 when
  * M is exactly singular (M is then garbage), -1 when out of memory. */

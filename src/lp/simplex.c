@@ -56,6 +56,9 @@ struct surety_lp {
     size_t m;       /* rows */
     size_t mcap;    /* rows allocated */
     double *A;      /* mcap x n row-major coefficients */
+    double *AT;     /* n x mcap: the same, column-major, so that A times a
+                       vector living on S (k of n columns) reads only
+                       those k columns */
     double *obj;    /* n: objective c, maximisation sense */
     double *cost;   /* n + mcap: cost in use (= -c, plus perturbation) */
     double *lb, *ub;   /* n + mcap: true bounds of columns then logicals */
@@ -143,8 +146,14 @@ static double nonbasic_value(const surety_lp *lp, size_t j)
 
 static void axpy(size_t len, double f, const double *src, double *dst)
 {
-    for (size_t j = 0; j < len; j++)
-        dst[j] += f * src[j];
+    surety_dense_axpy(len, f, src, dst);
+}
+
+/* y += f * column j of A (m entries). */
+static void col_axpy(const surety_lp *lp, size_t j, double f, double *y)
+{
+    if (f != 0.0)
+        axpy(lp->m, f, lp->AT + j * lp->mcap, y);
 }
 
 static int grow_rows(surety_lp *lp, size_t need)
@@ -187,6 +196,14 @@ static int grow_rows(surety_lp *lp, size_t need)
     for (size_t v = n + lp->mcap; v < nv; v++)
         lp->wgt[v] = 1.0;
 #undef GROW
+    double *AT = surety_xmalloc(cap * n, sizeof *AT);
+    if (!AT)
+        return -1;
+    for (size_t j = 0; j < n; j++)
+        if (lp->m > 0)
+            memcpy(AT + j * cap, lp->AT + j * lp->mcap, lp->m * sizeof *AT);
+    surety_xfree(lp->AT);
+    lp->AT = AT;
     lp->mcap = cap;
     return 0;
 }
@@ -286,9 +303,14 @@ static void ftran(surety_lp *lp, size_t q)
         for (size_t c = 0; c < k; c++)
             dv[lp->colS[c]] = lp->Kinv[c * n + p];
     }
-    surety_dense_gemv(0, m, n, 1.0, lp->A, n, dv, 0.0, dv + n);
+    double *ds = dv + n;
+    memset(ds, 0, m * sizeof *ds);
+    for (size_t c = 0; c < k; c++)
+        col_axpy(lp, lp->colS[c], dv[lp->colS[c]], ds);
+    if (q < n)
+        col_axpy(lp, q, 1.0, ds);
     for (size_t p = 0; p < k; p++)
-        dv[n + lp->rowN[p]] = 0.0;
+        ds[lp->rowN[p]] = 0.0;
     if (q >= n)
         dv[q] = 1.0;
 }
@@ -772,16 +794,33 @@ static int enlarge_box(surety_lp *lp)
     return 1;
 }
 
-/* Y(:,t) = A X(:,t) for t < r, X stored as r contiguous n-vectors and Y
- * as r contiguous m-vectors (BLAS dgemv per column: a fused hand loop
- * cannot be vectorised without reassociating the sums). */
-static void rows_times3(surety_lp *lp, int flips)
+/* Y(:,t) = A X(:,t) for the columns t in use (0: dv, 1: tau when exact
+ * steepest edge, 2: flips), each X(:,t) living on S plus the entering
+ * and the flipped columns, so only those columns of A are read. X and Y
+ * hold their columns contiguously (n and mcap apart). */
+static void slack_parts(surety_lp *lp, size_t q, size_t flips)
 {
-    size_t n = lp->n, m = lp->m;
-    for (int t = 0; t < 3; t++)
-        if (t == 0 || (t == 1 && DSE_EXACT) || (t == 2 && flips))
-            surety_dense_gemv(0, m, n, 1.0, lp->A, n, lp->X + (size_t)t * n, 0.0,
-                          lp->Y + (size_t)t * lp->mcap);
+    size_t n = lp->n, m = lp->m, cap = lp->mcap;
+    const double *X = lp->X;
+    double *Y = lp->Y;
+    memset(Y, 0, m * sizeof *Y);
+    if (DSE_EXACT)
+        memset(Y + cap, 0, m * sizeof *Y);
+    if (flips)
+        memset(Y + 2 * cap, 0, m * sizeof *Y);
+    for (size_t c = 0; c < lp->k; c++) {
+        size_t j = lp->colS[c];
+        col_axpy(lp, j, X[j], Y);
+        if (DSE_EXACT)
+            col_axpy(lp, j, X[n + j], Y + cap);
+        if (flips)
+            col_axpy(lp, j, X[2 * n + j], Y + 2 * cap);
+    }
+    if (q < n)
+        col_axpy(lp, q, X[q], Y);
+    for (size_t t = 0; t < flips; t++)
+        if (lp->cand[t] < n)
+            col_axpy(lp, lp->cand[t], X[2 * n + lp->cand[t]], Y + 2 * cap);
 }
 
 /* The three columns a dual iteration needs, from one pass over A:
@@ -840,7 +879,7 @@ static void dual_columns(surety_lp *lp, size_t q, size_t flips)
         for (size_t c = 0; c < k; c++)
             X[2 * n + lp->colS[c]] = wk[c];
     }
-    rows_times3(lp, flips > 0);
+    slack_parts(lp, q, flips);
     for (size_t j = 0; j < n; j++) {
         lp->dv[j] = X[j];
         lp->tau[j] = X[n + j];
@@ -1168,6 +1207,7 @@ void surety_lp_free(surety_lp *lp)
     if (!lp)
         return;
     surety_xfree(lp->A);
+    surety_xfree(lp->AT);
     surety_xfree(lp->obj);
     surety_xfree(lp->cost);
     surety_xfree(lp->lb);
@@ -1223,6 +1263,8 @@ long surety_lp_add_row(surety_lp *lp, const double *a, double rlo,
     if (grow_rows(lp, i + 1) < 0)
         return -1;
     memcpy(lp->A + i * n, a, n * sizeof *a);
+    for (size_t j = 0; j < n; j++)
+        lp->AT[j * lp->mcap + i] = a[j];
     size_t v = n + i;
     lp->cost[v] = 0.0;
     lp->lb[v] = lp->wlb[v] = rlo;
