@@ -9,9 +9,19 @@
 #include "stats.h"
 #include "surety.h"
 
+/* Phi(x) = 0.5 erfc(z), z = -x/sqrt 2. In the lower tail erfc(z) has
+ * condition number about 2 z^2, so the rounding of z alone would cost
+ * 1e-13 relative at x = -30. The part of z lost to rounding (from fma and
+ * the low half of 1/sqrt 2) is put back to first order:
+ * erfc(z + dz) = erfc(z) - dz (2/sqrt pi) exp(-z^2). */
 double surety_norm_cdf(double x)
 {
-    return 0.5 * erfc(-x / sqrt(2.0));
+    const double s_hi = M_SQRT1_2, s_lo = -4.833646656726457e-17;
+    double z = -x * s_hi;
+    if (z < 1.0)
+        return 0.5 * erfc(z);
+    double dz = fma(-x, s_hi, -z) - x * s_lo;
+    return 0.5 * (erfc(z) - dz * M_2_SQRTPI * exp(-z * z));
 }
 
 /* Horner evaluation of c[0] + c[1] x + ... + c[7] x^7. */
