@@ -262,7 +262,8 @@ static void check_kkt(const prob *p, surety_lp *lp)
  * 0 general (mixed bounds and rows, feasible by construction),
  * 1 degenerate (integer data with many ties, zero right-hand sides),
  * 2 unconstrained right-hand sides (often infeasible or unbounded),
- * 3 the branch-and-bound shape (0 <= x <= 1, nonnegative rows <=). */
+ * 3 the branch-and-bound shape (0 <= x <= 1, nonnegative rows <=, some
+ *   rows repeated or scaled copies of earlier ones). */
 static prob random_prob(size_t n, size_t m, int kind)
 {
     prob p = prob_new(n, m);
@@ -345,8 +346,41 @@ static prob random_prob(size_t n, size_t m, int kind)
             p.rhi[i] = INFINITY;
         }
     }
+    if (kind == 3)
+        for (size_t i = 1; i < m; i++)
+            if (urand() < 0.15) {
+                size_t src = (size_t)irand(0, (int)i - 1);
+                double f = urand() < 0.5 ? 1.0 : 2.0;
+                for (size_t j = 0; j < n; j++)
+                    p.A[i * n + j] = f * p.A[src * n + j];
+                p.rhi[i] = f * p.rhi[src];
+            }
     free(x0);
     return p;
+}
+
+/* Kind 4: rows and columns scaled by factors in [1e-2, 1e2], the same LP
+ * in other units. */
+static void scale_prob(prob *pp)
+{
+    prob p = *pp;
+    size_t n = p.n, m = p.m;
+    for (size_t i = 0; i < m; i++) {
+        double f = pow(10.0, urand() * 4 - 2);
+        for (size_t j = 0; j < n; j++)
+            p.A[i * n + j] *= f;
+        p.rlo[i] *= f;
+        p.rhi[i] *= f;
+    }
+    for (size_t j = 0; j < n; j++) {
+        /* x_j = f x'_j: column j of A and c_j scale by f, bounds by 1/f */
+        double f = pow(10.0, urand() * 4 - 2);
+        for (size_t i = 0; i < m; i++)
+            p.A[i * n + j] *= f;
+        p.c[j] *= f;
+        p.lo[j] /= f;
+        p.hi[j] /= f;
+    }
 }
 
 static void compare(const prob *p, surety_lp *lp, surety_lp_status st,
@@ -396,6 +430,16 @@ Test(lp, chvatal_example)
     surety_lp_get_x(lp, x);
     cr_expect(fabs(x[0] - 2) < 1e-12 && fabs(x[1]) < 1e-12 &&
               fabs(x[2] - 1) < 1e-12);
+    /* The final dictionary there reads z = 13 - 3 x2 - x4 - x6 (x4, x6 the
+     * slacks of rows 1 and 3), so the duals are y = (1, 0, 1) and the
+     * reduced costs (0, -3, 0); checked by hand: 5*1 + 8*1 = 13. */
+    double y[3], d[3];
+    surety_lp_get_row_duals(lp, y);
+    surety_lp_get_redcosts(lp, d);
+    cr_expect(fabs(y[0] - 1) < 1e-12 && fabs(y[1]) < 1e-12 &&
+              fabs(y[2] - 1) < 1e-12, "y = %g %g %g", y[0], y[1], y[2]);
+    cr_expect(fabs(d[0]) < 1e-12 && fabs(d[1] + 3) < 1e-12 &&
+              fabs(d[2]) < 1e-12, "d = %g %g %g", d[0], d[1], d[2]);
     compare(&p, lp, SURETY_LP_OPTIMAL, "chvatal");
     surety_lp_free(lp);
     prob_free(&p);
@@ -418,7 +462,9 @@ static void random_batch(int kind, int count, uint64_t seed)
             n = (size_t)irand(2, 25);
             m = (size_t)irand(2, 25);
         }
-        prob p = random_prob(n, m, kind);
+        prob p = random_prob(n, m, kind == 4 ? 0 : kind);
+        if (kind == 4)
+            scale_prob(&p);
         surety_lp *lp = build(&p);
         surety_lp_status st = surety_lp_solve(lp);
         char what[64];
@@ -437,6 +483,11 @@ Test(lp, random_general)
 Test(lp, random_degenerate)
 {
     random_batch(1, 120, 23);
+}
+
+Test(lp, random_badly_scaled)
+{
+    random_batch(4, 100, 53);
 }
 
 Test(lp, random_often_infeasible_or_unbounded)
@@ -642,6 +693,47 @@ Test(lp, larger_instances)
         surety_lp *lp = build(&p);
         surety_lp_status st = surety_lp_solve(lp);
         compare(&p, lp, st, "larger");
+        surety_lp_free(lp);
+        prob_free(&p);
+    }
+}
+
+/* The iteration limit stops a solve with its own status, and a later
+ * solve without the limit finishes from where it stopped. */
+Test(lp, iteration_limit)
+{
+    need_glpsol();
+    rs = 505;
+    prob p = random_prob(30, 60, 3);
+    surety_lp *lp = build(&p);
+    surety_lp_set_iter_limit(lp, 2);
+    cr_assert_eq(surety_lp_solve(lp), SURETY_LP_ITER_LIMIT);
+    cr_expect_leq(surety_lp_iterations(lp), 2);
+    surety_lp_set_iter_limit(lp, 0);
+    surety_lp_status st = surety_lp_solve(lp);
+    compare(&p, lp, st, "after limit");
+    surety_lp_free(lp);
+    prob_free(&p);
+}
+
+/* New objective coefficients on a solved LP: the re-solve (primal
+ * iterations from the old basis) must match GLPK. */
+Test(lp, objective_change)
+{
+    need_glpsol();
+    rs = 606;
+    for (int t = 0; t < 20; t++) {
+        prob p = random_prob((size_t)irand(3, 20), (size_t)irand(3, 30),
+                             t % 2 ? 3 : 0);
+        surety_lp *lp = build(&p);
+        surety_lp_solve(lp);
+        for (size_t j = 0; j < p.n; j++)
+            if (urand() < 0.5) {
+                p.c[j] = urand() * 20 - 10;
+                cr_assert_eq(surety_lp_set_obj(lp, j, p.c[j]), 0);
+            }
+        surety_lp_status st = surety_lp_solve(lp);
+        compare(&p, lp, st, "objective change");
         surety_lp_free(lp);
         prob_free(&p);
     }
