@@ -1595,6 +1595,74 @@ surety_code surety_plan_read(const surety_model *model, const char *path,
     return SURETY_OK;
 }
 
+/* jansson prints every real with 17 significant digits, so a risk of 0.1
+ * would be written 0.10000000000000001. This printer gives each real the
+ * fewest digits that read back to the same double, and otherwise lays the
+ * document out as jansson's JSON_INDENT(2) does. */
+static void put_real(FILE *fp, double v)
+{
+    char buf[32];
+    for (int digits = 1; digits <= 17; digits++) {
+        snprintf(buf, sizeof buf, "%.*g", digits, v);
+        if (strtod(buf, NULL) == v)
+            break;
+    }
+    /* keep it a real when read back: 2.0 is written 2.0, not 2 */
+    if (!strpbrk(buf, ".eEn"))
+        strcat(buf, ".0");
+    fputs(buf, fp);
+}
+
+static void put_json(FILE *fp, json_t *v, int indent)
+{
+    switch (json_typeof(v)) {
+    case JSON_OBJECT: {
+        if (json_object_size(v) == 0) {
+            fputs("{}", fp);
+            break;
+        }
+        const char *key;
+        json_t *x;
+        int first = 1;
+        fputs("{\n", fp);
+        json_object_foreach(v, key, x) {
+            json_t *k = json_string(key);
+            char *ks = k ? json_dumps(k, JSON_ENCODE_ANY) : NULL;
+            fprintf(fp, "%s%*s%s: ", first ? "" : ",\n", indent + 2, "",
+                    ks ? ks : "\"\"");
+            free(ks); /* jansson's buffers come from plain malloc */
+            json_decref(k);
+            put_json(fp, x, indent + 2);
+            first = 0;
+        }
+        fprintf(fp, "\n%*s}", indent, "");
+        break;
+    }
+    case JSON_ARRAY: {
+        if (json_array_size(v) == 0) {
+            fputs("[]", fp);
+            break;
+        }
+        fputs("[\n", fp);
+        for (size_t i = 0; i < json_array_size(v); i++) {
+            fprintf(fp, "%s%*s", i ? ",\n" : "", indent + 2, "");
+            put_json(fp, json_array_get(v, i), indent + 2);
+        }
+        fprintf(fp, "\n%*s]", indent, "");
+        break;
+    }
+    case JSON_REAL:
+        put_real(fp, json_real_value(v));
+        break;
+    default: {
+        char *text = json_dumps(v, JSON_ENCODE_ANY);
+        fputs(text ? text : "null", fp);
+        free(text);
+        break;
+    }
+    }
+}
+
 surety_code surety_plan_write(const surety_model *model,
                               const surety_plan *plan, const char *extra,
                               const char *path, surety_error *err)
@@ -1649,8 +1717,8 @@ surety_code surety_plan_write(const surety_model *model,
     if (bad)
         surety_error_set(err, path, 0, 0, NULL, "out of memory");
     if (code == SURETY_OK) {
-        if (json_dumpf(root, f.fp, JSON_INDENT(2)) != 0
-            || fputc('\n', f.fp) == EOF) {
+        put_json(f.fp, root, 0);
+        if (fputc('\n', f.fp) == EOF || ferror(f.fp)) {
             surety_outfile_abort(&f);
             surety_error_set(err, path, 0, 0, NULL, "write failed");
             code = SURETY_EINTERNAL;

@@ -639,7 +639,9 @@ Test(plan, round_trip)
     snprintf(path, sizeof path, "%s/plan.json", tmpdir);
     cr_assert_eq(surety_plan_write(m, p,
                                    "{\"status\": \"optimal\", "
-                                   "\"objective\": 1234.5}", path, &err),
+                                   "\"objective\": 1234.5, \"risk\": 0.1, "
+                                   "\"two\": 2.0, \"sum\": 0.30000000000000004, "
+                                   "\"tiny\": [5e-324], \"n\": 3}", path, &err),
                  SURETY_OK, "%s", err.message);
     surety_plan *q = NULL;
     cr_assert_eq(surety_plan_read(m, path, &q, &err), SURETY_OK, "%s:%d: %s",
@@ -652,6 +654,15 @@ Test(plan, round_trip)
     cr_expect(strstr(text, "\"service\": null") != NULL, "%s", text);
     cr_expect(strstr(text, "\"status\": \"optimal\"") != NULL, "%s", text);
     cr_expect(strstr(text, "\"objective\": 1234.5") != NULL, "%s", text);
+    /* reals in their shortest round-trip form, as Python's repr() prints
+     * them: repr(0.1) = '0.1', repr(0.1 + 0.2) = '0.30000000000000004',
+     * repr(5e-324) = '5e-324'; integers stay integers */
+    cr_expect(strstr(text, "\"risk\": 0.1,") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"two\": 2.0,") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"sum\": 0.30000000000000004,") != NULL, "%s",
+              text);
+    cr_expect(strstr(text, "5e-324") != NULL, "%s", text);
+    cr_expect(strstr(text, "\"n\": 3\n") != NULL, "%s", text);
     free(text);
 
     /* bad extra members are refused and leave the file as it was */
