@@ -761,3 +761,24 @@ Test(table, sampler_csv_round_trip)
     unlink(path);
     rmdir(tmpdir);
 }
+
+/* "repair": true takes the nearest valid matrix where the stated
+ * correlations cannot hold together (0.9, 0.9 and -0.9 among three jobs:
+ * the determinant 1 - 3(0.81) - 2(0.729) is negative). */
+Test(model, correlation_repair)
+{
+    const char *text =
+        "{\"resources\": [{\"id\": \"a\", \"capacity\": 10}],\n"
+        " \"jobs\": [{\"id\": \"x\", \"hours\": 1, \"profit\": 1},\n"
+        "          {\"id\": \"y\", \"hours\": 1, \"profit\": 1},\n"
+        "          {\"id\": \"z\", \"hours\": 1, \"profit\": 1}],\n"
+        " \"correlation\": {\"pairs\": [[\"x\", \"y\", 0.9], "
+        "[\"y\", \"z\", 0.9], [\"x\", \"z\", -0.9]], \"repair\": true}}";
+    surety_model *m;
+    surety_error err;
+    cr_assert_eq(surety_model_parse(text, "r.json", NULL, &m, &err),
+                 SURETY_OK, "%s", err.message);
+    cr_expect_eq(m->corr_repaired, 1);
+    cr_expect_not_null(m->chol);
+    surety_model_free(m);
+}
