@@ -48,7 +48,7 @@
 #define ARTIFICIAL_MAX 1e13   /* give up enlarging the box beyond this */
 #define STALL_PERTURB 25      /* degenerate dual steps before perturbing */
 #define MAX_ROUNDS 8          /* dual/primal alternations per solve */
-#define DSE_EXACT 0           /* 1: exact steepest-edge update (one more
+#define DSE_EXACT 1           /* 1: exact steepest-edge update (one more
                                  pass over A per iteration); 0: dual Devex */
 
 struct surety_lp {
