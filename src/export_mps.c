@@ -2,6 +2,7 @@
  * free MPS, with plain or order-statistic (quantile) big-M coefficients.
  * SPDX-License-Identifier: MIT */
 #include <ctype.h>
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -35,6 +36,8 @@ typedef struct export_ctx {
     struct keyed *order; /* N: scenarios by decreasing total */
     double *ratio;       /* nj */
     size_t *idx;         /* nj */
+    double *wbar;        /* nj: mean of a over the scenarios */
+    size_t *pi;          /* nj: scenario l's jobs by decreasing a/wbar */
     double *heap;        /* k+1: max-heap of the smallest values so far */
 } export_ctx;
 
@@ -58,44 +61,89 @@ static void plain_bigm(export_ctx *c)
     }
 }
 
-/* Value of max sum_t a[t] x_t subject to sum_t b[t] x_t <= C, 0 <= x <= 1:
- * the fractional knapsack, items by decreasing a/b, the last one
- * fractional; items with b = 0 are always taken. nj is small (the jobs
- * allowed in one resource), so an insertion sort beats qsort here. */
-static double frac_knapsack(const double *a, const double *b, size_t nj,
-                            double C, double *ratio, size_t *idx)
+/* A feasible point of the same fractional knapsack, filled in the fixed
+ * order pi (taken prefix, one fractional item, nothing after): its value is
+ * a lower bound. */
+static double fixed_order_fill(const double *a, const double *b,
+                               const size_t *pi, size_t nj, double C)
 {
-    double value = 0;
-    size_t q = 0;
-    for (size_t t = 0; t < nj; t++) {
-        if (b[t] <= 0) {
-            value += a[t];
-            continue;
-        }
-        if (a[t] <= 0)
-            continue;
-        double r = a[t] / b[t];
-        size_t p = q++;
-        while (p > 0 && ratio[p - 1] < r) {
-            ratio[p] = ratio[p - 1];
-            idx[p] = idx[p - 1];
-            p--;
-        }
-        ratio[p] = r;
-        idx[p] = t;
-    }
-    double cap = C;
-    for (size_t p = 0; p < q; p++) {
-        size_t t = idx[p];
+    double cap = C, v = 0;
+    for (size_t p = 0; p < nj; p++) {
+        size_t t = pi[p];
         if (b[t] <= cap) {
-            value += a[t];
+            v += a[t];
             cap -= b[t];
         } else {
-            value += a[t] * (cap / b[t]);
+            v += a[t] * (cap / b[t]);
             break;
         }
     }
-    return value;
+    return v;
+}
+
+/* Value of max sum_t a[t] x_t subject to sum_t b[t] x_t <= C, 0 <= x <= 1:
+ * the fractional knapsack, whose optimum takes items by decreasing a/b and
+ * the last one fractionally (Dantzig's rule); items with b = 0 are always
+ * taken. Instead of sorting, the critical ratio is found by a weighted
+ * quickselect on the ratios (three-way partitions around a median-of-three
+ * pivot, recursing into the side that holds the capacity boundary), O(nj)
+ * expected (Balas & Zemel 1980). idx and r are nj scratch entries. */
+static double frac_knapsack(const double *a, const double *b, size_t nj,
+                            double C, double *r, size_t *idx)
+{
+    double v = 0, cap = C;
+    size_t q = 0;
+    for (size_t t = 0; t < nj; t++) {
+        if (b[t] <= 0) {
+            v += a[t];
+        } else if (a[t] > 0) {
+            r[t] = a[t] / b[t];
+            idx[q++] = t;
+        }
+    }
+    size_t lo = 0, hi = q;
+    while (lo < hi) {
+        double x = r[idx[lo]], y = r[idx[lo + (hi - lo) / 2]], z = r[idx[hi - 1]];
+        double p = x < y ? (y < z ? y : (x < z ? z : x))
+                         : (x < z ? x : (y < z ? z : y));
+        /* idx[lo..gt) > p, idx[gt..i) == p, idx[lt..hi) < p */
+        size_t gt = lo, i = lo, lt = hi;
+        while (i < lt) {
+            size_t t = idx[i];
+            if (r[t] > p) {
+                idx[i] = idx[gt];
+                idx[gt++] = t;
+                i++;
+            } else if (r[t] < p) {
+                idx[i] = idx[--lt];
+                idx[lt] = t;
+            } else {
+                i++;
+            }
+        }
+        double bg = 0, ag = 0;
+        for (size_t u = lo; u < gt; u++) {
+            bg += b[idx[u]];
+            ag += a[idx[u]];
+        }
+        if (bg > cap) {
+            hi = gt; /* the boundary lies among the larger ratios */
+            continue;
+        }
+        v += ag;
+        cap -= bg;
+        double be = 0, ae = 0;
+        for (size_t u = gt; u < lt; u++) {
+            be += b[idx[u]];
+            ae += a[idx[u]];
+        }
+        if (be >= cap)
+            return v + p * cap; /* equal ratios: a = p b */
+        v += ae;
+        cap -= be;
+        lo = lt;
+    }
+    return v;
 }
 
 static void heap_sift_down(double *h, size_t len, size_t p)
@@ -150,14 +198,20 @@ static int by_key_desc(const void *x, const void *y)
  * m(l,l') over l' is a valid big-M (also for separate constraints, which
  * hold resource i in N-k scenarios on its own).
  *
- * Speed: instead of all N^2 knapsacks, scenarios l' are visited in order
- * of decreasing total load B_l' (sorted once per resource). Scaling every
- * x_j by min(1, C/B_l') is feasible for pair (l,l'), so
- * m(l,l') >= A_l min(1, C/B_l') - C, which only grows along that order.
- * Once it reaches the current (k+1)-th smallest value no later l' can
- * enter the k+1 smallest, and the scan stops with the exact M. Rounding
- * in that test can only stop the scan early by skipping values that are
- * (within an ulp) not smaller, i.e. make M larger: never invalid. */
+ * Speed, keeping M exact: scenarios l' are visited in order of decreasing
+ * total load B_l' (sorted once per resource), so small values come first
+ * and the current (k+1)-th smallest T drops fast. For each pair, cheap
+ * lower bounds on m(l,l') decide whether the exact knapsack is needed:
+ *  - scaling every x_j by min(1, C/B_l') is feasible, so
+ *    m >= A_l min(1, C/B_l') - C; it only grows along the visiting order,
+ *    so once it reaches T no later l' can enter and the scan stops;
+ *  - a fill in a fixed order per l (jobs by a_lj over their mean weight,
+ *    which is close to the ratio order of most l') is feasible too; when
+ *    its value is >= T the pair is skipped.
+ * The remaining pairs get the exact value from frac_knapsack. Every skip is a value >= T, so the result is the
+ * exact (k+1)-th smallest; rounding in the tests can at worst skip a value
+ * within an ulp of T, which makes M larger (looser), never invalid.
+ * Cost: O(N^2 nj) per resource, with small constants. */
 static int quantile_bigm(export_ctx *c, size_t i)
 {
     const surety_model *model = c->model;
@@ -184,6 +238,12 @@ static int quantile_bigm(export_ctx *c, size_t i)
         c->order[l].l = l;
     }
     qsort(c->order, N, sizeof *c->order, by_key_desc);
+    for (size_t t = 0; t < nj; t++) {
+        double s = 0;
+        for (size_t l = 0; l < N; l++)
+            s += a[l * nj + t];
+        c->wbar[t] = s / (double)N;
+    }
 
     size_t need = c->k + 1;
     for (size_t l = 0; l < N; l++) {
@@ -191,6 +251,20 @@ static int quantile_bigm(export_ctx *c, size_t i)
         double plain = A - C;
         double M = plain;
         if (plain > 0 && need <= N) {
+            const double *al = a + l * nj;
+            /* pi: jobs by decreasing a_lj / wbar_j (jobs never seen with
+             * hours first), insertion sort on the small nj */
+            for (size_t t = 0; t < nj; t++) {
+                double r = c->wbar[t] > 0 ? al[t] / c->wbar[t] : INFINITY;
+                size_t p = t;
+                while (p > 0 && c->ratio[p - 1] < r) {
+                    c->ratio[p] = c->ratio[p - 1];
+                    c->pi[p] = c->pi[p - 1];
+                    p--;
+                }
+                c->ratio[p] = r;
+                c->pi[p] = t;
+            }
             size_t len = 0;
             for (size_t r = 0; r < N; r++) {
                 size_t lp = c->order[r].l;
@@ -199,11 +273,15 @@ static int quantile_bigm(export_ctx *c, size_t i)
                 if (len == need && lower >= c->heap[0])
                     break;
                 double v;
-                if (B <= C)
+                if (B <= C) {
                     v = A - C; /* every allowed job fits scenario l' */
-                else
-                    v = frac_knapsack(a + l * nj, a + lp * nj, nj, C,
-                                      c->ratio, c->idx) - C;
+                } else {
+                    v = fixed_order_fill(al, a + lp * nj, c->pi, nj, C) - C;
+                    if (len == need && v >= c->heap[0])
+                        continue;
+                    v = frac_knapsack(al, a + lp * nj, nj, C, c->ratio,
+                                      c->idx) - C;
+                }
                 if (len < need) {
                     heap_push(c->heap, &len, v);
                 } else if (v < c->heap[0]) {
@@ -236,6 +314,8 @@ static void free_ctx(export_ctx *c)
     surety_xfree(c->order);
     surety_xfree(c->ratio);
     surety_xfree(c->idx);
+    surety_xfree(c->wbar);
+    surety_xfree(c->pi);
     surety_xfree(c->heap);
 }
 
@@ -424,9 +504,11 @@ surety_code surety_export_mps(const surety_model *model,
         c.order = surety_xmalloc(c.N, sizeof *c.order);
         c.ratio = surety_xmalloc(nn, sizeof *c.ratio);
         c.idx = surety_xmalloc(nn, sizeof *c.idx);
+        c.wbar = surety_xmalloc(nn, sizeof *c.wbar);
+        c.pi = surety_xmalloc(nn, sizeof *c.pi);
         c.heap = surety_xmalloc(c.k + 1, sizeof *c.heap);
         bad = !c.jobs || !c.total || !c.order || !c.ratio || !c.idx ||
-              !c.heap;
+              !c.wbar || !c.pi || !c.heap;
         for (size_t i = 0; i < c.m && !bad; i++)
             bad = quantile_bigm(&c, i) != 0;
     } else if (!bad) {

@@ -389,6 +389,100 @@ Test(export, hours_factor_and_tight_allowance)
     compare_exports(32, 6, 2, 25, 0.45, SURETY_JOINT, 1);
 }
 
+/* The quantile big-M of every row of a larger export (N = 300, k = 15,
+ * two resources with factors and restricted pairs) against a plain
+ * reference in Python: per pair (l, l') the fractional knapsack by sorting
+ * the ratios (Dantzig's greedy), M = the (k+1)-th smallest, rows dropped
+ * when the all-in load fits, z dropped when M <= 0. This checks the
+ * export's pruned scan and quickselect knapsack on many rows at once. */
+Test(export, quantile_bigm_matches_sorted_reference)
+{
+    surety_model *model;
+    surety_scenarios *sc;
+    random_instance(77, 12, 2, 300, 0.05, SURETY_JOINT, 0, &model, &sc);
+    char *dir = cbc_tempdir();
+    char mps[1100], data[1100], prog[1100];
+    snprintf(mps, sizeof mps, "%s/q.mps", dir);
+    snprintf(data, sizeof data, "%s/q.txt", dir);
+    snprintf(prog, sizeof prog, "%s/q.py", dir);
+    cr_assert_eq(surety_export_mps(model, sc, SURETY_BIGM_STRENGTHENED, mps,
+                                   NULL),
+                 SURETY_OK);
+    size_t n = model->n, m = model->m, N = sc->N;
+    FILE *fp = fopen(data, "w");
+    fprintf(fp, "%zu %zu %zu %zu\n", N, n, m, surety_allowance(0.05, N));
+    for (size_t i = 0; i < m; i++) {
+        fprintf(fp, "%.17g %.17g", model->resources[i].hours_factor,
+                model->resources[i].capacity);
+        for (size_t j = 0; j < n; j++)
+            fprintf(fp, " %d", model->jobs[j].allowed[i]);
+        fprintf(fp, "\n");
+    }
+    for (size_t l = 0; l < N; l++) {
+        for (size_t j = 0; j < n; j++)
+            fprintf(fp, "%s%.17g", j ? " " : "", sc->hours[l * n + j]);
+        fprintf(fp, "\n");
+    }
+    fclose(fp);
+    fp = fopen(prog, "w");
+    fprintf(fp,
+            "import sys\n"
+            "lines = open(sys.argv[1]).read().split('\\n')\n"
+            "N, n, m, k = map(int, lines[0].split())\n"
+            "res = [list(map(float, lines[1 + i].split())) for i in range(m)]\n"
+            "H = [list(map(float, lines[1 + m + l].split())) for l in range(N)]\n"
+            "coef = {}\n"
+            "rows = set()\n"
+            "for line in open(sys.argv[2]):\n"
+            "    f = line.split()\n"
+            "    if len(f) == 2 and f[0] == 'L' and f[1].startswith('cap_'):\n"
+            "        rows.add(f[1])\n"
+            "    if len(f) == 3 and f[0].startswith('z_') and f[1].startswith('cap_'):\n"
+            "        coef[f[1]] = -float(f[2])\n"
+            "def knap(a, b, C):\n"
+            "    v = sum(x for x, y in zip(a, b) if y <= 0)\n"
+            "    items = sorted(((x / y, x, y) for x, y in zip(a, b) if y > 0 and x > 0), reverse=True)\n"
+            "    for r, x, y in items:\n"
+            "        if y <= C:\n"
+            "            v += x; C -= y\n"
+            "        else:\n"
+            "            return v + x * C / y\n"
+            "    return v\n"
+            "bad = checked = 0\n"
+            "for i in range(m):\n"
+            "    f, C = res[i][0], res[i][1]\n"
+            "    J = [j for j in range(n) if res[i][2 + j] > 0]\n"
+            "    A = [[f * H[l][j] for j in J] for l in range(N)]\n"
+            "    for l in range(N):\n"
+            "        name = 'cap_%%d_%%d' %% (l, i)\n"
+            "        plain = f * sum(H[l][j] for j in J) - C\n"
+            "        if plain <= 0:\n"
+            "            bad += name in rows\n"
+            "            continue\n"
+            "        M = sorted(knap(A[l], A[q], C) - C for q in range(N))[k]\n"
+            "        checked += 1\n"
+            "        if M > 1e-9:\n"
+            "            got = coef.get(name)\n"
+            "            bad += got is None or abs(got - M) > 1e-9 * max(1, abs(M))\n"
+            "        elif M < -1e-9:\n"
+            "            bad += name not in rows or name in coef\n"
+            "print(bad, checked)\n");
+    fclose(fp);
+    char cmd[4096];
+    snprintf(cmd, sizeof cmd, "/usr/bin/python3 '%s' '%s' '%s'", prog, data, mps);
+    FILE *p = popen(cmd, "r");
+    long bad = -1, checked = -1;
+    cr_assert_eq(fscanf(p, "%ld %ld", &bad, &checked), 2);
+    cr_assert_eq(pclose(p), 0);
+    cr_assert_eq(bad, 0, "%ld of %ld rows differ from the reference", bad,
+                 checked);
+    cr_assert_gt(checked, 300, "too few rows to mean anything: %ld", checked);
+    cbc_rmdir(dir);
+    free(dir);
+    surety_scenarios_free(sc);
+    surety_model_free(model);
+}
+
 Test(export, rejects_mismatched_scenarios)
 {
     const double cap = 10;
