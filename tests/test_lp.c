@@ -738,3 +738,41 @@ Test(lp, objective_change)
         prob_free(&p);
     }
 }
+
+/* Cutoff for pruning: below GLPK's optimum z* the solve must still reach
+ * z*; at or above it, a stop must report a bound in [z*, cutoff] (a valid
+ * upper bound by weak duality), and must not stop on a bound above it. */
+Test(lp, cutoff)
+{
+    need_glpsol();
+    rs = 707;
+    int stopped = 0;
+    for (int t = 0; t < 30; t++) {
+        prob p = random_prob((size_t)irand(5, 25), (size_t)irand(10, 60), 3);
+        ref r = glpk_solve(&p);
+        cr_assert_eq(r.status, SURETY_LP_OPTIMAL);
+        surety_lp *lp = build(&p);
+        surety_lp_set_cutoff(lp, r.obj - 1.0);
+        cr_assert_eq(surety_lp_solve(lp), SURETY_LP_OPTIMAL);
+        cr_expect(close_rel(surety_lp_obj(lp), r.obj, 1e-7));
+        surety_lp_free(lp);
+
+        lp = build(&p);
+        double cut = r.obj + 0.5 * fabs(r.obj) * urand();
+        surety_lp_set_cutoff(lp, cut);
+        surety_lp_status st = surety_lp_solve(lp);
+        cr_assert(st == SURETY_LP_OPTIMAL || st == SURETY_LP_CUTOFF);
+        if (st == SURETY_LP_CUTOFF) {
+            stopped++;
+            cr_expect(surety_lp_obj(lp) <= cut);
+            cr_expect(surety_lp_obj(lp) >= r.obj - 1e-7 * fmax(1, fabs(r.obj)),
+                      "bound %.12g below the optimum %.12g",
+                      surety_lp_obj(lp), r.obj);
+        } else {
+            cr_expect(close_rel(surety_lp_obj(lp), r.obj, 1e-7));
+        }
+        surety_lp_free(lp);
+        prob_free(&p);
+    }
+    cr_expect_gt(stopped, 0, "no solve stopped at its cutoff");
+}

@@ -92,6 +92,7 @@ struct surety_lp {
     size_t *cand;   /* n + mcap: ratio-test candidates */
     long iter_limit;
     long iters;
+    double cutoff;  /* stop once the bound c^T x is <= cutoff (money) */
     surety_lp_status status;
     double objval;
 };
@@ -931,6 +932,16 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
             return SURETY_LP_OPTIMAL;
         if (lp->iters >= lp->iter_limit)
             return SURETY_LP_ITER_LIMIT;
+        /* Every basis met here is dual feasible for the costs in use, so
+         * with the true costs and bounds c^T x bounds the optimum from
+         * above (weak duality) and only decreases. */
+        if (lp->cutoff > -INFINITY && !lp->perturbed && !lp->artificial) {
+            double v = 0.0;
+            for (size_t j = 0; j < n; j++)
+                v += lp->obj[j] * lp->x[j];
+            if (v <= lp->cutoff)
+                return SURETY_LP_CUTOFF;
+        }
         double delta = lp->x[r] - target; /* > 0: leaves to its upper */
         double sgn = delta > 0 ? 1.0 : -1.0;
         btran_row(lp, (size_t)r);
@@ -1198,6 +1209,7 @@ surety_lp *surety_lp_create(size_t n, const double *c, const double *lo,
     lp->factored = 1;
     lp->box = ARTIFICIAL_BOX;
     lp->rng = 0x9E3779B97F4A7C15ULL;
+    lp->cutoff = -INFINITY;
     lp->status = SURETY_LP_UNSOLVED;
     return lp;
 }
@@ -1326,6 +1338,11 @@ int surety_lp_set_obj(surety_lp *lp, size_t j, double c)
 void surety_lp_set_iter_limit(surety_lp *lp, long limit)
 {
     lp->iter_limit = limit;
+}
+
+void surety_lp_set_cutoff(surety_lp *lp, double cutoff)
+{
+    lp->cutoff = isnan(cutoff) ? -INFINITY : cutoff;
 }
 
 static void finish(surety_lp *lp, surety_lp_status st)

@@ -29,6 +29,7 @@ typedef enum surety_lp_status {
     SURETY_LP_UNBOUNDED = 3,  /* feasible, objective unbounded above */
     SURETY_LP_ITER_LIMIT = 4, /* stopped by the iteration limit */
     SURETY_LP_NUMERIC = 5,    /* out of memory, or a basis stayed singular */
+    SURETY_LP_CUTOFF = 6,     /* stopped early: optimum <= the cutoff */
 } surety_lp_status;
 
 /* Basis status of a variable (column j, or the row activity of row i,
@@ -73,6 +74,13 @@ int surety_lp_set_obj(surety_lp *lp, size_t j, double c);
  * restores the default, which grows with the size. */
 void surety_lp_set_iter_limit(surety_lp *lp, long limit);
 
+/* A branch and bound prunes a node whose LP bound cannot beat the
+ * incumbent: with a cutoff set, the dual simplex stops as soon as its
+ * current value, an upper bound on the optimum, is <= cutoff, with status
+ * SURETY_LP_CUTOFF and that bound as objective. -INFINITY (the default)
+ * turns it off. An optimum reached first is still reported as optimal. */
+void surety_lp_set_cutoff(surety_lp *lp, double cutoff);
+
 /* Solves from the current basis. The result stays readable until the
  * next change. */
 surety_lp_status surety_lp_solve(surety_lp *lp);
@@ -81,7 +89,8 @@ surety_lp_status surety_lp_status_of(const surety_lp *lp);
 
 /* Objective c^T x of the last solve; -INFINITY when infeasible,
  * +INFINITY when unbounded, and the value at the current basis otherwise
- * (after an iteration limit it need not be feasible). */
+ * (after an iteration limit it need not be feasible; after a cutoff it is
+ * an upper bound on the optimum). */
 double surety_lp_obj(const surety_lp *lp);
 
 /* Iterations of the last solve. */
