@@ -8,7 +8,7 @@
 
 static const char check_help[] =
     "usage: surety check MODEL PLAN [--samples M] [--confidence C] [--seed S]\n"
-    "                    [-n N] [--risk EPS] [--json]\n"
+    "                    [-n N] [--risk EPS] [--svg FILE] [--png FILE] [--json]\n"
     "\n"
     "Evaluates a plan file (as written by 'surety solve -o'):\n"
     "  in sample      on the model's own N scenarios: how many fit, and whether\n"
@@ -24,6 +24,8 @@ static const char check_help[] =
     "  --seed S        random seed (default: the model's)\n"
     "  -n N            in-sample scenario count (default: the model's)\n"
     "  --risk EPS      risk eps (default: the model's)\n"
+    "  --svg/--png FILE  chart of each resource's load on the fresh scenarios\n"
+    "                  against its capacity\n"
     "  --json          machine-readable output\n";
 
 static const char *verdict_text(surety_verdict v)
@@ -162,10 +164,13 @@ int cmd_check(int argc, char **argv)
         {"seed", required_argument, 0, 's'},
         {"risk", required_argument, 0, 'r'},
         {"json", no_argument, 0, 'j'},
+        {"svg", required_argument, 0, 'S'},
+        {"png", required_argument, 0, 'P'},
         {"help", no_argument, 0, 'h'},
         {0, 0, 0, 0},
     };
     const char *n_arg = NULL, *seed_arg = NULL, *risk_arg = NULL;
+    const char *svg = NULL, *png = NULL;
     int json = 0;
     surety_check_options copt;
     surety_check_options_init(&copt);
@@ -177,6 +182,8 @@ int cmd_check(int argc, char **argv)
         case 's': seed_arg = optarg; break;
         case 'r': risk_arg = optarg; break;
         case 'j': json = 1; break;
+        case 'S': svg = optarg; break;
+        case 'P': png = optarg; break;
         case 'M':
             if (cli_parse_size(optarg, &copt.samples) || copt.samples == 0)
                 return cli_usage_error("check", "--samples needs a positive whole number");
@@ -204,6 +211,10 @@ int cmd_check(int argc, char **argv)
     surety_code code = surety_plan_read(model, argv[optind + 1], &plan, &err);
     if (!code)
         code = surety_check(model, plan, &copt, &rep, &err);
+    if (!code && svg)
+        code = surety_chart_loads(model, plan, &copt, SURETY_CHART_SVG, svg, &err);
+    if (!code && png)
+        code = surety_chart_loads(model, plan, &copt, SURETY_CHART_PNG, png, &err);
     if (code) {
         rc = cli_report(&err, code);
     } else {
