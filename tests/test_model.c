@@ -505,8 +505,9 @@ Test(instances, table_demo)
     cr_expect_eq(m->N, 200);
     cr_expect_eq(m->table->N, 200);
     cr_expect_eq(surety_model_has_table(m), 1);
-    cr_expect_eq(m->jobs[1].has_hours, 0, "batch-b has no distribution");
-    cr_expect_eq(m->jobs[0].has_hours, 1);
+    for (size_t j = 0; j < m->n; j++)
+        cr_expect_eq(m->jobs[j].has_hours, 1, "fresh scenarios need them");
+    cr_expect_not_null(m->chol);
     /* first data row of table-demo.csv:
      * 18.04,6.44,911.95,18.71,8.51,652.28,10.12 (columns a.h, b.h, b.p,
      * c.h, d.h, d.p, e.h) */
