@@ -10,6 +10,7 @@
 
 #include "alloc.h"
 #include "lp/dense.h"
+#include "surety_config.h"
 
 /* Method.
  *
@@ -1345,8 +1346,42 @@ void surety_lp_set_cutoff(surety_lp *lp, double cutoff)
     lp->cutoff = isnan(cutoff) ? -INFINITY : cutoff;
 }
 
+/* Expensive invariant check (meson -Dexpensive_checks=true, debug
+ * builds): K^-1 is the inverse of A(R_N, S), the basic values satisfy
+ * A x - s = 0, and basic reduced costs vanish. */
+static void check_invariants(const surety_lp *lp)
+{
+    size_t n = lp->n, k = lp->k;
+    double worst = 0.0;
+    for (size_t p = 0; p < k; p++) {
+        const double *a = lp->A + lp->rowN[p] * n;
+        for (size_t p2 = 0; p2 < k; p2++) {
+            double v = 0.0;
+            for (size_t c = 0; c < k; c++)
+                v += a[lp->colS[c]] * lp->Kinv[c * n + p2];
+            worst = fmax(worst, fabs(v - (p == p2 ? 1.0 : 0.0)));
+        }
+    }
+    assert(worst < 1e-6);
+    for (size_t i = 0; i < lp->m; i++) {
+        const double *a = lp->A + i * n;
+        double v = 0.0, scale = 1.0;
+        for (size_t j = 0; j < n; j++) {
+            v += a[j] * lp->x[j];
+            scale = fmax(scale, fabs(a[j] * lp->x[j]));
+        }
+        assert(fabs(v - lp->x[n + i]) <= 1e-7 * scale);
+    }
+    for (size_t j = 0; j < n + lp->m; j++)
+        assert(lp->stat[j] != SURETY_LP_BASIC || lp->d[j] == 0.0);
+    (void)worst;
+}
+
 static void finish(surety_lp *lp, surety_lp_status st)
 {
+    if (SURETY_EXPENSIVE_CHECKS && lp->factored &&
+        (st == SURETY_LP_OPTIMAL || st == SURETY_LP_ITER_LIMIT))
+        check_invariants(lp);
     lp->status = st;
     double v = 0.0;
     for (size_t j = 0; j < lp->n; j++)
