@@ -51,6 +51,17 @@ static surety_code bad(surety_error *err, const char *job, const char *field,
     return SURETY_EINPUT;
 }
 
+/* Phi with the infinite bounds of an untruncated side handled here, so
+ * that nothing depends on how the CDF treats infinities. */
+static double phi_at(double x)
+{
+    if (x == -INFINITY)
+        return 0.0;
+    if (x == INFINITY)
+        return 1.0;
+    return surety_norm_cdf(x);
+}
+
 /* Normal-family truncation on the standard scale: alpha, beta are the
  * standardised bounds. Works with the survival function when alpha > 0:
  * Phi(alpha) is then close to 1 and F(hi) - F(lo) would cancel, while
@@ -59,12 +70,12 @@ static int normal_window(surety_marginal *mg, double alpha, double beta)
 {
     if (alpha > 0) {
         mg->flip = 1;
-        mg->p0 = surety_norm_cdf(-alpha);
-        mg->pw = mg->p0 - surety_norm_cdf(-beta);
+        mg->p0 = phi_at(-alpha);
+        mg->pw = mg->p0 - phi_at(-beta);
     } else {
         mg->flip = 0;
-        mg->p0 = surety_norm_cdf(alpha);
-        mg->pw = surety_norm_cdf(beta) - mg->p0;
+        mg->p0 = phi_at(alpha);
+        mg->pw = phi_at(beta) - mg->p0;
     }
     return mg->pw > 0;
 }
@@ -208,7 +219,10 @@ double surety_dist_from_uniform(const surety_marginal *mg, double u)
     case SURETY_DIST_TRIANGULAR:
         return clamp(tri_quantile(mg, mg->p0 + u * mg->pw), mg->lo, mg->hi);
     case SURETY_DIST_EMPIRICAL: {
-        size_t t = (size_t)(u * (double)mg->vcount);
+        /* Inverse of the empirical CDF, Q(u) = min{x : F(x) >= u}: the
+         * ceil(u*count)-th observation. */
+        double k = ceil(u * (double)mg->vcount);
+        size_t t = k >= 1.0 ? (size_t)k - 1 : 0;
         return mg->values[t < mg->vcount ? t : mg->vcount - 1];
     }
     }

@@ -302,7 +302,7 @@ const double surety_rng_zig_k[256] = {
     0x0.0p+0,
 };
 
-double surety_rng_normal_slow(surety_rng *r, unsigned i, double u)
+double surety_rng_normal_slow(surety_rng *aux, unsigned i, double u)
 {
     const double *X = surety_rng_zig_x, *F = surety_rng_zig_f;
     for (;;) {
@@ -311,21 +311,19 @@ double surety_rng_normal_slow(surety_rng *r, unsigned i, double u)
              * for the normal conditioned on |z| > r. */
             double x, y;
             do {
-                x = -log(surety_rng_uniform(r)) / X[1];
-                y = -log(surety_rng_uniform(r));
+                x = -log(surety_rng_uniform(aux)) / X[1];
+                y = -log(surety_rng_uniform(aux));
             } while (y + y < x * x);
             return u < 0 ? -(X[1] + x) : X[1] + x;
         }
         /* Wedge of layer i: accept when a uniform height between f(x[i])
          * and f(x[i+1]) lies under the density at x. */
         double x = u * X[i];
-        double y = F[i] + surety_rng_uniform(r) * (F[i + 1] - F[i]);
+        double y = F[i] + surety_rng_uniform(aux) * (F[i + 1] - F[i]);
         if (y < exp(-0.5 * x * x))
             return x;
-        uint64_t bits = surety_rng_next(r);
-        i = (unsigned)(bits & 0xff);
-        u = ((double)(bits >> 12) + 0.5) * 0x1.0p-51 - 1.0;
-        if (fabs(u) < surety_rng_zig_k[i])
-            return u * X[i];
+        double z;
+        if (surety_rng_zig_try(surety_rng_next(aux), &z, &i, &u))
+            return z;
     }
 }

@@ -59,32 +59,59 @@ extern const double surety_rng_zig_x[257];
 extern const double surety_rng_zig_f[257];
 extern const double surety_rng_zig_k[256];
 
-/* The rare branches of surety_rng_normal: wedges, the tail, retries. */
-double surety_rng_normal_slow(surety_rng *r, unsigned i, double u);
+/* The rare branches of the ziggurat (wedges, the tail, retries) for layer
+ * i and abscissa u in (-1,1) of a failed first try; further numbers come
+ * from `aux`. */
+double surety_rng_normal_slow(surety_rng *aux, unsigned i, double u);
+
+/* The ziggurat's first try from one 64-bit output: the layer index from
+ * the low 8 bits, the abscissa u in (-1,1) from the top 52 bits (disjoint
+ * bits, which avoids the dependence Doornik (2005, "An improved ziggurat
+ * method to generate normal random samples") found in the 32-bit
+ * original). Returns 1 with *z set when the point falls inside the layer's
+ * rectangle, as about 99% do. */
+static inline int surety_rng_zig_try(uint64_t bits, double *z, unsigned *i,
+                                     double *u)
+{
+    *i = (unsigned)(bits & 0xff);
+    *u = ((double)(bits >> 12) + 0.5) * 0x1.0p-51 - 1.0;
+    double a = *u < 0 ? -*u : *u;
+    if (a < surety_rng_zig_k[*i]) {
+        *z = *u * surety_rng_zig_x[*i];
+        return 1;
+    }
+    return 0;
+}
 
 /* Standard normal by the ziggurat method (Marsaglia & Tsang, "The ziggurat
  * method for generating random variables", J. Stat. Softw. 5(8), 2000),
- * exact up to rounding. The layer index comes from the low 8 bits and the
- * abscissa from the top 52 bits of the same 64-bit output: disjoint bits,
- * which avoids the dependence Doornik (2005, "An improved ziggurat method
- * to generate normal random samples") found in the 32-bit original. About
- * 99% of draws take one 64-bit output and one multiply; the number of
- * outputs used varies, which is harmless because every scenario has its
- * own generator. */
+ * exact up to rounding. Uses a varying number of outputs of r. */
 static inline double surety_rng_normal(surety_rng *r)
 {
-    uint64_t bits = surety_rng_next(r);
-    unsigned i = (unsigned)(bits & 0xff);
-    double u = ((double)(bits >> 12) + 0.5) * 0x1.0p-51 - 1.0; /* (-1,1) */
-    double a = u < 0 ? -u : u;
-    if (a < surety_rng_zig_k[i])
-        return u * surety_rng_zig_x[i];
+    double z, u;
+    unsigned i;
+    if (surety_rng_zig_try(surety_rng_next(r), &z, &i, &u))
+        return z;
     /* Only a copy's address escapes, so the caller's generator can live in
      * registers (a spilled state costs store-forwarding stalls). */
     surety_rng t = *r;
-    double z = surety_rng_normal_slow(&t, i, u);
+    z = surety_rng_normal_slow(&t, i, u);
     *r = t;
     return z;
+}
+
+/* The same law taking exactly one output of r: the numbers a wedge or the
+ * tail needs (about 1% of draws) come from an auxiliary generator started
+ * from `key`. A scenario then uses one output per job whatever the jobs'
+ * kinds, so one job's numbers never depend on another's law. */
+static inline double surety_rng_normal_keyed(surety_rng *r, uint64_t key)
+{
+    double z, u;
+    unsigned i;
+    if (surety_rng_zig_try(surety_rng_next(r), &z, &i, &u))
+        return z;
+    surety_rng aux = surety_rng_from(key);
+    return surety_rng_normal_slow(&aux, i, u);
 }
 
 #endif

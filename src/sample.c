@@ -11,6 +11,7 @@
 #include "alloc.h"
 #include "dist.h"
 #include "fileio.h"
+#include "hash.h"
 #include "lp/dense.h"
 #include "model.h"
 #include "rng.h"
@@ -18,12 +19,13 @@
 #define B SURETY_SAMPLE_BLOCK
 
 /* Layout of a scenario's stream: scenario l of stream s seeds its own
- * generator from (seed, s, l) and draws one value per job, in job order: a
- * standard normal (ziggurat) for a job in the copula or with an untruncated
- * normal or lognormal law, else a uniform. The block of copula normals is
- * multiplied by the Cholesky factor (Gaussian copula, METHODS.md s.9.2),
- * and each job's marginal maps its value to hours by inverse CDF. A job's
- * values therefore do not change when correlations among other jobs do. */
+ * generator from (seed, s, l) and takes one 64-bit output per job, in job
+ * order: a standard normal (ziggurat) for a job in the copula or with an
+ * untruncated normal or lognormal law, else a uniform. The block of copula
+ * normals is multiplied by the Cholesky factor (Gaussian copula,
+ * METHODS.md s.9.2), and each job's marginal maps its value to hours by
+ * inverse CDF. A job outside the copula therefore keeps its values when
+ * other jobs' laws or correlations change. */
 struct surety_sampler {
     const surety_model *model;
     size_t n;
@@ -218,6 +220,13 @@ void surety_sampler_free(surety_sampler *smp)
     surety_xfree(smp);
 }
 
+/* Key of job j's auxiliary generator, combined with the scenario's hash:
+ * an odd multiplier spreads consecutive jobs over all 64 bits. */
+static uint64_t aux_key(size_t j)
+{
+    return ((uint64_t)j + 1) * 0xd1342543de82ef95ULL;
+}
+
 /* Draws of scenarios l0 .. l0+rows-1, one row per scenario: copula
  * normals into z (when z is given; 0 in the other columns), every other
  * job's normal or uniform into u. */
@@ -227,11 +236,15 @@ static void draw_rows(surety_sampler *smp, uint64_t stream, size_t l0,
     size_t n = smp->n;
     const unsigned char *cop = smp->in_copula, *nor = smp->normal;
     for (size_t r = 0; r < rows; r++) {
-        surety_rng rng = surety_rng_at(smp->seed, stream, (uint64_t)(l0 + r));
+        uint64_t h = surety_hash_stream(smp->seed, stream, (uint64_t)(l0 + r));
+        surety_rng rng = surety_rng_from(h);
         double *urow = smp->u + r * n;
         double *zrow = z ? z + r * n : NULL;
         for (size_t j = 0; j < n; j++) {
-            double v = nor[j] ? surety_rng_normal(&rng)
+            /* One output of the scenario's generator per job; a normal's
+             * rare extra numbers come from a generator keyed by (scenario,
+             * job), so no job's numbers depend on another job's law. */
+            double v = nor[j] ? surety_rng_normal_keyed(&rng, h ^ aux_key(j))
                               : surety_rng_uniform(&rng);
             if (cop[j]) {
                 zrow[j] = v;
