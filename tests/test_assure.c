@@ -1,0 +1,303 @@
+/* test_assure.c - the assurance loop, the risk frontier, its chart and the
+ * statistical optimality bounds, against independent checks: a fresh
+ * million-scenario check, exhaustive enumeration of a discrete model, and
+ * Python's XML parser for the SVG.
+ * SPDX-License-Identifier: MIT */
+#include <criterion/criterion.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "surety.h"
+
+#define PYTHON "/usr/bin/python3"
+
+/* One workshop of 40 hours, eight jobs with normal hours and fixed profits.
+ * Built so that the optimal plan of a 100-scenario sample at risk 0.05 is
+ * too risky out of sample (asserted below, not assumed). */
+static const char small_json[] =
+    "{\"name\": \"assure test\", \"risk\": 0.05, \"scenarios\": 100, \"seed\": 11,\n"
+    " \"resources\": [{\"id\": \"shop\", \"capacity\": 40}],\n"
+    " \"jobs\": [\n"
+    "  {\"id\": \"a\", \"hours\": {\"dist\": \"normal\", \"mean\": 6, \"sd\": 2, \"min\": 0.5}, \"profit\": 300},\n"
+    "  {\"id\": \"b\", \"hours\": {\"dist\": \"normal\", \"mean\": 7, \"sd\": 2.5, \"min\": 0.5}, \"profit\": 350},\n"
+    "  {\"id\": \"c\", \"hours\": {\"dist\": \"normal\", \"mean\": 5, \"sd\": 1.5, \"min\": 0.5}, \"profit\": 240},\n"
+    "  {\"id\": \"d\", \"hours\": {\"dist\": \"normal\", \"mean\": 8, \"sd\": 3, \"min\": 0.5}, \"profit\": 420},\n"
+    "  {\"id\": \"e\", \"hours\": {\"dist\": \"normal\", \"mean\": 4, \"sd\": 1, \"min\": 0.5}, \"profit\": 190},\n"
+    "  {\"id\": \"f\", \"hours\": {\"dist\": \"normal\", \"mean\": 6, \"sd\": 2, \"min\": 0.5}, \"profit\": 310},\n"
+    "  {\"id\": \"g\", \"hours\": {\"dist\": \"normal\", \"mean\": 9, \"sd\": 3, \"min\": 0.5}, \"profit\": 460},\n"
+    "  {\"id\": \"h\", \"hours\": {\"dist\": \"normal\", \"mean\": 3, \"sd\": 1, \"min\": 0.5}, \"profit\": 150}]}\n";
+
+static surety_model *parse(const char *json)
+{
+    surety_model *m = NULL;
+    surety_error err;
+    surety_error_clear(&err);
+    cr_assert_eq(surety_model_parse(json, "test.json", NULL, &m, &err), SURETY_OK, "%s",
+                 err.message);
+    return m;
+}
+
+Test(assure, grows_until_certified_and_an_independent_check_agrees)
+{
+    surety_model *model = parse(small_json);
+    surety_assure_options opt;
+    surety_assure_options_init(&opt);
+    opt.target = 0.95;
+    opt.confidence = 0.95;
+    opt.samples = 10000;
+    surety_assure_report rep;
+    surety_error err;
+    cr_assert_eq(surety_assure(model, &opt, &rep, &err), SURETY_OK, "%s", err.message);
+    cr_assert_geq(rep.nsteps, 2);
+    /* the model is what the test needs: N = 100 at risk 0.05 falls short */
+    cr_expect_eq(rep.step[0].N, 100);
+    cr_expect_float_eq(rep.step[0].risk, 0.05, 1e-15);
+    cr_expect_lt(rep.step[0].lower, 0.95, "first plan already passes: %g", rep.step[0].lower);
+    /* the sample doubles and reuses its prefix; the risk never rises */
+    for (size_t s = 1; s < rep.nsteps; s++) {
+        cr_expect_eq(rep.step[s].N, 2 * rep.step[s - 1].N);
+        cr_expect_leq(rep.step[s].risk, rep.step[s - 1].risk);
+    }
+    cr_expect_eq(rep.end, SURETY_ASSURE_MET, "end %s", surety_assure_end_name(rep.end));
+    cr_assert(rep.plan);
+    cr_expect(rep.certified);
+    cr_expect_geq(rep.cert.lower, 0.95);
+    /* certificate scenarios are disjoint from screening */
+    cr_expect_eq(rep.cert.M, opt.samples);
+
+    /* Independent confirmation: another seed (every stream changes) and
+     * 10^6 fresh scenarios. The claim "reliability >= 95%" should hold
+     * within three standard errors of this estimate. */
+    surety_model_set_seed(model, 987654321);
+    surety_check_options copt;
+    surety_check_options_init(&copt);
+    copt.samples = 1000000;
+    copt.in_sample = 0;
+    surety_check_report big;
+    cr_assert_eq(surety_check(model, rep.plan, &copt, &big, &err), SURETY_OK, "%s",
+                 err.message);
+    double se = sqrt(0.95 * 0.05 / 1e6);
+    cr_expect_geq(big.reliability, 0.95 - 3 * se, "independent check: %.5f", big.reliability);
+    surety_check_report_free(&big);
+    surety_assure_report_free(&rep);
+    surety_model_free(model);
+}
+
+Test(assure, stops_at_the_scenario_limit_and_says_so)
+{
+    surety_model *model = parse(small_json);
+    surety_assure_options opt;
+    surety_assure_options_init(&opt);
+    opt.target = 0.999; /* out of reach with 100..200 scenarios and 2 steps */
+    opt.max_scenarios = 200;
+    opt.max_steps = 2;
+    opt.samples = 5000;
+    surety_assure_report rep;
+    surety_error err;
+    cr_assert_eq(surety_assure(model, &opt, &rep, &err), SURETY_OK, "%s", err.message);
+    cr_expect_eq(rep.nsteps, 2);
+    cr_expect_neq(rep.end, SURETY_ASSURE_MET);
+    cr_expect_leq(rep.step[1].N, 200);
+    if (rep.plan)
+        cr_expect_not(rep.certified && rep.end == SURETY_ASSURE_MET);
+    surety_assure_report_free(&rep);
+    surety_model_free(model);
+}
+
+static size_t count_lines(const char *path)
+{
+    FILE *fp = fopen(path, "r");
+    cr_assert(fp, "cannot open %s", path);
+    size_t n = 0;
+    int c;
+    while ((c = fgetc(fp)) != EOF)
+        n += c == '\n';
+    fclose(fp);
+    return n;
+}
+
+Test(frontier, profits_fall_with_risk_and_plans_fit_their_sample)
+{
+    surety_model *model = parse(small_json);
+    static const double risks[] = {0.2, 0.02, 0.1, 0.05}; /* any order */
+    surety_frontier_options opt;
+    surety_frontier_options_init(&opt);
+    opt.samples = 5000;
+    surety_frontier_report rep;
+    surety_error err;
+    cr_assert_eq(surety_frontier(model, risks, 4, &opt, &rep, &err), SURETY_OK, "%s",
+                 err.message);
+    cr_assert_eq(rep.npoints, 4);
+    surety_scenarios *sc = NULL;
+    cr_assert_eq(surety_model_sample(model, &sc, &err), SURETY_OK);
+    for (size_t p = 0; p < 4; p++) {
+        const surety_frontier_point *pt = &rep.point[p];
+        cr_expect_float_eq(pt->risk, risks[p], 0, "points keep the order given");
+        cr_assert(pt->plan);
+        cr_expect_eq(pt->status, SURETY_OPTIMAL);
+        /* feasible in sample, recounted here independently of the solver */
+        size_t fit = surety_plan_count_fit(model, pt->plan, sc, NULL);
+        cr_expect_geq(fit, 100 - surety_allowance(pt->risk, 100), "risk %g: %zu fit", pt->risk,
+                      fit);
+        cr_expect(pt->in_sample_ok);
+        cr_expect_leq(pt->lo, pt->reliability);
+        cr_expect_leq(pt->reliability, pt->hi);
+    }
+    /* optimal profit is non-increasing as the risk decreases */
+    for (size_t a = 0; a < 4; a++)
+        for (size_t b = 0; b < 4; b++)
+            if (risks[a] < risks[b])
+                cr_expect_leq(rep.point[a].objective, rep.point[b].objective + 1e-9,
+                              "risk %g profit %g > risk %g profit %g", risks[a],
+                              rep.point[a].objective, risks[b], rep.point[b].objective);
+
+    char csv[] = "/tmp/surety-frontier-XXXXXX.csv";
+    int fd = mkstemps(csv, 4);
+    cr_assert_geq(fd, 0);
+    close(fd);
+    cr_assert_eq(surety_frontier_write_csv(&rep, csv, &err), SURETY_OK, "%s", err.message);
+    cr_expect_eq(count_lines(csv), 5, "header and one row per level");
+    unlink(csv);
+
+    if (surety_chart_available() && access(PYTHON, X_OK) == 0) {
+        char svg[] = "/tmp/surety-frontier-XXXXXX.svg";
+        fd = mkstemps(svg, 4);
+        cr_assert_geq(fd, 0);
+        close(fd);
+        cr_assert_eq(surety_chart_frontier(&rep, 0.95, SURETY_CHART_SVG, svg, &err), SURETY_OK,
+                     "%s", err.message);
+        /* Python's XML parser must read it; the point markers are the only
+         * paths filled with the marker colour (chart.c POINT, written by
+         * cairo as percentages). */
+        char cmd[1024];
+        snprintf(cmd, sizeof cmd,
+                 PYTHON " -c \"import xml.etree.ElementTree as E; r=E.parse('%s').getroot(); "
+                        "print(r.tag.endswith('svg'), sum(1 for e in r.iter() "
+                        "if e.tag.endswith('path') and 'fill:rgb(10%%,35%%,65%%)' in "
+                        "e.get('style','')))\"",
+                 svg);
+        FILE *p = popen(cmd, "r");
+        cr_assert(p);
+        char ok[16] = "";
+        int points = -1;
+        int got = fscanf(p, "%15s %d", ok, &points);
+        pclose(p);
+        cr_assert_eq(got, 2, "python could not parse the SVG");
+        cr_expect_str_eq(ok, "True");
+        cr_expect_eq(points, 4, "one marker per level, got %d", points);
+        unlink(svg);
+    }
+    surety_scenarios_free(sc);
+    surety_frontier_report_free(&rep);
+    surety_model_free(model);
+}
+
+/* A discrete model whose true optimum is known by enumeration: one shop of
+ * 12 hours, four jobs with equally likely hours values (independent) and
+ * fixed profits, so the objective is deterministic and PAS 2009 applies
+ * exactly. */
+static const char tiny_json_fmt[] =
+    "{\"name\": \"tiny\", \"risk\": 0.17, \"scenarios\": 200, \"seed\": %lu,\n"
+    " \"resources\": [{\"id\": \"shop\", \"capacity\": 12}],\n"
+    " \"jobs\": [\n"
+    "  {\"id\": \"a\", \"hours\": {\"dist\": \"empirical\", \"values\": [2, 4, 6]}, \"profit\": 10},\n"
+    "  {\"id\": \"b\", \"hours\": {\"dist\": \"empirical\", \"values\": [3, 5]}, \"profit\": 9},\n"
+    "  {\"id\": \"c\", \"hours\": {\"dist\": \"empirical\", \"values\": [1, 4, 7]}, \"profit\": 8},\n"
+    "  {\"id\": \"d\", \"hours\": {\"dist\": \"empirical\", \"values\": [2, 3]}, \"profit\": 5}]}\n";
+
+static const double tiny_values[4][3] = {{2, 4, 6}, {3, 5, 0}, {1, 4, 7}, {2, 3, 0}};
+static const double tiny_profit[4] = {10, 9, 8, 5};
+
+/* Exhaustive: every subset of jobs, its exact probability of fitting 12
+ * hours over the 3*2*3*2 = 36 equally likely outcomes. Returns the best
+ * profit among subsets that fit with probability >= 1 - eps. */
+static double tiny_optimum(double eps)
+{
+    double best = 0;
+    for (int S = 0; S < 16; S++) {
+        int fit = 0, total = 0;
+        for (int a = 0; a < 3; a++)
+            for (int b = 0; b < 2; b++)
+                for (int c = 0; c < 3; c++)
+                    for (int d = 0; d < 2; d++) {
+                        int idx[4] = {a, b, c, d};
+                        double load = 0;
+                        for (int j = 0; j < 4; j++)
+                            if (S >> j & 1)
+                                load += tiny_values[j][idx[j]];
+                        fit += load <= 12;
+                        total++;
+                    }
+        double p = 0;
+        for (int j = 0; j < 4; j++)
+            if (S >> j & 1)
+                p += tiny_profit[j];
+        /* fit/36 >= 1-eps, compared in integers to avoid a knife edge */
+        if ((double)fit >= (1 - eps) * total - 1e-9 && p > best)
+            best = p;
+    }
+    return best;
+}
+
+static int bounds_cover(unsigned long seed, double *upper, double *lower)
+{
+    char json[2048];
+    snprintf(json, sizeof json, tiny_json_fmt, seed);
+    surety_model *model = parse(json);
+    surety_bounds_options opt;
+    surety_bounds_options_init(&opt);
+    opt.replications = 10;
+    opt.confidence = 0.95;
+    opt.samples = 4000;
+    surety_bounds_report rep;
+    surety_error err;
+    cr_assert_eq(surety_bounds(model, &opt, &rep, &err), SURETY_OK, "%s", err.message);
+    /* METHODS.md s.5 (SciPy 1.10.1) gives L = 2 for M = 10 at beta = 0.01
+     * with theta = 0.5375; here beta/2 = 0.025 and theta = B(34; 200, 0.17) */
+    cr_assert_gt(rep.L, 0);
+    double opt_true = tiny_optimum(0.17);
+    *upper = rep.upper;
+    *lower = rep.plan ? rep.lower : -INFINITY;
+    int ok = rep.upper >= opt_true - 1e-9 && *lower <= opt_true + 1e-9;
+    surety_bounds_report_free(&rep);
+    surety_model_free(model);
+    return ok;
+}
+
+Test(bounds, interval_on_an_enumerable_model)
+{
+    /* cross-checked by a separate enumeration in Python (itertools.product
+     * over the 36 outcomes): {a,b,d} fits 12 h in 30 of 36 (83.3% >= 83%),
+     * every more profitable set fits less often, so the optimum at risk
+     * 0.17 is 24 */
+    cr_expect_float_eq(tiny_optimum(0.17), 24, 1e-12);
+    double up, lo;
+    int ok = bounds_cover(5, &up, &lo);
+    cr_expect(ok, "interval [%g, %g] misses the true optimum 24", lo, up);
+    cr_expect_leq(lo, up);
+}
+
+/* Coverage over many independent seeds: the interval must contain the true
+ * optimum in at least the stated 95% of runs (minus three binomial standard
+ * errors). Slow suite. */
+Test(slow_bounds, coverage)
+{
+    if (!getenv("SURETY_SLOW"))
+        cr_skip_test("set SURETY_SLOW=1 (meson test --suite slow)");
+    int reps = 200, covered = 0, up_ok = 0;
+    double opt_true = tiny_optimum(0.17);
+    for (int r = 0; r < reps; r++) {
+        double up, lo;
+        covered += bounds_cover(1000 + (unsigned long)r, &up, &lo);
+        up_ok += up >= opt_true - 1e-9;
+    }
+    double cov = (double)covered / reps;
+    cr_log_info("bounds coverage: %d of %d (%.3f); upper side alone %d", covered, reps, cov,
+                up_ok);
+    fprintf(stderr, "bounds coverage: %d of %d (%.3f); upper side alone %d of %d\n", covered,
+            reps, cov, up_ok, reps);
+    cr_expect_geq(cov, 0.95 - 3 * sqrt(0.95 * 0.05 / reps));
+}
