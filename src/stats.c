@@ -184,9 +184,23 @@ static double log_dbinom_raw(double x, double n, double p, double q)
         return n == 0.0 ? 0.0 : n * (p < 0.5 ? log1p(-p) : log(q));
     if (x == n)
         return n * (q < 0.5 ? log1p(-q) : log(p));
+    /* Far from the mode bd0(x, np) is sensitive to np (derivative
+     * 1 - x/np), so the rounding of the products is put back to first
+     * order. The smaller of p, q is taken as exact and the larger as one
+     * minus it: callers pass q = 1 - p rounded, or the reverse. */
+    double np = n * p, nq = n * q;
+    double ep = fma(n, p, -np), eq = fma(n, q, -nq);
+    if (p <= q)
+        eq += n * ((1.0 - q) - p);
+    else
+        ep += n * ((1.0 - p) - q);
     double lc = stirlerr(n) - stirlerr(x) - stirlerr(n - x)
-                - bd0(x, n * p) - bd0(n - x, n * q);
-    double lf = LN_2PI + log(x) + log1p(-x / n);
+                - (bd0(x, np) + ep * (1.0 - x / np))
+                - (bd0(n - x, nq) + eq * (1.0 - (n - x) / nq));
+    /* ln(2 pi x (n-x)/n); n - x is exact when x >= n/2 (Sterbenz), where
+     * log1p(-x/n) would inherit the rounding of x/n relative to 1 - x/n */
+    double lf = LN_2PI + log(x)
+                + (x < 0.5 * n ? log1p(-x / n) : log((n - x) / n));
     return lc - 0.5 * lf;
 }
 
@@ -280,11 +294,11 @@ static double beta_cf(double x, double a, double b)
  * gives the smaller tail there; the other is its complement. Prefactor:
  * x^a y^b / (a B(a,b)) = dbinom(a; a+b, x) * b/(a+b), which Loader's form
  * evaluates without the cancellation of ln Gamma differences. */
-static void ibeta_log(double x, double y, double a, double b, double *lI,
-                      double *lIc)
+static void ibeta_log_cf(double x, double y, double a, double b,
+                         double *lI, double *lIc)
 {
     if (x > (a + 1.0) / (a + b + 2.0)) {
-        ibeta_log(y, x, b, a, lIc, lI);
+        ibeta_log_cf(y, x, b, a, lIc, lI);
         return;
     }
     double lpre = log_dbinom_raw(a, a + b, x, y) + log(b / (a + b));
@@ -292,6 +306,23 @@ static void ibeta_log(double x, double y, double a, double b, double *lI,
     if (*lI > 0.0)
         *lI = 0.0;
     *lIc = log1mexp(*lI);
+}
+
+static void binom_log_tails(long k, long N, double p, double *lcdf,
+                            double *lsf);
+
+/* ln I_x(a,b) and ln(1 - I_x(a,b)) for 0 < x < 1 given exactly. With
+ * integer a and b (Clopper-Pearson always) I_x(a,b) = P{Bin(a+b-1, x) >= a}
+ * (METHODS.md s.1), and the binomial tail sums are used: near the mean of
+ * a tight beta law, x close to 1, the fraction starts with 1 - (a+b)x/(a+1)
+ * and loses digits to cancellation (about 1e-11 at a + b = 1e6). */
+static void ibeta_log(double x, double a, double b, double *lI, double *lIc)
+{
+    if (a == floor(a) && b == floor(b) && a + b < 4e18) {
+        binom_log_tails((long)a - 1, (long)(a + b) - 1, x, lIc, lI);
+        return;
+    }
+    ibeta_log_cf(x, 1.0 - x, a, b, lI, lIc);
 }
 
 static int ibeta_args_ok(double x, double a, double b)
@@ -309,7 +340,7 @@ double surety_stats_ibeta(double x, double a, double b)
     if (x == 1.0)
         return 1.0;
     double lI, lIc;
-    ibeta_log(x, 1.0 - x, a, b, &lI, &lIc);
+    ibeta_log(x, a, b, &lI, &lIc);
     return exp(lI);
 }
 
@@ -322,7 +353,7 @@ double surety_stats_ibetac(double x, double a, double b)
     if (x == 1.0)
         return 0.0;
     double lI, lIc;
-    ibeta_log(x, 1.0 - x, a, b, &lI, &lIc);
+    ibeta_log(x, a, b, &lI, &lIc);
     return exp(lIc);
 }
 
@@ -360,7 +391,7 @@ static double beta_root(double y, double yc, double a, double b)
     while (hi - lo > 1) {
         uint64_t mid = lo + (hi - lo) / 2;
         double x = bits_double(mid), lI, lIc;
-        ibeta_log(x, 1.0 - x, a, b, &lI, &lIc);
+        ibeta_log(x, a, b, &lI, &lIc);
         double f = use_lower ? lI : lIc;
         int below = use_lower ? f < target : f > target;
         if (below) {
@@ -389,7 +420,7 @@ double surety_stats_ibeta_inv(double y, double a, double b)
 /* Terms summed before falling back to the continued fraction. Each term
  * carries a relative error of at most (terms so far) ulp, so the sum stays
  * within about 2e-12 even at the cap. */
-#define TAIL_TERMS 20000
+#define TAIL_TERMS 100000
 
 /* ln P{X <= k} and ln P{X > k} for X ~ Bin(N,p), 0 <= k < N, 0 < p < 1.
  * The tail that excludes the mode is summed outward from its term nearest
@@ -415,7 +446,7 @@ static void binom_log_tails(long k, long N, double p, double *lcdf,
             *lcdf = surety_stats_binom_logpmf(k, N, p) + log(s);
             *lsf = log1mexp(*lcdf);
         } else {
-            ibeta_log(q, p, dN - (double)k, (double)k + 1.0, lcdf, lsf);
+            ibeta_log_cf(q, p, dN - (double)k, (double)k + 1.0, lcdf, lsf);
         }
     } else {
         long j = k + 1;
@@ -429,7 +460,8 @@ static void binom_log_tails(long k, long N, double p, double *lcdf,
             *lsf = surety_stats_binom_logpmf(k + 1, N, p) + log(s);
             *lcdf = log1mexp(*lsf);
         } else {
-            ibeta_log(p, q, (double)k + 1.0, dN - (double)k, lsf, lcdf);
+            ibeta_log_cf(p, q, (double)k + 1.0, dN - (double)k, lsf,
+                         lcdf);
         }
     }
 }
