@@ -24,10 +24,13 @@ typedef struct cbc_solution {
     double *values;
 } cbc_solution;
 
-/* 1 when the cbc program can be started. */
+/* 1 when the cbc program can be started (asked once per process). */
 static int cbc_available(void)
 {
-    return system("cbc -quit >/dev/null 2>&1") == 0;
+    static int known = -1;
+    if (known < 0)
+        known = system("cbc -quit >/dev/null 2>&1") == 0;
+    return known;
 }
 
 /* A fresh temporary directory (caller frees the string), or NULL. */
