@@ -290,7 +290,7 @@ def run_peer(ctx, peer, form, inst, work, mps):
             js = json.loads(log)
             r = {"status": js["status"], "objective": obj_to_profit(mps, js["objective"]),
                  "bound": obj_to_profit(mps, js["bound"]), "nodes": js["nodes"],
-                 "x": js["x"]}
+                 "x": js["x"], "solver_s": js.get("solve_seconds")}
         except (ValueError, KeyError):
             r = {"status": "error", "objective": None, "bound": None, "nodes": None, "x": {},
                  "error": "highs_mps.py exit %d: %s" % (rc, read_text(base + ".out.err")[-400:])}
@@ -300,6 +300,12 @@ def run_peer(ctx, peer, form, inst, work, mps):
         r = parse_glpk(log, read_text(sol), mps)
     if r["status"] == "error" and "error" not in r:
         r["error"] = "%s exit %d; see %s" % (peer, rc, base + ".out")
+    if peer == "cbc":
+        m = re.search(r"^Time \(Wallclock seconds\):\s+(\S+)", log, re.M)
+        r["solver_s"] = float(m.group(1)) if m else None
+    elif peer == "glpk":
+        m = re.search(r"^Time used:\s+(\S+) secs", log, re.M)
+        r["solver_s"] = float(m.group(1)) if m else None
     r.update({"wall_s": wall, "cpu_s": cpu, "mem_mb": mem, "cmd": cmd})
     return r
 
