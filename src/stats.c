@@ -417,9 +417,11 @@ double surety_stats_ibeta_inv(double y, double a, double b)
 /* Binomial tails                                                      */
 /* ------------------------------------------------------------------ */
 
-/* Terms summed before falling back to the continued fraction. Each term
- * carries a relative error of at most (terms so far) ulp, so the sum stays
- * within about 2e-12 even at the cap. */
+/* Terms summed before falling back to the continued fraction (enough for
+ * 10 standard deviations up to N = 4e8 at p = 1/2). Each term carries a
+ * relative error of at most (terms so far) ulp, so the sum is within 1e-11
+ * even at the cap, and far better in practice (errors add at random and
+ * the late terms are small). */
 #define TAIL_TERMS 100000
 
 /* ln P{X <= k} and ln P{X > k} for X ~ Bin(N,p), 0 <= k < N, 0 < p < 1.
@@ -653,7 +655,8 @@ size_t surety_stats_la_fixed_k(double eps, size_t k, double delta,
     return min_n_fixed_k(eps, k, log(delta) - lnX);
 }
 
-/* The Luedtke-Ahmed condition with k = floor(alpha N) (METHODS.md s.3.1).
+/* The condition of Luedtke & Ahmed (2008) with k = floor(alpha N)
+ * (METHODS.md s.3.1).
  * For fixed k it is monotone in N, so the N axis splits into plateaus of
  * constant k on each of which the passing N form a suffix. */
 typedef struct la_ctx {
@@ -780,6 +783,7 @@ size_t surety_stats_la_stable(double eps, double alpha, double delta,
     return 0;
 }
 
+/* Display forms of Luedtke & Ahmed (2008), METHODS.md s.3.1-s.3.2. */
 size_t surety_stats_la_chernoff(double eps, double alpha, double delta,
                                 double lnX)
 {
@@ -815,6 +819,7 @@ size_t surety_stats_la_lower(double eps, double alpha, double delta)
     return ceil_count(-log(delta) / (2.0 * g * g));
 }
 
+/* Campi & Garatti (2008): the exact binomial condition, monotone in N. */
 size_t surety_stats_cg2008(double eps, double beta, size_t d)
 {
     if (!prob_ok(eps) || !prob_ok(beta) || d == 0)
@@ -822,6 +827,7 @@ size_t surety_stats_cg2008(double eps, double beta, size_t d)
     return min_n_fixed_k(eps, d - 1, log(beta));
 }
 
+/* Campi, Garatti & Prandini (2009). */
 size_t surety_stats_cgp2009(double eps, double beta, size_t d)
 {
     if (!prob_ok(eps) || !prob_ok(beta) || d == 0)
@@ -829,6 +835,7 @@ size_t surety_stats_cgp2009(double eps, double beta, size_t d)
     return ceil_count(2.0 / eps * (-log(beta) + (double)d));
 }
 
+/* Calafiore & Campi (2006). */
 size_t surety_stats_cc2006(double eps, double beta, size_t d)
 {
     if (!prob_ok(eps) || !prob_ok(beta) || d == 0)
@@ -838,6 +845,7 @@ size_t surety_stats_cc2006(double eps, double beta, size_t d)
                       + 2.0 * dd / eps * log(2.0 / eps));
 }
 
+/* Calafiore & Campi (2005). */
 size_t surety_stats_cc2005(double eps, double beta, size_t d)
 {
     if (!prob_ok(eps) || !prob_ok(beta) || d == 0)
@@ -845,6 +853,8 @@ size_t surety_stats_cc2005(double eps, double beta, size_t d)
     return ceil_count((double)d / (eps * beta) - 1.0);
 }
 
+/* Sampling and discarding, Campi & Garatti (2011):
+ * ln[C(k+d-1, k) B(k+d-1; N, eps)]. */
 double surety_stats_discard_logprob(size_t N, size_t k, size_t d,
                                     double eps)
 {
@@ -890,6 +900,8 @@ long surety_stats_discard_max_k(size_t N, size_t d, double eps, double beta)
     return (long)lo;
 }
 
+/* One-sided Clopper-Pearson certificate (METHODS.md s.4): the discarding
+ * bound with d = 1. */
 size_t surety_stats_certify_min_samples(double eps, double beta, size_t v)
 {
     if (!prob_ok(eps) || !prob_ok(beta))
@@ -902,6 +914,8 @@ long surety_stats_certify_max_violations(size_t N, double eps, double beta)
     return surety_stats_discard_max_k(N, 1, eps, beta);
 }
 
+/* Campi, Garatti & Ramponi (2018), in logs so that C(N, sigma) cannot
+ * overflow: eps = 1 - exp((ln beta - ln N - ln C(N,sigma)) / (N-sigma)). */
 double surety_stats_cgr2018_eps(size_t N, size_t sigma, double beta)
 {
     if (!prob_ok(beta) || N == 0)
@@ -914,6 +928,7 @@ double surety_stats_cgr2018_eps(size_t N, size_t sigma, double beta)
     return -expm1(l);
 }
 
+/* Pagnoncelli, Ahmed & Shapiro (2009), METHODS.md s.5. */
 double surety_stats_pas_theta(size_t N, double gamma, double eps)
 {
     if (!prob_ok(eps) || !(gamma >= 0.0) || !(gamma <= 1.0) || N == 0)
