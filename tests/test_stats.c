@@ -513,8 +513,9 @@ Test(sample_size, sampling_and_discarding)
 
 /* METHODS.md s.3.3: with d = 1 sampling and discarding is the one-sided
  * Clopper-Pearson test. For each N, v, eps, beta: B(v; N, eps) <= beta iff
- * the one-sided lower bound on reliability at 1-beta reaches 1-eps. Both
- * routines are independent code paths (binomial tail vs beta quantile). */
+ * the one-sided lower bound on reliability at 1-beta reaches 1-eps. The
+ * two take different routes: a tail evaluated at eps, against a quantile
+ * found by bisection on the beta law. */
 Test(sample_size, discarding_d1_is_clopper_pearson)
 {
     static const size_t Ns[] = {20, 59, 90, 100, 371, 1000, 2503, 10000};
