@@ -776,3 +776,72 @@ Test(lp, cutoff)
     }
     cr_expect_gt(stopped, 0, "no solve stopped at its cutoff");
 }
+
+/* The pattern of a branch and bound: nodes keep their parent's basis,
+ * fix columns to 0 or 1, add rows, and are solved warm from the parent's
+ * basis restored over more rows than it was saved with. Each node's LP
+ * must match a cold solve of the same LP, and some nodes GLPK. */
+Test(lp, branch_and_bound_pattern)
+{
+    need_glpsol();
+    rs = 808;
+    for (int t = 0; t < 6; t++) {
+        size_t n = (size_t)irand(10, 30), m = (size_t)irand(10, 40);
+        size_t extra = 20;
+        prob full = random_prob(n, m + extra, 3);
+        prob p = full;
+        p.m = m;
+        surety_lp *lp = build(&p);
+        cr_assert_eq(surety_lp_solve(lp), SURETY_LP_OPTIMAL);
+        enum { NODES = 24 };
+        signed char *basis[NODES];
+        size_t brows[NODES];
+        double nlo[NODES][32], nhi[NODES][32];
+        basis[0] = malloc(n + m + extra);
+        surety_lp_get_basis(lp, basis[0]);
+        brows[0] = m;
+        for (size_t j = 0; j < n; j++)
+            nlo[0][j] = 0, nhi[0][j] = 1;
+        for (int v = 1; v < NODES; v++) {
+            int parent = irand(0, v - 1);
+            memcpy(nlo[v], nlo[parent], sizeof nlo[v]);
+            memcpy(nhi[v], nhi[parent], sizeof nhi[v]);
+            size_t j = (size_t)irand(0, (int)n - 1);
+            nlo[v][j] = nhi[v][j] = (double)irand(0, 1);
+            for (size_t jj = 0; jj < n; jj++)
+                cr_assert_eq(surety_lp_set_col_bounds(lp, jj, nlo[v][jj],
+                                                      nhi[v][jj]), 0);
+            cr_assert_eq(surety_lp_set_basis(lp, basis[parent], brows[parent]),
+                         0);
+            if (surety_lp_nrows(lp) < m + extra && urand() < 0.4) {
+                size_t i = surety_lp_nrows(lp);
+                surety_lp_add_row(lp, full.A + i * n, full.rlo[i], full.rhi[i]);
+            }
+            surety_lp_status sw = surety_lp_solve(lp);
+            prob node = full;
+            node.m = surety_lp_nrows(lp);
+            memcpy(node.lo, nlo[v], n * sizeof *node.lo);
+            memcpy(node.hi, nhi[v], n * sizeof *node.hi);
+            surety_lp *cold = build(&node);
+            surety_lp_status sc = surety_lp_solve(cold);
+            cr_assert_eq(sw, sc, "instance %d node %d: warm %d cold %d", t, v,
+                         sw, sc);
+            if (sw == SURETY_LP_OPTIMAL)
+                cr_assert(close_rel(surety_lp_obj(lp), surety_lp_obj(cold),
+                                    1e-9),
+                          "instance %d node %d: warm %.12g cold %.12g", t, v,
+                          surety_lp_obj(lp), surety_lp_obj(cold));
+            if (v % 6 == 0)
+                compare(&node, lp, sw, "node");
+            surety_lp_free(cold);
+            basis[v] = malloc(n + m + extra);
+            surety_lp_get_basis(lp, basis[v]);
+            brows[v] = surety_lp_nrows(lp);
+        }
+        for (int v = 0; v < NODES; v++)
+            free(basis[v]);
+        /* full.lo/hi were overwritten through node; p shares them */
+        surety_lp_free(lp);
+        prob_free(&full);
+    }
+}
