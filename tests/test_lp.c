@@ -848,3 +848,53 @@ Test(lp, branch_and_bound_pattern)
         prob_free(&full);
     }
 }
+
+/* Deleting rows, binding ones included, then re-solving warm must give
+ * the optimum of the LP without them (cold solve and GLPK). */
+Test(lp, delete_rows)
+{
+    need_glpsol();
+    rs = 909;
+    int binding_deleted = 0;
+    for (int t = 0; t < 30; t++) {
+        size_t n = (size_t)irand(3, 20), m = (size_t)irand(6, 50);
+        prob p = random_prob(n, m, t % 2 ? 3 : 0);
+        surety_lp *lp = build(&p);
+        surety_lp_solve(lp);
+        signed char *basis = malloc(n + m);
+        surety_lp_get_basis(lp, basis);
+        size_t *gone = malloc(m * sizeof *gone), count = 0, keep = 0;
+        for (size_t i = 0; i < m; i++) {
+            if (urand() < 0.3) {
+                gone[count++] = i;
+                binding_deleted += basis[n + i] != SURETY_LP_BASIC;
+            } else {
+                /* compact the reference LP the same way */
+                memmove(p.A + keep * n, p.A + i * n, n * sizeof *p.A);
+                p.rlo[keep] = p.rlo[i];
+                p.rhi[keep] = p.rhi[i];
+                keep++;
+            }
+        }
+        cr_assert_eq(surety_lp_del_rows(lp, gone, count), 0);
+        cr_assert_eq(surety_lp_nrows(lp), keep);
+        p.m = keep;
+        surety_lp_status sw = surety_lp_solve(lp);
+        surety_lp *cold = build(&p);
+        surety_lp_status sc = surety_lp_solve(cold);
+        cr_assert_eq(sw, sc, "instance %d: warm %d cold %d", t, sw, sc);
+        if (sw == SURETY_LP_OPTIMAL)
+            cr_assert(close_rel(surety_lp_obj(lp), surety_lp_obj(cold), 1e-9),
+                      "instance %d: warm %.12g cold %.12g", t,
+                      surety_lp_obj(lp), surety_lp_obj(cold));
+        compare(&p, lp, sw, "after deletion");
+        size_t bad_row = keep;
+        cr_expect_eq(surety_lp_del_rows(lp, &bad_row, 1), -1);
+        surety_lp_free(cold);
+        surety_lp_free(lp);
+        free(gone);
+        free(basis);
+        prob_free(&p);
+    }
+    cr_expect_gt(binding_deleted, 0, "no deleted row was binding");
+}

@@ -200,6 +200,93 @@ long surety_lp_add_row(surety_lp *lp, const double *a, double rlo,
     return (long)i;
 }
 
+/* Nonbasic status nearest to the value v of column j. */
+static signed char nearest_bound(const surety_lp *lp, size_t j, double v)
+{
+    double l = lp->lb[j], u = lp->ub[j];
+    if (isfinite(l) && (!isfinite(u) || fabs(v - l) <= fabs(v - u)))
+        return SURETY_LP_AT_LOWER;
+    return isfinite(u) ? SURETY_LP_AT_UPPER : SURETY_LP_AT_ZERO;
+}
+
+/* A row whose logical is nonbasic is first made basic by the shrinking
+ * update of K^-1 (surety_basis_pivot with a column leaving): of the basic
+ * columns, the one with the largest |K^-1(c, p)| leaves, which keeps the
+ * remaining kernel as well conditioned as the update allows. Then every
+ * deleted row has a basic logical, and dropping such rows leaves a valid
+ * basis of the rest with K^-1 unchanged. */
+int surety_lp_del_rows(surety_lp *lp, const size_t *rows, size_t count)
+{
+    if (!lp || (count > 0 && !rows))
+        return -1;
+    size_t n = lp->n, m = lp->m;
+    for (size_t t = 0; t < count; t++)
+        if (rows[t] >= m)
+            return -1;
+    if (count == 0)
+        return 0;
+    unsigned char *del = surety_xcalloc(m, 1);
+    size_t *to = surety_xmalloc(m, sizeof *to);
+    if (!del || !to || (!lp->factored && surety_basis_refactor(lp) < -1)) {
+        surety_xfree(del);
+        surety_xfree(to);
+        return -1;
+    }
+    for (size_t t = 0; t < count; t++)
+        del[rows[t]] = 1;
+    for (size_t i = 0; i < m; i++) {
+        if (!del[i] || lp->posN[i] < 0)
+            continue;
+        size_t p = (size_t)lp->posN[i], best = 0;
+        double amax = -1.0;
+        for (size_t c = 0; c < lp->k; c++) {
+            double a = fabs(lp->Kinv[c * n + p]);
+            if (a > amax) {
+                amax = a;
+                best = c;
+            }
+        }
+        size_t r = lp->colS[best];
+        surety_basis_pivot(lp, n + i, r);
+        lp->stat[n + i] = SURETY_LP_BASIC;
+        lp->stat[r] = nearest_bound(lp, r, lp->x[r]);
+    }
+    size_t w = 0;
+    for (size_t i = 0; i < m; i++) {
+        if (del[i])
+            continue;
+        to[i] = w;
+        if (w != i) {
+            size_t a = n + i, b = n + w;
+            memmove(lp->A + w * n, lp->A + i * n, n * sizeof *lp->A);
+            lp->cost[b] = lp->cost[a];
+            lp->lb[b] = lp->lb[a];
+            lp->ub[b] = lp->ub[a];
+            lp->wlb[b] = lp->wlb[a];
+            lp->wub[b] = lp->wub[a];
+            lp->x[b] = lp->x[a];
+            lp->d[b] = lp->d[a];
+            lp->stat[b] = lp->stat[a];
+            lp->wgt[b] = lp->wgt[a];
+            lp->posN[w] = lp->posN[i];
+        }
+        w++;
+    }
+    for (size_t j = 0; j < n; j++) {
+        double *col = lp->AT + j * lp->mcap;
+        for (size_t i = 0; i < m; i++)
+            if (!del[i])
+                col[to[i]] = col[i];
+    }
+    for (size_t p = 0; p < lp->k; p++)
+        lp->rowN[p] = to[lp->rowN[p]];
+    lp->m = w;
+    lp->status = SURETY_LP_UNSOLVED;
+    surety_xfree(del);
+    surety_xfree(to);
+    return 0;
+}
+
 int surety_lp_set_col_bounds(surety_lp *lp, size_t j, double lo, double hi)
 {
     if (!lp || j >= lp->n || check_bounds(lo, hi))

@@ -61,6 +61,14 @@ size_t surety_lp_nrows(const surety_lp *lp);
 long surety_lp_add_row(surety_lp *lp, const double *a, double rlo,
                        double rhi);
 
+/* Deletes the `count` rows listed in rows[] (any order, repeats allowed);
+ * the rows after them move down and keep their order, so row indices
+ * change. The basis stays valid: a deleted row whose activity was
+ * nonbasic takes a basic column's place, that column going to its
+ * nearest bound. For dropping cuts or scenario rows that went slack.
+ * Returns 0, or -1 on a bad index or out of memory (LP unchanged). */
+int surety_lp_del_rows(surety_lp *lp, const size_t *rows, size_t count);
+
 /* Changes the bounds of column j or row i. Returns 0, or -1 on a bad
  * index, lo > hi or NaN. */
 int surety_lp_set_col_bounds(surety_lp *lp, size_t j, double lo, double hi);
