@@ -336,7 +336,16 @@ void surety_basis_dual(surety_lp *lp)
     surety_dense_gemv(1, k, k, 1.0, lp->Kinv, n, rhs, 0.0, yn);
     for (size_t p = 0; p < k; p++)
         y[lp->rowN[p]] = yn[p];
-    surety_dense_gemv(1, m, n, 1.0, lp->A, n, y, 0.0, t);
+    /* y lives on R_N unless logical costs are perturbed: then a full
+     * product, else only the k rows of R_N */
+    if (any) {
+        surety_dense_gemv(1, m, n, 1.0, lp->A, n, y, 0.0, t);
+    } else {
+        memset(t, 0, n * sizeof *t);
+        for (size_t p = 0; p < k; p++)
+            if (yn[p] != 0.0)
+                axpy(n, yn[p], lp->A + lp->rowN[p] * n, t);
+    }
     for (size_t j = 0; j < n; j++)
         lp->d[j] = lp->stat[j] == SURETY_LP_BASIC ? 0.0 : lp->cost[j] - t[j];
     for (size_t i = 0; i < m; i++)
