@@ -113,7 +113,6 @@ static int cmp_dbl(const void *a, const void *b)
 /* Ranks 1..N (continuous data: no ties expected). */
 static double *ranks(const double *x, size_t N)
 {
-    size_t *idx = surety_xmalloc(N, sizeof *idx);
     double *r = surety_xmalloc(N, sizeof *r);
     double *key = surety_xmalloc(N * 2, sizeof *key);
     for (size_t l = 0; l < N; l++) {
@@ -123,7 +122,6 @@ static double *ranks(const double *x, size_t N)
     qsort(key, N, 2 * sizeof *key, cmp_dbl);
     for (size_t t = 0; t < N; t++)
         r[(size_t)key[2 * t + 1]] = (double)(t + 1);
-    surety_xfree(idx);
     surety_xfree(key);
     return r;
 }
