@@ -16,7 +16,8 @@ void *surety_xmalloc(size_t n, size_t size)
 {
     if (surety_mul_overflows(n, size))
         return NULL;
-    return malloc(n * size ? n * size : 1);
+    size_t bytes = n * size;
+    return malloc(bytes ? bytes : 1);
 }
 
 void *surety_xcalloc(size_t n, size_t size)
@@ -30,7 +31,8 @@ void *surety_xrealloc(void *p, size_t n, size_t size)
 {
     if (surety_mul_overflows(n, size))
         return NULL;
-    return realloc(p, n * size ? n * size : 1);
+    size_t bytes = n * size;
+    return realloc(p, bytes ? bytes : 1);
 }
 
 void surety_xfree(void *p)
