@@ -160,6 +160,9 @@ static void run(const char *label, surety_model *m, size_t N, size_t chunk,
            sum);
 }
 
+/* bench_sample [N [reps [model.json]]]: the built-in mix, and when a model
+ * file is given (e.g. instances/demo.json) that model as it stands and with
+ * its correlations removed. */
 int main(int argc, char **argv)
 {
     size_t N = argc > 1 ? strtoull(argv[1], NULL, 10) : 1000000;
@@ -172,5 +175,19 @@ int main(int argc, char **argv)
     run("correlated, odd window", cor, N, 1000, reps);
     free_model(ind);
     free_model(cor);
+    if (argc > 3) {
+        surety_model *m;
+        surety_error err;
+        if (surety_model_read(argv[3], &m, &err) != SURETY_OK) {
+            fprintf(stderr, "%s: %s\n", argv[3], err.message);
+            return 2;
+        }
+        run("model file", m, N, 4096, reps);
+        surety_xfree(m->chol);
+        surety_xfree(m->corr);
+        m->chol = m->corr = NULL;
+        run("model file, no corr.", m, N, 4096, reps);
+        surety_model_free(m);
+    }
     return 0;
 }
