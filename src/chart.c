@@ -236,7 +236,10 @@ static void draw_frontier(cairo_t *cr, const void *vctx)
         char buf[64];
         snprintf(buf, sizeof buf, "target %.4g%%", 100 * c->target);
         cairo_set_font_size(cr, 11);
-        text_at(cr, x + 4, fr.top + 4, buf, 0, 0);
+        if (x > fr.right - 90)
+            text_at(cr, x - 4, fr.top + 4, buf, 1, 0);
+        else
+            text_at(cr, x + 4, fr.top + 4, buf, 0, 0);
     }
     /* connecting line in order of risk, then interval bars, then markers */
     cairo_set_line_width(cr, 1);
@@ -283,19 +286,49 @@ static void draw_frontier(cairo_t *cr, const void *vctx)
         cairo_stroke(cr);
     }
     cairo_set_font_size(cr, 10);
+    int unproven = 0;
     for (size_t p = 0; p < f->npoints; p++) {
         const surety_frontier_point *pt = &f->point[p];
         if (!pt->plan || !isfinite(pt->profit_mean))
             continue;
         double x = fx(&fr, 100 * pt->reliability), y = fy(&fr, pt->profit_mean);
+        /* levels that returned the same point share one marker and one
+         * label, so labels never print over each other */
+        int shared = 0;
+        for (size_t q = 0; q < p && !shared; q++) {
+            const surety_frontier_point *o = &f->point[q];
+            shared = o->plan && isfinite(o->profit_mean) &&
+                     fabs(fx(&fr, 100 * o->reliability) - x) < 1.5 &&
+                     fabs(fy(&fr, o->profit_mean) - y) < 1.5;
+        }
+        if (shared)
+            continue;
+        char buf[160];
+        size_t len = (size_t)snprintf(buf, sizeof buf, "risk %.3g", pt->risk);
+        for (size_t q = p + 1; q < f->npoints && len < sizeof buf - 16; q++) {
+            const surety_frontier_point *o = &f->point[q];
+            if (o->plan && isfinite(o->profit_mean) &&
+                fabs(fx(&fr, 100 * o->reliability) - x) < 1.5 &&
+                fabs(fy(&fr, o->profit_mean) - y) < 1.5)
+                len += (size_t)snprintf(buf + len, sizeof buf - len, ", %.3g", o->risk);
+        }
+        if (pt->status != SURETY_OPTIMAL && len < sizeof buf - 2) {
+            buf[len++] = '*';
+            buf[len] = 0;
+            unproven = 1;
+        }
         rgb(cr, POINT);
         cairo_new_sub_path(cr);
         cairo_arc(cr, x, y, 4.5, 0, 2 * M_PI);
         cairo_fill(cr);
-        char buf[48];
-        snprintf(buf, sizeof buf, "risk %.3g", pt->risk);
         rgb(cr, INK);
         text_at(cr, x + 7, y - 7, buf, 0, 1);
+    }
+    if (unproven) {
+        cairo_set_font_size(cr, 10);
+        rgb(cr, INK);
+        text_at(cr, 90, 446, "* search stopped by a limit: the best plan found, not proven optimal.",
+                0, 0);
     }
     char note[160];
     snprintf(note, sizeof note,
