@@ -58,7 +58,38 @@ static void axpy(size_t len, double f, const double *src, double *dst)
 static void col_axpy(const surety_lp *lp, size_t j, double f, double *y)
 {
     if (f != 0.0)
-        axpy(lp->m, f, lp->AT + j * lp->mcap, y);
+        axpy(lp->m, f, lp->AT + lp->slot[j] * lp->mcap, y);
+}
+
+/* Moves column j of A into slot s of AT (swapping with the column there),
+ * O(m). Keeps the invariant atcol[c] = colS[c] for c < k when called for
+ * each change of S. */
+static void place_column(surety_lp *lp, size_t j, size_t s)
+{
+    size_t s0 = lp->slot[j];
+    if (s0 == s)
+        return;
+    double *a = lp->AT + s0 * lp->mcap, *b = lp->AT + s * lp->mcap;
+    for (size_t i = 0; i < lp->m; i++) {
+        double t = a[i];
+        a[i] = b[i];
+        b[i] = t;
+    }
+    size_t other = lp->atcol[s];
+    lp->atcol[s] = j;
+    lp->slot[j] = s;
+    lp->atcol[s0] = other;
+    lp->slot[other] = s0;
+}
+
+/* y = A(:, S) v(S) over the first k slots of AT, v indexed by column. */
+static void times_basic(surety_lp *lp, const double *v, double *y)
+{
+    size_t k = lp->k;
+    double *vs = lp->tmp + 2 * lp->n;
+    for (size_t c = 0; c < k; c++)
+        vs[c] = v[lp->colS[c]];
+    surety_dense_gemv(1, k, lp->m, 1.0, lp->AT, lp->mcap, vs, 0.0, y);
 }
 
 /* Falls back to the all-logical basis (K empty): always nonsingular.
@@ -111,6 +142,8 @@ int surety_basis_refactor(surety_lp *lp)
         return 1;
     }
     lp->k = k;
+    for (size_t c = 0; c < k; c++)
+        place_column(lp, lp->colS[c], c);
     double *M = lp->Kinv;
     for (size_t p = 0; p < k; p++) {
         const double *a = lp->A + lp->rowN[p] * n;
@@ -136,7 +169,7 @@ int surety_basis_refactor(surety_lp *lp)
  * of R_B follow as A dv. Also used for alpha_q = -dv. */
 void surety_basis_ftran(surety_lp *lp, size_t q)
 {
-    size_t n = lp->n, k = lp->k, m = lp->m;
+    size_t n = lp->n, k = lp->k;
     double *dv = lp->dv, *w = lp->tmp;
     memset(dv, 0, n * sizeof *dv);
     if (q < n) {
@@ -153,9 +186,7 @@ void surety_basis_ftran(surety_lp *lp, size_t q)
             dv[lp->colS[c]] = lp->Kinv[c * n + p];
     }
     double *ds = dv + n;
-    memset(ds, 0, m * sizeof *ds);
-    for (size_t c = 0; c < k; c++)
-        col_axpy(lp, lp->colS[c], dv[lp->colS[c]], ds);
+    times_basic(lp, dv, ds);
     if (q < n)
         col_axpy(lp, q, 1.0, ds);
     for (size_t p = 0; p < k; p++)
@@ -227,6 +258,7 @@ void surety_basis_pivot(surety_lp *lp, size_t q, size_t r)
         lp->colS[c] = q;
         lp->posS[q] = (long)c;
         lp->posS[r] = -1;
+        place_column(lp, q, c);
     } else if (r >= n && q >= n) {
         size_t p = (size_t)lp->posN[q - n];
         for (size_t pp = 0; pp < k; pp++)
@@ -257,6 +289,7 @@ void surety_basis_pivot(surety_lp *lp, size_t q, size_t r)
         M[k * n + k] = 1.0 / s;
         lp->colS[k] = q;
         lp->posS[q] = (long)k;
+        place_column(lp, q, k);
         lp->rowN[k] = r - n;
         lp->posN[r - n] = (long)k;
         lp->k = k + 1;
@@ -273,6 +306,7 @@ void surety_basis_pivot(surety_lp *lp, size_t q, size_t r)
             memcpy(M + c * n, M + last * n, k * sizeof *M);
             lp->colS[c] = lp->colS[last];
             lp->posS[lp->colS[c]] = (long)c;
+            place_column(lp, lp->colS[c], c);
         }
         if (p != last) {
             for (size_t cc = 0; cc < last; cc++)
@@ -355,26 +389,20 @@ void surety_basis_dual(surety_lp *lp)
 
 /* Y(:,t) = A X(:,t) for the columns t in use (0: dv, 1: tau when exact
  * steepest edge, 2: flips), each X(:,t) living on S plus the entering
- * and the flipped columns, so only those columns of A are read. X and Y
- * hold their columns contiguously (n and mcap apart). */
+ * and the flipped columns, so only those columns of A are read: the basic
+ * ones as one BLAS product over the first k slots of AT. X and Y hold
+ * their columns contiguously (n and mcap apart). */
 static void slack_parts(surety_lp *lp, size_t q, size_t flips)
 {
     size_t n = lp->n, m = lp->m, cap = lp->mcap;
     const double *X = lp->X;
     double *Y = lp->Y;
-    memset(Y, 0, m * sizeof *Y);
+    (void)m;
+    times_basic(lp, X, Y);
     if (SURETY_LP_DSE_EXACT)
-        memset(Y + cap, 0, m * sizeof *Y);
+        times_basic(lp, X + n, Y + cap);
     if (flips)
-        memset(Y + 2 * cap, 0, m * sizeof *Y);
-    for (size_t c = 0; c < lp->k; c++) {
-        size_t j = lp->colS[c];
-        col_axpy(lp, j, X[j], Y);
-        if (SURETY_LP_DSE_EXACT)
-            col_axpy(lp, j, X[n + j], Y + cap);
-        if (flips)
-            col_axpy(lp, j, X[2 * n + j], Y + 2 * cap);
-    }
+        times_basic(lp, X + 2 * n, Y + 2 * cap);
     if (q < n)
         col_axpy(lp, q, X[q], Y);
     for (size_t t = 0; t < flips; t++)

@@ -41,7 +41,7 @@ static int grow_rows(surety_lp *lp, size_t need)
     GROW(rho, cap);
     GROW(alpha, nv);
     GROW(dv, nv);
-    GROW(tmp, 2 * nv);
+    GROW(tmp, 2 * nv + cap);
     GROW(cand, nv);
     GROW(wgt, nv);
     GROW(tau, nv);
@@ -82,9 +82,11 @@ surety_lp *surety_lp_create(size_t n, const double *c, const double *lo,
     lp->colS = surety_xmalloc(n, sizeof *lp->colS);
     lp->rowN = surety_xmalloc(n, sizeof *lp->rowN);
     lp->posS = surety_xmalloc(n, sizeof *lp->posS);
+    lp->slot = surety_xmalloc(n, sizeof *lp->slot);
+    lp->atcol = surety_xmalloc(n, sizeof *lp->atcol);
     lp->Kinv = surety_xmalloc(n * n > 0 ? n : 1, n * sizeof *lp->Kinv);
     lp->X = surety_xmalloc(n, 3 * sizeof *lp->X);
-    if (!lp->X || !lp->obj || !lp->colS || !lp->rowN || !lp->posS || !lp->Kinv ||
+    if (!lp->X || !lp->slot || !lp->atcol || !lp->obj || !lp->colS || !lp->rowN || !lp->posS || !lp->Kinv ||
         grow_rows(lp, 16) < 0) {
         surety_lp_free(lp);
         return NULL;
@@ -100,6 +102,7 @@ surety_lp *surety_lp_create(size_t n, const double *c, const double *lo,
         lp->x[j] = 0.0;
         lp->posS[j] = -1;
         lp->wgt[j] = 1.0;
+        lp->slot[j] = lp->atcol[j] = j;
     }
     lp->factored = 1;
     lp->rng = 0x9E3779B97F4A7C15ULL;
@@ -114,6 +117,8 @@ void surety_lp_free(surety_lp *lp)
         return;
     surety_xfree(lp->A);
     surety_xfree(lp->AT);
+    surety_xfree(lp->slot);
+    surety_xfree(lp->atcol);
     surety_xfree(lp->obj);
     surety_xfree(lp->cost);
     surety_xfree(lp->lb);
@@ -170,7 +175,7 @@ long surety_lp_add_row(surety_lp *lp, const double *a, double rlo,
         return -1;
     memcpy(lp->A + i * n, a, n * sizeof *a);
     for (size_t j = 0; j < n; j++)
-        lp->AT[j * lp->mcap + i] = a[j];
+        lp->AT[lp->slot[j] * lp->mcap + i] = a[j];
     size_t v = n + i;
     lp->cost[v] = 0.0;
     lp->lb[v] = lp->wlb[v] = rlo;

@@ -19,9 +19,12 @@ struct surety_lp {
     size_t m;       /* rows */
     size_t mcap;    /* rows allocated */
     double *A;      /* mcap x n row-major coefficients */
-    double *AT;     /* n x mcap: the same, column-major, so that A times a
-                       vector living on S (k of n columns) reads only
-                       those k columns */
+    double *AT;     /* n x mcap: the same, column-major, columns stored
+                       in slots: slot c < k holds the column at position
+                       c of S, so A times a vector living on S is one
+                       BLAS product over the first k slots */
+    size_t *slot;   /* n: slot of column j in AT */
+    size_t *atcol;  /* n: column in each slot (inverse of slot) */
     double *obj;    /* n: objective c, maximisation sense */
     double *cost;   /* n + mcap: cost in use (= -c, plus perturbation) */
     double *lb, *ub;   /* n + mcap: true bounds of columns then logicals */
@@ -45,7 +48,7 @@ struct surety_lp {
     double *rho;    /* mcap: row of B^-1 */
     double *alpha;  /* n + mcap: pivot row */
     double *dv;     /* n + mcap: change of basics per unit of entering */
-    double *tmp;    /* 2 (n + mcap) */
+    double *tmp;    /* 2 n + 3 mcap */
     double *wgt;    /* n + mcap: dual steepest-edge weight of a basic
                        variable, ||row of B^-1||^2 (>= 1e-12) */
     double *tau;    /* n + mcap: B^-1 rho */
