@@ -275,7 +275,8 @@ static int write_plan(const surety_model *model, const surety_plan *plan, const 
 static const char assure_help[] =
     "usage: surety assure MODEL [--target R] [--confidence C] [--samples M]\n"
     "                     [--certify-samples M2] [-n N] [--max-scenarios NMAX]\n"
-    "                     [--max-steps S] [--time-limit SEC] [--seed S] [-o PLAN.json] [--json]\n"
+    "                     [--max-steps S] [--time-limit SEC] [--solve-limit SEC] [--seed S]\n"
+    "                     [-o PLAN.json] [--json]\n"
     "\n"
     "Solves on N scenarios, checks the plan on M fresh ones and, while the\n"
     "one-sided Clopper-Pearson lower bound on its reliability is below R,\n"
@@ -292,6 +293,7 @@ static const char assure_help[] =
     "  --max-scenarios NMAX largest scenario count (default 16 N)\n"
     "  --max-steps S        solves at most (default 12)\n"
     "  --time-limit SEC     limit for the whole run\n"
+    "  --solve-limit SEC    limit per solve (its best plan is still checked)\n"
     "  --seed S             random seed (default: the model's)\n"
     "  -o FILE              write the returned plan (atomic)\n"
     "  --json               machine-readable output\n"
@@ -434,6 +436,7 @@ int cmd_assure(int argc, char **argv)
         {"max-scenarios", required_argument, 0, 'X'},
         {"max-steps", required_argument, 0, 'S'},
         {"time-limit", required_argument, 0, 't'},
+        {"solve-limit", required_argument, 0, 'T'},
         {"seed", required_argument, 0, 's'},
         {"output", required_argument, 0, 'o'},
         {"json", no_argument, 0, 'j'},
@@ -480,6 +483,10 @@ int cmd_assure(int argc, char **argv)
         case 't':
             if (cli_parse_double(optarg, &aopt.time_limit_s) || aopt.time_limit_s <= 0)
                 return cli_usage_error("assure", "--time-limit needs a positive number");
+            break;
+        case 'T':
+            if (cli_parse_double(optarg, &aopt.solve.time_limit_s) || aopt.solve.time_limit_s <= 0)
+                return cli_usage_error("assure", "--solve-limit needs a positive number");
             break;
         case 's': seed_arg = optarg; break;
         case 'o': out = optarg; break;
