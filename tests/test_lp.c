@@ -485,6 +485,36 @@ Test(lp, random_degenerate)
     random_batch(1, 120, 23);
 }
 
+/* Set-cover LPs (min sum x, every row covered at least once, 0 <= x <= 1)
+ * are highly dual degenerate: the ties make the dual simplex stall and
+ * exercise its cost perturbation and the clean-up after it. */
+Test(lp, random_set_cover)
+{
+    need_glpsol();
+    rs = 61;
+    for (int t = 0; t < 60; t++) {
+        size_t n = (size_t)irand(60, 100), m = n * (size_t)irand(2, 4);
+        prob p = prob_new(n, m);
+        for (size_t j = 0; j < n; j++) {
+            p.c[j] = t % 2 ? -1.0 : -(double)irand(1, 3);
+            p.lo[j] = 0;
+            p.hi[j] = 1;
+        }
+        for (size_t i = 0; i < m; i++) {
+            for (size_t j = 0; j < n; j++)
+                p.A[i * n + j] = urand() < 0.1 ? 1 : 0;
+            p.A[i * n + (size_t)irand(0, (int)n - 1)] = 1;
+            p.rlo[i] = 1;
+            p.rhi[i] = INFINITY;
+        }
+        surety_lp *lp = build(&p);
+        surety_lp_status st = surety_lp_solve(lp);
+        compare(&p, lp, st, "set cover");
+        surety_lp_free(lp);
+        prob_free(&p);
+    }
+}
+
 Test(lp, random_badly_scaled)
 {
     random_batch(4, 100, 53);
