@@ -530,7 +530,9 @@ typedef struct surety_bounds_report {
      * shown >= 1-eps (Bonferroni over candidates), profit measured on
      * fresh scenarios not used for screening */
     surety_plan *plan;     /* owned, or NULL when none qualified */
-    long plan_source;      /* replication index, or -1: extra solve at eps/2 */
+    long plan_source;      /* replication index, or -1: an extra solve on the
+                              model's own sample at risk plan_risk */
+    double plan_risk;      /* risk the lower side's plan was solved at */
     double lower;          /* one-sided lower confidence bound on its mean
                               profit; NaN when no plan */
     double profit_mean, profit_sd;

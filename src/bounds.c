@@ -141,13 +141,15 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
     out->bound = surety_xmalloc(M, sizeof *out->bound);
     out->objective = surety_xmalloc(M, sizeof *out->objective);
     out->replication = surety_xmalloc(M, sizeof *out->replication);
-    /* candidates: the M replication plans and one plan solved at eps/2 on
-     * the model's own sample, which has a fair chance to truly meet 1-eps
-     * when the replication plans (solved near eps) fall just short */
-    surety_plan **cand = surety_xcalloc(M + 1, sizeof *cand);
-    long *src = surety_xmalloc(M + 1, sizeof *src);
+    /* candidates: the M replication plans and two plans solved at eps/2
+     * and eps/4 on the model's own sample, which have a fair chance to
+     * truly meet 1-eps when the replication plans (solved near eps) fall
+     * just short */
+    surety_plan **cand = surety_xcalloc(M + 2, sizeof *cand);
+    long *src = surety_xmalloc(M + 2, sizeof *src);
+    double *cand_risk = surety_xmalloc(M + 2, sizeof *cand_risk);
     surety_code code = SURETY_OK;
-    if (!out->bound || !out->objective || !out->replication || !cand || !src) {
+    if (!out->bound || !out->objective || !out->replication || !cand || !src || !cand_risk) {
         surety_error_set(err, NULL, 0, 0, NULL, "out of memory");
         code = SURETY_EINTERNAL;
         goto done;
@@ -174,16 +176,20 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
             goto done;
         }
     }
-    {
-        double b, o;
+    /* extra candidates on the model's own sample at eps/2 and eps/4 */
+    for (size_t c = 0; c < K; c++)
+        cand_risk[c] = out->gamma;
+    for (int e = 1; e <= 2; e++) {
+        double b, o, risk = out->eps / (double)(2 * e);
         int optimal;
         surety_plan *plan = NULL;
-        code = solve_one(model, SURETY_STREAM_SOLVE, out->N, out->eps / 2, &opt->solve, &b, &o,
+        code = solve_one(model, SURETY_STREAM_SOLVE, out->N, risk, &opt->solve, &b, &o,
                          &optimal, &plan, &out->solve_seconds, err);
         if (code)
             goto done;
         if (plan) {
             cand[K] = plan;
+            cand_risk[K] = risk;
             src[K++] = -1;
         }
     }
@@ -219,6 +225,7 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
             continue;
         }
         cand[distinct] = p;
+        cand_risk[distinct] = cand_risk[c];
         src[distinct++] = src[c];
     }
     K = distinct;
@@ -275,11 +282,13 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
         out->plan = cand[best];
         cand[best] = NULL;
         out->plan_source = src[best];
+        out->plan_risk = cand_risk[best];
     }
     code = SURETY_OK;
 done:
+    surety_xfree(cand_risk);
     if (cand)
-        for (size_t c = 0; c <= M; c++)
+        for (size_t c = 0; c < M + 2; c++)
             surety_plan_free(cand[c]);
     surety_xfree(cand);
     surety_xfree(src);

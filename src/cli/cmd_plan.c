@@ -579,7 +579,7 @@ static void bounds_text(const surety_model *model, const surety_bounds_report *r
         if (r->plan_source >= 0)
             snprintf(from, sizeof from, "replication %ld", r->plan_source);
         else
-            snprintf(from, sizeof from, "the model's own sample at risk %.4g", r->eps / 2);
+            snprintf(from, sizeof from, "the model's own sample at risk %.4g", r->plan_risk);
         fprintf(fp, "  Lower: plan from %s, reliability >= %.3f%% (screened,\n"
                     "         Bonferroni), mean profit %.2f (sd %.2f) on further fresh scenarios\n"
                     "         -> the optimum is at least %.2f (confidence %.4g%%; normal\n"
