@@ -18,6 +18,17 @@
  * starts from the basis left by the previous one, which stays dual
  * feasible under both kinds of change, so re-solves are short.
  *
+ * Use in a branch and bound (columns x_ji in [0,1], rows per scenario):
+ *   create with the columns; add the rows of the live scenarios;
+ *   solve the root; save its basis with get_basis (n + m bytes).
+ *   Per node: set_col_bounds for the node's fixings; set_basis of the
+ *   parent (rows added since stay basic); set_cutoff(incumbent) to stop
+ *   as soon as the node cannot win; solve; while a scenario row is
+ *   violated, add_row and solve again (warm); del_rows drops rows that
+ *   went slack, set_row_bounds(-INFINITY, INFINITY) switches one off.
+ * Cost per dual iteration is O(m k + n k + k^2) with k <= min(n, m) the
+ * number of basic columns, plus an O(k^3) LU every 64 basis changes.
+ *
  * Handles are not thread-safe; distinct handles may be used from distinct
  * threads. All memory goes through alloc.h; nothing is printed. */
 typedef struct surety_lp surety_lp;
