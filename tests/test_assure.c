@@ -200,7 +200,7 @@ Test(frontier, profits_fall_with_risk_and_plans_fit_their_sample)
  * fixed profits, so the objective is deterministic and PAS 2009 applies
  * exactly. */
 static const char tiny_json_fmt[] =
-    "{\"name\": \"tiny\", \"risk\": 0.17, \"scenarios\": 200, \"seed\": %lu,\n"
+    "{\"name\": \"tiny\", \"risk\": %.17g, \"scenarios\": 200, \"seed\": %lu,\n"
     " \"resources\": [{\"id\": \"shop\", \"capacity\": 12}],\n"
     " \"jobs\": [\n"
     "  {\"id\": \"a\", \"hours\": {\"dist\": \"empirical\", \"values\": [2, 4, 6]}, \"profit\": 10},\n"
@@ -242,10 +242,14 @@ static double tiny_optimum(double eps)
     return best;
 }
 
-static int bounds_cover(unsigned long seed, double *upper, double *lower)
+/* Runs surety_bounds on the tiny model; returns whether [lower, upper]
+ * holds the true optimum. *above counts the replications whose dual bound
+ * reaches the optimum (each should with probability >= theta_N). */
+static int bounds_cover_n(double eps, unsigned long seed, double *upper, double *lower,
+                          int *above)
 {
     char json[2048];
-    snprintf(json, sizeof json, tiny_json_fmt, seed);
+    snprintf(json, sizeof json, tiny_json_fmt, eps, seed);
     surety_model *model = parse(json);
     surety_bounds_options opt;
     surety_bounds_options_init(&opt);
@@ -258,13 +262,21 @@ static int bounds_cover(unsigned long seed, double *upper, double *lower)
     /* METHODS.md s.5 (SciPy 1.10.1) gives L = 2 for M = 10 at beta = 0.01
      * with theta = 0.5375; here beta/2 = 0.025 and theta = B(34; 200, 0.17) */
     cr_assert_gt(rep.L, 0);
-    double opt_true = tiny_optimum(0.17);
+    double opt_true = tiny_optimum(eps);
     *upper = rep.upper;
     *lower = rep.plan ? rep.lower : -INFINITY;
     int ok = rep.upper >= opt_true - 1e-9 && *lower <= opt_true + 1e-9;
+    if (above)
+        for (size_t r = 0; r < rep.M; r++)
+            *above += rep.bound[r] >= opt_true - 1e-9;
     surety_bounds_report_free(&rep);
     surety_model_free(model);
     return ok;
+}
+
+static int bounds_cover(double eps, unsigned long seed, double *upper, double *lower)
+{
+    return bounds_cover_n(eps, seed, upper, lower, NULL);
 }
 
 Test(bounds, interval_on_an_enumerable_model)
@@ -275,7 +287,7 @@ Test(bounds, interval_on_an_enumerable_model)
      * 0.17 is 24 */
     cr_expect_float_eq(tiny_optimum(0.17), 24, 1e-12);
     double up, lo;
-    int ok = bounds_cover(5, &up, &lo);
+    int ok = bounds_cover(0.17, 5, &up, &lo);
     cr_expect(ok, "interval [%g, %g] misses the true optimum 24", lo, up);
     cr_expect_leq(lo, up);
 }
@@ -283,21 +295,88 @@ Test(bounds, interval_on_an_enumerable_model)
 /* Coverage over many independent seeds: the interval must contain the true
  * optimum in at least the stated 95% of runs (minus three binomial standard
  * errors). Slow suite. */
+/* theta: P{Bin(200, eps) <= floor(200 eps)} from SciPy 1.10.1
+ * (binom.cdf(34, 200, 0.17) = 0.545639, binom.cdf(33, 200, 1/6) = 0.521032):
+ * the probability that the true optimal plan fits a replication's sample,
+ * hence a lower bound on the share of replications whose bound reaches the
+ * optimum (Pagnoncelli, Ahmed & Shapiro 2009). */
+static void coverage_run(double eps, double theta, int reps)
+{
+    int covered = 0, up_ok = 0, above = 0;
+    double opt_true = tiny_optimum(eps);
+    for (int r = 0; r < reps; r++) {
+        double up, lo;
+        covered += bounds_cover_n(eps, 1000 + (unsigned long)r, &up, &lo, &above);
+        up_ok += up >= opt_true - 1e-9;
+    }
+    double cov = (double)covered / reps, share = (double)above / (10.0 * reps);
+    fprintf(stderr, "bounds coverage at risk %.4g (optimum %g): %d of %d (%.3f); upper side "
+                    "alone %d of %d; replications reaching the optimum %.3f (theta %.3f)\n",
+            eps, opt_true, covered, reps, cov, up_ok, reps, share, theta);
+    cr_expect_geq(cov, 0.95 - 3 * sqrt(0.95 * 0.05 / reps), "coverage %.3f", cov);
+    cr_expect_geq(share, theta - 3 * sqrt(theta * (1 - theta) / (10.0 * reps)),
+                  "share %.3f below theta %.3f", share, theta);
+}
+
 Test(slow_bounds, coverage)
 {
     if (!getenv("SURETY_SLOW"))
         cr_skip_test("set SURETY_SLOW=1 (meson test --suite slow)");
-    int reps = 200, covered = 0, up_ok = 0;
-    double opt_true = tiny_optimum(0.17);
-    for (int r = 0; r < reps; r++) {
-        double up, lo;
-        covered += bounds_cover(1000 + (unsigned long)r, &up, &lo);
-        up_ok += up >= opt_true - 1e-9;
-    }
-    double cov = (double)covered / reps;
-    cr_log_info("bounds coverage: %d of %d (%.3f); upper side alone %d", covered, reps, cov,
-                up_ok);
-    fprintf(stderr, "bounds coverage: %d of %d (%.3f); upper side alone %d of %d\n", covered,
-            reps, cov, up_ok, reps);
-    cr_expect_geq(cov, 0.95 - 3 * sqrt(0.95 * 0.05 / reps));
+    coverage_run(0.17, 0.545639, 200);
+}
+
+/* Knife edge: at risk 1/6 the optimal set {a,b,d} fits in exactly 30 of 36
+ * outcomes = 1 - 1/6, so it fits a sample with probability only about
+ * theta_N ~ 0.5 and the upper bound rests on the order statistic L. */
+Test(slow_bounds, coverage_at_the_knife_edge)
+{
+    if (!getenv("SURETY_SLOW"))
+        cr_skip_test("set SURETY_SLOW=1 (meson test --suite slow)");
+    cr_assert_float_eq(tiny_optimum(1.0 / 6), 24, 1e-12);
+    coverage_run(1.0 / 6, 0.521032, 200);
+}
+
+/* The load chart of `surety check --svg`: one capacity line per resource
+ * (the only strokes in the capacity colour, chart.c LIMIT) and an XML file
+ * Python can parse. */
+Test(chart, loads_svg_has_one_capacity_line_per_resource)
+{
+    if (!surety_chart_available() || access(PYTHON, X_OK) != 0)
+        cr_skip_test("no cairo or no python");
+    static const char json[] =
+        "{\"name\": \"two\", \"risk\": 0.1, \"scenarios\": 50, \"seed\": 3,\n"
+        " \"resources\": [{\"id\": \"r1\", \"capacity\": 10}, {\"id\": \"r2\", \"capacity\": 8}],\n"
+        " \"jobs\": [\n"
+        "  {\"id\": \"a\", \"hours\": {\"dist\": \"normal\", \"mean\": 6, \"sd\": 2, \"min\": 0.5}, \"profit\": 5},\n"
+        "  {\"id\": \"b\", \"hours\": {\"dist\": \"uniform\", \"low\": 2, \"high\": 6}, \"profit\": 4}]}\n";
+    surety_model *model = parse(json);
+    surety_plan *plan = surety_plan_new(model);
+    surety_plan_set(plan, 0, 0);
+    surety_plan_set(plan, 1, 1);
+    surety_check_options copt;
+    surety_check_options_init(&copt);
+    copt.samples = 3000;
+    char svg[] = "/tmp/surety-loads-XXXXXX.svg";
+    int fd = mkstemps(svg, 4);
+    cr_assert_geq(fd, 0);
+    close(fd);
+    surety_error err;
+    cr_assert_eq(surety_chart_loads(model, plan, &copt, SURETY_CHART_SVG, svg, &err), SURETY_OK,
+                 "%s", err.message);
+    char cmd[1024];
+    snprintf(cmd, sizeof cmd,
+             PYTHON " -c \"import xml.etree.ElementTree as E; r=E.parse('%s').getroot(); "
+                    "print(sum(1 for e in r.iter() if e.tag.endswith('path') and "
+                    "'stroke:rgb(75%%,10%%,10%%)' in e.get('style','')))\"",
+             svg);
+    FILE *p = popen(cmd, "r");
+    cr_assert(p);
+    int lines = -1;
+    int got = fscanf(p, "%d", &lines);
+    pclose(p);
+    cr_assert_eq(got, 1, "python could not parse the SVG");
+    cr_expect_eq(lines, 2, "capacity lines: %d", lines);
+    unlink(svg);
+    surety_plan_free(plan);
+    surety_model_free(model);
 }

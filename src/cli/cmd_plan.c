@@ -632,6 +632,10 @@ static void bounds_json(const surety_model *model, const surety_bounds_report *r
         fprintf(fp, "%ld", r->plan_source);
     else
         fputs("null", fp);
+    fprintf(fp, ",\n  \"lower_plan_risk\": ");
+    cli_json_number(fp, r->plan ? r->plan_risk : NAN);
+    fprintf(fp, ",\n  \"profit_mean\": ");
+    cli_json_number(fp, r->profit_mean);
     fprintf(fp, ",\n  \"all_optimal\": %s,\n  \"seconds\": ", r->all_optimal ? "true" : "false");
     cli_json_number(fp, r->seconds);
     fprintf(fp, "\n}\n");
