@@ -68,8 +68,8 @@ static void advise_text(const surety_advice *a, const char *what)
     double eps = a->eps, C = a->confidence;
     fprintf(fp, "Scenarios needed for risk %.4g (reliability %.4g%%) at confidence %.4g%%\n", eps,
             100 * (1 - eps), 100 * C);
-    fprintf(fp, "%s: ln|X| = %.3f (plans: each job in an allowed resource or out), "
-                "d = %zu job-resource pairs\n\n", what, a->log_plans, a->d);
+    fprintf(fp, "%s:\n  ln|X| = %.3f (plans: each job in an allowed resource or out),\n"
+                "  d = %zu job-resource pairs\n\n", what, a->log_plans, a->d);
     fprintf(fp, "1. Finite plan set (Luedtke & Ahmed 2008, exact binomial form)\n");
     fprintf(fp, "   %-26s %10s %10s %11s %11s\n", "may overload in the sample", "N", "first N",
             "Chernoff", "Hoeffding");
