@@ -284,3 +284,375 @@ Test(solve, brute_force_tiny)
     cr_assert(infeasible > 0, "no infeasible instance generated");
     cr_assert(empty > 0, "no instance where the empty plan is optimal");
 }
+
+/* ---- random small instances against CBC ---- */
+
+#include <time.h>
+static double now_s(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+/* Writes the indicator formulation (METHODS.md s.6, naive big-M) in CPLEX
+ * LP format, independently of src/export_mps.c: x_j_i binaries, z_l (joint)
+ * or z_l_i (separate) indicators, one capacity row per (l, i). */
+static void write_lp(const surety_model *md, const surety_scenarios *sc,
+                     const char *path)
+{
+    size_t n = md->n, m = md->m, N = sc->N;
+    size_t k = surety_allowance(md->risk, N);
+    int sep = md->constraint == SURETY_SEPARATE;
+    FILE *f = fopen(path, "w");
+    cr_assert_not_null(f);
+    fprintf(f, "Maximize\n obj:");
+    for (size_t j = 0; j < n; j++)
+        for (size_t i = 0; i < m; i++)
+            if (md->jobs[j].allowed[i])
+                fprintf(f, " %+.17g x_%zu_%zu", job_value(sc, j), j, i);
+    fprintf(f, "\nSubject To\n");
+    for (size_t l = 0; l < N; l++)
+        for (size_t i = 0; i < m; i++) {
+            double fac = md->resources[i].hours_factor;
+            double C = md->resources[i].capacity, tot = 0;
+            for (size_t j = 0; j < n; j++)
+                if (md->jobs[j].allowed[i])
+                    tot += fac * sc->hours[l * n + j];
+            if (tot - C <= 0)
+                continue; /* the row can never bind */
+            /* a job that overloads the resource on its own fails the
+             * scenario: x <= z (valid, and it keeps CBC quick) */
+            for (size_t j = 0; j < n; j++)
+                if (md->jobs[j].allowed[i] &&
+                    !(fac * sc->hours[l * n + j] <= C)) {
+                    if (sep)
+                        fprintf(f, " one_%zu_%zu_%zu: x_%zu_%zu - z_%zu_%zu "
+                                   "<= 0\n", l, i, j, j, i, l, i);
+                    else
+                        fprintf(f, " one_%zu_%zu_%zu: x_%zu_%zu - z_%zu <= 0\n",
+                                l, i, j, j, i, l);
+                }
+            fprintf(f, " cap_%zu_%zu:", l, i);
+            for (size_t j = 0; j < n; j++)
+                if (md->jobs[j].allowed[i])
+                    fprintf(f, " %+.17g x_%zu_%zu", fac * sc->hours[l * n + j],
+                            j, i);
+            if (sep)
+                fprintf(f, " %+.17g z_%zu_%zu <= %.17g\n", -(tot - C), l, i, C);
+            else
+                fprintf(f, " %+.17g z_%zu <= %.17g\n", -(tot - C), l, C);
+        }
+    for (size_t g = 0; g < (sep ? m : 1); g++) {
+        fprintf(f, " allow_%zu:", g);
+        for (size_t l = 0; l < N; l++) {
+            if (sep)
+                fprintf(f, " + z_%zu_%zu", l, g);
+            else
+                fprintf(f, " + z_%zu", l);
+        }
+        fprintf(f, " <= %zu\n", k);
+    }
+    for (size_t j = 0; j < n; j++) {
+        fprintf(f, " job_%zu:", j);
+        for (size_t i = 0; i < m; i++)
+            if (md->jobs[j].allowed[i])
+                fprintf(f, " + x_%zu_%zu", j, i);
+        fprintf(f, " %s 1\n", md->jobs[j].required ? "=" : "<=");
+    }
+    fprintf(f, "Binaries\n");
+    for (size_t j = 0; j < n; j++)
+        for (size_t i = 0; i < m; i++)
+            if (md->jobs[j].allowed[i])
+                fprintf(f, " x_%zu_%zu\n", j, i);
+    for (size_t l = 0; l < N; l++)
+        for (size_t g = 0; g < (sep ? m : 1); g++) {
+            if (sep)
+                fprintf(f, " z_%zu_%zu\n", l, g);
+            else
+                fprintf(f, " z_%zu\n", l);
+        }
+    fprintf(f, "End\n");
+    fclose(f);
+}
+
+/* Runs CBC; returns 1 with its objective and plan when it reports an
+ * optimum, 0 when it reports infeasibility. */
+static int run_cbc(const char *dir, const char *lp, size_t n, double *obj,
+                   long *plan)
+{
+    char cmd[1600], sol[600];
+    snprintf(sol, sizeof sol, "%s/sol.txt", dir);
+    remove(sol);
+    snprintf(cmd, sizeof cmd,
+             "cbc %s ratioGap 0 allowableGap 1e-9 solve solu %s "
+             ">/dev/null 2>&1", lp, sol);
+    cr_assert_eq(system(cmd), 0, "cbc failed to run");
+    FILE *f = fopen(sol, "r");
+    cr_assert_not_null(f, "cbc wrote no solution file");
+    char line[512];
+    cr_assert_not_null(fgets(line, sizeof line, f));
+    int optimal = strncmp(line, "Optimal", 7) == 0;
+    cr_assert(optimal || strstr(line, "nfeasible"), "cbc says: %s", line);
+    for (size_t j = 0; j < n; j++)
+        plan[j] = -1;
+    if (optimal) {
+        char *p = strstr(line, "objective value");
+        cr_assert_not_null(p);
+        *obj = strtod(p + strlen("objective value"), NULL);
+        while (fgets(line, sizeof line, f)) {
+            size_t idx, j, i;
+            char name[128];
+            double v;
+            if (sscanf(line, "%zu %127s %lf", &idx, name, &v) != 3)
+                continue;
+            if (sscanf(name, "x_%zu_%zu", &j, &i) == 2 && v > 0.5 && j < n)
+                plan[j] = (long)i;
+        }
+    }
+    fclose(f);
+    return optimal;
+}
+
+Test(solve, agrees_with_cbc)
+{
+    char dir[] = "/tmp/surety_solve_cbc_XXXXXX";
+    cr_assert_not_null(mkdtemp(dir));
+    char lp[512];
+    snprintf(lp, sizeof lp, "%s/model.lp", dir);
+    int infeasible = 0, sep = 0, empty = 0;
+    for (uint64_t t = 0; t < 110; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(50000 + t), 9, 3, 24);
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        write_lp(md, sc, lp);
+        double cbc_obj = 0;
+        long cbc_plan[16];
+        double t0 = now_s();
+        int cbc_found = run_cbc(dir, lp, p.n, &cbc_obj, cbc_plan);
+        if (getenv("SOLVE_TEST_VERBOSE"))
+            fprintf(stderr, "cbc %lu n=%zu m=%zu N=%zu sep=%d %.2fs\n",
+                    (unsigned long)t, p.n, p.m, p.N, p.separate, now_s() - t0);
+        surety_result *res = solve_ok(md, sc, NULL);
+        check_result(md, sc, res);
+        sep += p.separate;
+        if (!cbc_found) {
+            infeasible++;
+            cr_assert_eq(surety_result_status(res), SURETY_INFEASIBLE,
+                         "instance %lu: CBC infeasible, solver %s",
+                         (unsigned long)t,
+                         surety_status_name(surety_result_status(res)));
+        } else {
+            double obj = surety_result_objective(res);
+            empty += fabs(cbc_obj) < 1e-9;
+            cr_assert_eq(surety_result_status(res), SURETY_OPTIMAL);
+            cr_assert(fabs(obj - cbc_obj) <= 1e-6 * (1 + fabs(cbc_obj)),
+                      "instance %lu (n=%zu m=%zu N=%zu k=%zu %s): solver "
+                      "%.10g, CBC %.10g", (unsigned long)t, p.n, p.m, p.N,
+                      surety_allowance(p.eps, p.N),
+                      p.separate ? "separate" : "joint", obj, cbc_obj);
+            /* CBC's own plan, when exactly feasible, never beats ours */
+            if (plan_ok(md, sc, cbc_plan))
+                cr_assert(plan_value(sc, cbc_plan) <=
+                          obj + 1e-9 * (1 + fabs(obj)));
+        }
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_assert(infeasible > 0 && sep > 0 && empty > 0,
+              "instance mix: %d infeasible, %d separate, %d empty optimum",
+              infeasible, sep, empty);
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf %s", dir);
+    cr_assert_eq(system(cmd), 0);
+}
+
+/* ---- structural properties ---- */
+
+Test(solve, optimum_non_decreasing_in_k)
+{
+    /* METHODS.md s.7: a larger allowance only relaxes the constraint */
+    static const double eps[] = {0.01, 0.03, 0.06, 0.1, 0.15, 0.25, 0.4};
+    for (uint64_t t = 0; t < 12; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(7000 + t), 14, 3, 80);
+        p.p_required = 0;
+        double prev = -INFINITY;
+        for (size_t e = 0; e < 7; e++) {
+            p.eps = eps[e];
+            surety_model *md = solve_gen_model(&p);
+            surety_scenarios *sc = solve_gen_scenarios(md, &p);
+            surety_result *res = solve_ok(md, sc, NULL);
+            check_result(md, sc, res);
+            cr_assert_eq(surety_result_status(res), SURETY_OPTIMAL);
+            double v = surety_result_objective(res);
+            cr_assert(v >= prev - 1e-9 * (1 + fabs(v)),
+                      "instance %lu: eps %g gives %.10g < %.10g",
+                      (unsigned long)t, eps[e], v, prev);
+            prev = v;
+            surety_result_free(res);
+            surety_model_destroy(md);
+            solve_gen_scenarios_free(sc);
+        }
+    }
+}
+
+Test(solve, all_scenarios_may_fail_is_unconstrained)
+{
+    /* k = N (risk 1, set directly in the struct since the reader refuses
+     * it): every job with a positive mean profit is accepted, required ones
+     * always, so the optimum is that sum (computed here, by definition) */
+    for (uint64_t t = 0; t < 10; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(9000 + t), 30, 4, 50);
+        p.tightness = 0.3;
+        surety_model *md = solve_gen_model(&p);
+        md->risk = 1.0;
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        cr_assert_eq(surety_allowance(md->risk, p.N), p.N);
+        double expect = 0;
+        for (size_t j = 0; j < p.n; j++) {
+            double v = job_value(sc, j);
+            if (md->jobs[j].required || v > 0)
+                expect += v;
+        }
+        surety_result *res = solve_ok(md, sc, NULL);
+        check_result(md, sc, res);
+        cr_assert_eq(surety_result_status(res), SURETY_OPTIMAL);
+        cr_assert(fabs(surety_result_objective(res) - expect) <=
+                      1e-9 * (1 + fabs(expect)),
+                  "%.10g vs %.10g", surety_result_objective(res), expect);
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+}
+
+Test(solve, early_stop_keeps_an_honest_bound)
+{
+    /* stopped by a node limit, the reported bound must still be at least
+     * the optimum found by the unlimited run (on the same instance) */
+    for (uint64_t t = 0; t < 6; t++) {
+        solve_gen_params p;
+        memset(&p, 0, sizeof p);
+        p.n = 25;
+        p.m = 3;
+        p.N = 200;
+        p.eps = 0.05;
+        p.tightness = 0.5;
+        p.dist = SOLVE_GEN_LOGNORMAL;
+        p.separate = t % 3 == 2;
+        p.seed = mix(11000 + t);
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_result *full = solve_ok(md, sc, NULL);
+        cr_assert_eq(surety_result_status(full), SURETY_OPTIMAL);
+        double opt = surety_result_objective(full);
+        for (long lim = 1; lim <= 64; lim *= 4) {
+            surety_solve_options o;
+            surety_solve_options_init(&o);
+            o.node_limit = lim;
+            surety_result *res = solve_ok(md, sc, &o);
+            check_result(md, sc, res);
+            if (surety_result_stop(res) == SURETY_STOP_NODES) {
+                cr_assert_leq(surety_result_nodes(res), lim);
+                cr_assert(surety_result_status(res) == SURETY_FEASIBLE);
+            }
+            cr_assert(surety_result_bound(res) >= opt - 1e-9 * (1 + fabs(opt)),
+                      "limit %ld: bound %.10g below the optimum %.10g", lim,
+                      surety_result_bound(res), opt);
+            if (surety_result_plan(res))
+                cr_assert(surety_result_objective(res) <=
+                          opt + 1e-9 * (1 + fabs(opt)));
+            surety_result_free(res);
+        }
+        surety_result_free(full);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+}
+
+Test(solve, interrupt_flag_stops_the_search)
+{
+    solve_gen_params p;
+    memset(&p, 0, sizeof p);
+    p.n = 30;
+    p.m = 3;
+    p.N = 300;
+    p.eps = 0.05;
+    p.tightness = 0.5;
+    p.seed = 5;
+    surety_model *md = solve_gen_model(&p);
+    surety_scenarios *sc = solve_gen_scenarios(md, &p);
+    volatile sig_atomic_t flag = 1;
+    surety_solve_options o;
+    surety_solve_options_init(&o);
+    o.interrupt = &flag;
+    surety_result *res = solve_ok(md, sc, &o);
+    check_result(md, sc, res);
+    cr_assert_eq(surety_result_stop(res), SURETY_STOP_INTERRUPT);
+    cr_assert_eq(surety_result_nodes(res), 0);
+    /* the root heuristic has run: a verified plan, not proven optimal */
+    cr_assert_eq(surety_result_status(res), SURETY_FEASIBLE);
+    cr_assert(surety_result_bound(res) >= surety_result_objective(res));
+    surety_result_free(res);
+    surety_model_destroy(md);
+    solve_gen_scenarios_free(sc);
+}
+
+Test(solve, infeasible_required_jobs_are_named)
+{
+    solve_gen_params p;
+    memset(&p, 0, sizeof p);
+    p.n = 6;
+    p.m = 2;
+    p.N = 100;
+    p.eps = 0.05;
+    p.tightness = 0.2;
+    p.seed = 3;
+    surety_model *md = solve_gen_model(&p);
+    for (size_t j = 0; j < p.n; j++)
+        md->jobs[j].required = 1;
+    surety_scenarios *sc = solve_gen_scenarios(md, &p);
+    surety_result *res = solve_ok(md, sc, NULL);
+    cr_assert_eq(surety_result_status(res), SURETY_INFEASIBLE);
+    cr_assert_null(surety_result_plan(res));
+    const char *why = surety_result_reason(res);
+    cr_assert(strstr(why, "J01") && strstr(why, "at most 5 may fail"),
+              "reason: %s", why);
+    surety_result_free(res);
+    surety_model_destroy(md);
+    solve_gen_scenarios_free(sc);
+}
+
+Test(solve, empty_model_is_an_input_error)
+{
+    solve_gen_params p;
+    memset(&p, 0, sizeof p);
+    p.n = 3;
+    p.m = 2;
+    p.N = 10;
+    p.eps = 0.1;
+    p.tightness = 0.5;
+    p.seed = 1;
+    surety_model *md = solve_gen_model(&p);
+    surety_scenarios *sc = solve_gen_scenarios(md, &p);
+    size_t m = md->m;
+    md->m = 0;
+    surety_result *res = NULL;
+    surety_error err;
+    cr_assert_eq(surety_solve(md, sc, NULL, &res, &err), SURETY_EINPUT);
+    cr_assert_null(res);
+    cr_assert(strstr(err.message, "resources"), "%s", err.message);
+    md->m = m;
+    size_t n = md->n;
+    md->n = 0;
+    cr_assert_eq(surety_solve(md, sc, NULL, &res, &err), SURETY_EINPUT);
+    cr_assert(strstr(err.message, "jobs"), "%s", err.message);
+    md->n = n;
+    cr_assert_eq(surety_solve(NULL, sc, NULL, &res, &err), SURETY_EUSAGE);
+    surety_model_destroy(md);
+    solve_gen_scenarios_free(sc);
+}
