@@ -648,8 +648,14 @@ surety_lp_status surety_lp_solve(surety_lp *lp)
         st = dual_phase(lp, round < 2);
         if (st != SURETY_LP_OPTIMAL)
             break;
-        if (!lp->perturbed && !lp->artificial)
-            break;
+        if (!lp->perturbed && !lp->artificial) {
+            /* the basics were updated step by step: recompute them once
+             * and go on if rounding left one infeasible */
+            surety_basis_primal(lp);
+            if (primal_feasible(lp))
+                break;
+            continue;
+        }
         /* Back to the true costs and bounds: boxed variables whose reduced
          * cost changed sign move to their other bound; if that leaves the
          * basics feasible, the primal phase removes what dual
