@@ -390,14 +390,13 @@ void surety_basis_dual(surety_lp *lp)
 /* Y(:,t) = A X(:,t) for the columns t in use (0: dv, 1: tau when exact
  * steepest edge, 2: flips), each X(:,t) living on S plus the entering
  * and the flipped columns, so only those columns of A are read: the basic
- * ones as one BLAS product over the first k slots of AT. X and Y hold
- * their columns contiguously (n and mcap apart). */
+ * ones as one BLAS product each over the first k slots of AT. X and Y
+ * hold their columns contiguously (n and mcap apart). */
 static void slack_parts(surety_lp *lp, size_t q, size_t flips)
 {
-    size_t n = lp->n, m = lp->m, cap = lp->mcap;
+    size_t n = lp->n, cap = lp->mcap;
     const double *X = lp->X;
     double *Y = lp->Y;
-    (void)m;
     times_basic(lp, X, Y);
     if (SURETY_LP_DSE_EXACT)
         times_basic(lp, X + n, Y + cap);
