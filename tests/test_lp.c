@@ -45,8 +45,14 @@ static int irand(int lo, int hi)
 
 static prob prob_new(size_t n, size_t m)
 {
-    prob p = {n, m, calloc(n, 8), calloc(n, 8), calloc(n, 8),
-              calloc(m * n + 1, 8), calloc(m + 1, 8), calloc(m + 1, 8)};
+    prob p = {n,
+              m,
+              calloc(n, 8),
+              calloc(n, 8),
+              calloc(n, 8),
+              calloc(m * n + 1, 8),
+              calloc(m + 1, 8),
+              calloc(m + 1, 8)};
     return p;
 }
 
@@ -64,13 +70,12 @@ static void put_term(FILE *f, double a, size_t j, int *first)
 {
     if (a == 0.0)
         return;
-    fprintf(f, " %s %.17g x%zu", a < 0 ? "-" : (*first ? "" : "+"), fabs(a),
-            j);
+    fprintf(f, " %s %.17g x%zu", a < 0 ? "-" : (*first ? "" : "+"), fabs(a), j);
     *first = 0;
 }
 
-static void put_row(FILE *f, const prob *p, size_t i, const char *tag,
-                    const char *sense, double rhs)
+static void put_row(FILE *f, const prob *p, size_t i, const char *tag, const char *sense,
+                    double rhs)
 {
     int first = 1;
     fprintf(f, " r%zu%s:", i, tag);
@@ -150,9 +155,7 @@ static ref glpk_solve(const prob *p)
     snprintf(raw, sizeof raw, "%s/p.raw", tmpdir);
     write_lp(p, lp);
     unlink(raw);
-    snprintf(cmd, sizeof cmd,
-             "glpsol --nopresol --lp %s -w %s > %s/log 2>&1", lp, raw,
-             tmpdir);
+    snprintf(cmd, sizeof cmd, "glpsol --nopresol --lp %s -w %s > %s/log 2>&1", lp, raw, tmpdir);
     cr_assert(system(cmd) == 0, "glpsol failed on %s", lp);
     FILE *f = fopen(raw, "r");
     cr_assert(f, "glpsol wrote no solution");
@@ -162,8 +165,7 @@ static ref glpk_solve(const prob *p)
         char pst, dst;
         unsigned mm, nn;
         double obj;
-        if (sscanf(line, "s bas %u %u %c %c %lf", &mm, &nn, &pst, &dst,
-                   &obj) == 5) {
+        if (sscanf(line, "s bas %u %u %c %c %lf", &mm, &nn, &pst, &dst, &obj) == 5) {
             if (pst == 'f' && dst == 'f')
                 r.status = SURETY_LP_OPTIMAL;
             else if (pst == 'n')
@@ -182,8 +184,7 @@ static surety_lp *build(const prob *p)
     surety_lp *lp = surety_lp_create(p->n, p->c, p->lo, p->hi);
     cr_assert(lp);
     for (size_t i = 0; i < p->m; i++)
-        cr_assert(surety_lp_add_row(lp, p->A + i * p->n, p->rlo[i],
-                                    p->rhi[i]) == (long)i);
+        cr_assert(surety_lp_add_row(lp, p->A + i * p->n, p->rlo[i], p->rhi[i]) == (long)i);
     return lp;
 }
 
@@ -200,8 +201,7 @@ static int close_rel(double a, double b, double tol)
 static void check_kkt(const prob *p, surety_lp *lp)
 {
     size_t n = p->n, m = p->m;
-    double *x = calloc(n, 8), *act = calloc(m + 1, 8), *y = calloc(m + 1, 8),
-           *d = calloc(n, 8);
+    double *x = calloc(n, 8), *act = calloc(m + 1, 8), *y = calloc(m + 1, 8), *d = calloc(n, 8);
     surety_lp_get_x(lp, x);
     surety_lp_get_row_activity(lp, act);
     surety_lp_get_row_duals(lp, y);
@@ -212,24 +212,21 @@ static void check_kkt(const prob *p, surety_lp *lp)
         cx += p->c[j] * x[j];
     }
     double tol = 1e-6 * scale;
-    cr_expect(close_rel(cx, surety_lp_obj(lp), 1e-9), "obj %g vs c^T x %g",
-              surety_lp_obj(lp), cx);
+    cr_expect(close_rel(cx, surety_lp_obj(lp), 1e-9), "obj %g vs c^T x %g", surety_lp_obj(lp), cx);
     double dualobj = 0.0;
     for (size_t j = 0; j < n; j++) {
-        cr_expect(x[j] >= p->lo[j] - tol && x[j] <= p->hi[j] + tol,
-                  "x%zu = %g outside [%g, %g]", j, x[j], p->lo[j], p->hi[j]);
+        cr_expect(x[j] >= p->lo[j] - tol && x[j] <= p->hi[j] + tol, "x%zu = %g outside [%g, %g]", j,
+                  x[j], p->lo[j], p->hi[j]);
         double dj = p->c[j];
         for (size_t i = 0; i < m; i++)
             dj -= p->A[i * n + j] * y[i];
-        cr_expect(fabs(dj - d[j]) <= 1e-6 * (1 + fabs(dj)),
-                  "reduced cost %zu: %g vs %g", j, d[j], dj);
+        cr_expect(fabs(dj - d[j]) <= 1e-6 * (1 + fabs(dj)), "reduced cost %zu: %g vs %g", j, d[j],
+                  dj);
         /* max: d_j > 0 only at an upper bound, d_j < 0 only at a lower */
         if (dj > 1e-7)
-            cr_expect(x[j] >= p->hi[j] - tol, "d%zu = %g but x below hi", j,
-                      dj);
+            cr_expect(x[j] >= p->hi[j] - tol, "d%zu = %g but x below hi", j, dj);
         if (dj < -1e-7)
-            cr_expect(x[j] <= p->lo[j] + tol, "d%zu = %g but x above lo", j,
-                      dj);
+            cr_expect(x[j] <= p->lo[j] + tol, "d%zu = %g but x above lo", j, dj);
         if (fabs(dj) > 1e-7)
             dualobj += dj * x[j];
     }
@@ -238,20 +235,16 @@ static void check_kkt(const prob *p, surety_lp *lp)
         for (size_t j = 0; j < n; j++)
             a += p->A[i * n + j] * x[j];
         cr_expect(fabs(a - act[i]) <= tol, "row %zu activity", i);
-        cr_expect(a >= p->rlo[i] - tol && a <= p->rhi[i] + tol,
-                  "row %zu = %g outside [%g, %g]", i, a, p->rlo[i],
-                  p->rhi[i]);
+        cr_expect(a >= p->rlo[i] - tol && a <= p->rhi[i] + tol, "row %zu = %g outside [%g, %g]", i,
+                  a, p->rlo[i], p->rhi[i]);
         if (y[i] > 1e-7)
-            cr_expect(a >= p->rhi[i] - tol, "y%zu = %g on a slack row", i,
-                      y[i]);
+            cr_expect(a >= p->rhi[i] - tol, "y%zu = %g on a slack row", i, y[i]);
         if (y[i] < -1e-7)
-            cr_expect(a <= p->rlo[i] + tol, "y%zu = %g on a slack row", i,
-                      y[i]);
+            cr_expect(a <= p->rlo[i] + tol, "y%zu = %g on a slack row", i, y[i]);
         if (fabs(y[i]) > 1e-7)
             dualobj += y[i] * (y[i] > 0 ? p->rhi[i] : p->rlo[i]);
     }
-    cr_expect(close_rel(dualobj, cx, 1e-6), "dual objective %g vs %g",
-              dualobj, cx);
+    cr_expect(close_rel(dualobj, cx, 1e-6), "dual objective %g vs %g", dualobj, cx);
     free(x);
     free(act);
     free(y);
@@ -295,8 +288,7 @@ static prob random_prob(size_t n, size_t m, int kind)
         double b = isfinite(p.hi[j]) ? p.hi[j] : a + 3;
         if (!isfinite(a))
             a = -3, b = 3;
-        x0[j] = kind == 1 ? (isfinite(p.lo[j]) ? p.lo[j]
-                                               : (isfinite(p.hi[j]) ? p.hi[j] : 0))
+        x0[j] = kind == 1 ? (isfinite(p.lo[j]) ? p.lo[j] : (isfinite(p.hi[j]) ? p.hi[j] : 0))
                           : a + (b - a) * urand();
         p.c[j] = kind == 1 ? irand(-2, 3) : (urand() < 0.1 ? 0 : urand() * 20 - 8);
         if (kind == 3)
@@ -383,19 +375,17 @@ static void scale_prob(prob *pp)
     }
 }
 
-static void compare(const prob *p, surety_lp *lp, surety_lp_status st,
-                    const char *what)
+static void compare(const prob *p, surety_lp *lp, surety_lp_status st, const char *what)
 {
     ref r = glpk_solve(p);
     cr_assert(r.status >= 0, "%s: GLPK gave no definite status", what);
-    cr_assert_eq((int)st, r.status,
-                 "%s (n=%zu m=%zu): status %d, GLPK %d (obj %.10g)", what,
-                 p->n, p->m, (int)st, r.status, r.obj);
+    cr_assert_eq((int)st, r.status, "%s (n=%zu m=%zu): status %d, GLPK %d (obj %.10g)", what, p->n,
+                 p->m, (int)st, r.status, r.obj);
     if (st == SURETY_LP_OPTIMAL) {
         /* GLPK's optimum, compared to 1e-7 relative. */
         cr_assert(close_rel(surety_lp_obj(lp), r.obj, 1e-7),
-                  "%s (n=%zu m=%zu): obj %.12g, GLPK %.12g", what, p->n,
-                  p->m, surety_lp_obj(lp), r.obj);
+                  "%s (n=%zu m=%zu): obj %.12g, GLPK %.12g", what, p->n, p->m, surety_lp_obj(lp),
+                  r.obj);
         check_kkt(p, lp);
     }
 }
@@ -412,8 +402,7 @@ Test(lp, chvatal_example)
 {
     need_glpsol();
     prob p = prob_new(3, 3);
-    double c[] = {5, 4, 3}, A[] = {2, 3, 1, 4, 1, 2, 3, 4, 2},
-           b[] = {5, 11, 8};
+    double c[] = {5, 4, 3}, A[] = {2, 3, 1, 4, 1, 2, 3, 4, 2}, b[] = {5, 11, 8};
     memcpy(p.c, c, sizeof c);
     memcpy(p.A, A, sizeof A);
     for (int j = 0; j < 3; j++) {
@@ -424,22 +413,20 @@ Test(lp, chvatal_example)
     }
     surety_lp *lp = build(&p);
     cr_assert_eq(surety_lp_solve(lp), SURETY_LP_OPTIMAL);
-    cr_expect(fabs(surety_lp_obj(lp) - 13.0) < 1e-12, "z = %.15g",
-              surety_lp_obj(lp));
+    cr_expect(fabs(surety_lp_obj(lp) - 13.0) < 1e-12, "z = %.15g", surety_lp_obj(lp));
     double x[3];
     surety_lp_get_x(lp, x);
-    cr_expect(fabs(x[0] - 2) < 1e-12 && fabs(x[1]) < 1e-12 &&
-              fabs(x[2] - 1) < 1e-12);
+    cr_expect(fabs(x[0] - 2) < 1e-12 && fabs(x[1]) < 1e-12 && fabs(x[2] - 1) < 1e-12);
     /* The final dictionary there reads z = 13 - 3 x2 - x4 - x6 (x4, x6 the
      * slacks of rows 1 and 3), so the duals are y = (1, 0, 1) and the
      * reduced costs (0, -3, 0); checked by hand: 5*1 + 8*1 = 13. */
     double y[3], d[3];
     surety_lp_get_row_duals(lp, y);
     surety_lp_get_redcosts(lp, d);
-    cr_expect(fabs(y[0] - 1) < 1e-12 && fabs(y[1]) < 1e-12 &&
-              fabs(y[2] - 1) < 1e-12, "y = %g %g %g", y[0], y[1], y[2]);
-    cr_expect(fabs(d[0]) < 1e-12 && fabs(d[1] + 3) < 1e-12 &&
-              fabs(d[2]) < 1e-12, "d = %g %g %g", d[0], d[1], d[2]);
+    cr_expect(fabs(y[0] - 1) < 1e-12 && fabs(y[1]) < 1e-12 && fabs(y[2] - 1) < 1e-12,
+              "y = %g %g %g", y[0], y[1], y[2]);
+    cr_expect(fabs(d[0]) < 1e-12 && fabs(d[1] + 3) < 1e-12 && fabs(d[2]) < 1e-12, "d = %g %g %g",
+              d[0], d[1], d[2]);
     compare(&p, lp, SURETY_LP_OPTIMAL, "chvatal");
     surety_lp_free(lp);
     prob_free(&p);
@@ -591,13 +578,11 @@ Test(lp, warm_start_after_rows)
             surety_lp *cold = build(&part);
             surety_lp_status sc = surety_lp_solve(cold);
             cold_iters += surety_lp_iterations(cold);
-            cr_assert_eq(sw, sc, "instance %d rows %zu: warm %d cold %d", t,
-                         done, sw, sc);
+            cr_assert_eq(sw, sc, "instance %d rows %zu: warm %d cold %d", t, done, sw, sc);
             if (sw == SURETY_LP_OPTIMAL)
-                cr_assert(close_rel(surety_lp_obj(warm), surety_lp_obj(cold),
-                                    1e-9),
-                          "instance %d rows %zu: warm %.12g cold %.12g", t,
-                          done, surety_lp_obj(warm), surety_lp_obj(cold));
+                cr_assert(close_rel(surety_lp_obj(warm), surety_lp_obj(cold), 1e-9),
+                          "instance %d rows %zu: warm %.12g cold %.12g", t, done,
+                          surety_lp_obj(warm), surety_lp_obj(cold));
             surety_lp_free(cold);
             if (sw == SURETY_LP_INFEASIBLE)
                 break;
@@ -609,8 +594,7 @@ Test(lp, warm_start_after_rows)
         prob_free(&p);
     }
     /* the point of warm starts: less work in total than cold solves */
-    cr_expect_lt(warm_iters, cold_iters, "warm %ld vs cold %ld iterations",
-                 warm_iters, cold_iters);
+    cr_expect_lt(warm_iters, cold_iters, "warm %ld vs cold %ld iterations", warm_iters, cold_iters);
 }
 
 /* Branching: a sequence of column fixings and bound changes, each
@@ -648,19 +632,16 @@ Test(lp, warm_start_after_bound_changes)
                     p.rhi[i] += irand(-2, 2);
                 if (p.rhi[i] < p.rlo[i])
                     p.rhi[i] = p.rlo[i];
-                cr_assert_eq(
-                    surety_lp_set_row_bounds(warm, i, p.rlo[i], p.rhi[i]), 0);
+                cr_assert_eq(surety_lp_set_row_bounds(warm, i, p.rlo[i], p.rhi[i]), 0);
             }
             surety_lp_status sw = surety_lp_solve(warm);
             surety_lp *cold = build(&p);
             surety_lp_status sc = surety_lp_solve(cold);
-            cr_assert_eq(sw, sc, "instance %d step %d: warm %d cold %d", t,
-                         step, sw, sc);
+            cr_assert_eq(sw, sc, "instance %d step %d: warm %d cold %d", t, step, sw, sc);
             if (sw == SURETY_LP_OPTIMAL)
-                cr_assert(close_rel(surety_lp_obj(warm), surety_lp_obj(cold),
-                                    1e-9),
-                          "instance %d step %d: warm %.12g cold %.12g", t,
-                          step, surety_lp_obj(warm), surety_lp_obj(cold));
+                cr_assert(close_rel(surety_lp_obj(warm), surety_lp_obj(cold), 1e-9),
+                          "instance %d step %d: warm %.12g cold %.12g", t, step,
+                          surety_lp_obj(warm), surety_lp_obj(cold));
             if (step % 4 == 3)
                 compare(&p, warm, sw, "warm bounds");
             surety_lp_free(cold);
@@ -698,12 +679,10 @@ Test(lp, basis_save_restore)
         cr_assert_eq(surety_lp_set_basis(lp, basis, m), 0);
         cr_assert_eq(surety_lp_solve(lp), SURETY_LP_OPTIMAL);
         cr_expect(close_rel(surety_lp_obj(lp), root, 1e-9));
-        cr_expect_eq(surety_lp_iterations(lp), 0,
-                     "restored optimal basis took %ld iterations",
+        cr_expect_eq(surety_lp_iterations(lp), 0, "restored optimal basis took %ld iterations",
                      surety_lp_iterations(lp));
         /* a basis with a wrong count of basic variables is refused */
-        basis[0] = basis[0] == SURETY_LP_BASIC ? SURETY_LP_AT_LOWER
-                                               : SURETY_LP_BASIC;
+        basis[0] = basis[0] == SURETY_LP_BASIC ? SURETY_LP_AT_LOWER : SURETY_LP_BASIC;
         cr_expect_eq(surety_lp_set_basis(lp, basis, m), -1);
         cr_expect_eq(surety_lp_set_basis(lp, basis, m + 5), -1);
         free(row);
@@ -756,8 +735,7 @@ Test(lp, objective_change)
     need_glpsol();
     rs = 606;
     for (int t = 0; t < 20; t++) {
-        prob p = random_prob((size_t)irand(3, 20), (size_t)irand(3, 30),
-                             t % 2 ? 3 : 0);
+        prob p = random_prob((size_t)irand(3, 20), (size_t)irand(3, 30), t % 2 ? 3 : 0);
         surety_lp *lp = build(&p);
         surety_lp_solve(lp);
         for (size_t j = 0; j < p.n; j++)
@@ -799,8 +777,7 @@ Test(lp, cutoff)
             stopped++;
             cr_expect(surety_lp_obj(lp) <= cut);
             cr_expect(surety_lp_obj(lp) >= r.obj - 1e-7 * fmax(1, fabs(r.obj)),
-                      "bound %.12g below the optimum %.12g",
-                      surety_lp_obj(lp), r.obj);
+                      "bound %.12g below the optimum %.12g", surety_lp_obj(lp), r.obj);
         } else {
             cr_expect(close_rel(surety_lp_obj(lp), r.obj, 1e-7));
         }
@@ -842,10 +819,8 @@ Test(lp, branch_and_bound_pattern)
             size_t j = (size_t)irand(0, (int)n - 1);
             nlo[v][j] = nhi[v][j] = (double)irand(0, 1);
             for (size_t jj = 0; jj < n; jj++)
-                cr_assert_eq(surety_lp_set_col_bounds(lp, jj, nlo[v][jj],
-                                                      nhi[v][jj]), 0);
-            cr_assert_eq(surety_lp_set_basis(lp, basis[parent], brows[parent]),
-                         0);
+                cr_assert_eq(surety_lp_set_col_bounds(lp, jj, nlo[v][jj], nhi[v][jj]), 0);
+            cr_assert_eq(surety_lp_set_basis(lp, basis[parent], brows[parent]), 0);
             if (surety_lp_nrows(lp) < m + extra && urand() < 0.4) {
                 size_t i = surety_lp_nrows(lp);
                 surety_lp_add_row(lp, full.A + i * n, full.rlo[i], full.rhi[i]);
@@ -857,13 +832,11 @@ Test(lp, branch_and_bound_pattern)
             memcpy(node.hi, nhi[v], n * sizeof *node.hi);
             surety_lp *cold = build(&node);
             surety_lp_status sc = surety_lp_solve(cold);
-            cr_assert_eq(sw, sc, "instance %d node %d: warm %d cold %d", t, v,
-                         sw, sc);
+            cr_assert_eq(sw, sc, "instance %d node %d: warm %d cold %d", t, v, sw, sc);
             if (sw == SURETY_LP_OPTIMAL)
-                cr_assert(close_rel(surety_lp_obj(lp), surety_lp_obj(cold),
-                                    1e-9),
-                          "instance %d node %d: warm %.12g cold %.12g", t, v,
-                          surety_lp_obj(lp), surety_lp_obj(cold));
+                cr_assert(close_rel(surety_lp_obj(lp), surety_lp_obj(cold), 1e-9),
+                          "instance %d node %d: warm %.12g cold %.12g", t, v, surety_lp_obj(lp),
+                          surety_lp_obj(cold));
             if (v % 6 == 0)
                 compare(&node, lp, sw, "node");
             surety_lp_free(cold);
@@ -915,8 +888,8 @@ Test(lp, delete_rows)
         cr_assert_eq(sw, sc, "instance %d: warm %d cold %d", t, sw, sc);
         if (sw == SURETY_LP_OPTIMAL)
             cr_assert(close_rel(surety_lp_obj(lp), surety_lp_obj(cold), 1e-9),
-                      "instance %d: warm %.12g cold %.12g", t,
-                      surety_lp_obj(lp), surety_lp_obj(cold));
+                      "instance %d: warm %.12g cold %.12g", t, surety_lp_obj(lp),
+                      surety_lp_obj(cold));
         compare(&p, lp, sw, "after deletion");
         size_t bad_row = keep;
         cr_expect_eq(surety_lp_del_rows(lp, &bad_row, 1), -1);

@@ -383,8 +383,7 @@ void surety_basis_dual(surety_lp *lp)
     for (size_t j = 0; j < n; j++)
         lp->d[j] = lp->stat[j] == SURETY_LP_BASIC ? 0.0 : lp->cost[j] - t[j];
     for (size_t i = 0; i < m; i++)
-        lp->d[n + i] =
-            lp->stat[n + i] == SURETY_LP_BASIC ? 0.0 : lp->cost[n + i] + y[i];
+        lp->d[n + i] = lp->stat[n + i] == SURETY_LP_BASIC ? 0.0 : lp->cost[n + i] + y[i];
 }
 
 /* Y(:,t) = A X(:,t) for the columns t in use (0: dv, 1: tau when exact
@@ -446,8 +445,7 @@ void surety_basis_dual_columns(surety_lp *lp, size_t q, size_t flips)
             w[p] = 0.0;
         for (size_t t = 0; t < flips; t++) {
             size_t j = lp->cand[t];
-            double to = lp->stat[j] == SURETY_LP_AT_LOWER ? lp->wub[j]
-                                                          : lp->wlb[j];
+            double to = lp->stat[j] == SURETY_LP_AT_LOWER ? lp->wub[j] : lp->wlb[j];
             lp->fl[j] = to - lp->x[j];
             if (j < n)
                 X[2 * n + j] = lp->fl[j];

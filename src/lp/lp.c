@@ -22,12 +22,12 @@ static int grow_rows(surety_lp *lp, size_t need)
     if (!A)
         return -1;
     lp->A = A;
-#define GROW(field, count)                                                \
-    do {                                                                  \
-        void *p_ = surety_xrealloc(lp->field, (count), sizeof *lp->field); \
-        if (!p_)                                                          \
-            return -1;                                                    \
-        lp->field = p_;                                                   \
+#define GROW(field, count)                                                                         \
+    do {                                                                                           \
+        void *p_ = surety_xrealloc(lp->field, (count), sizeof *lp->field);                         \
+        if (!p_)                                                                                   \
+            return -1;                                                                             \
+        lp->field = p_;                                                                            \
     } while (0)
     GROW(cost, nv);
     GROW(lb, nv);
@@ -62,15 +62,14 @@ static int grow_rows(surety_lp *lp, size_t need)
     return 0;
 }
 
-surety_lp *surety_lp_create(size_t n, const double *c, const double *lo,
-                            const double *hi)
+surety_lp *surety_lp_create(size_t n, const double *c, const double *lo, const double *hi)
 {
     if (n == 0)
         return NULL;
     for (size_t j = 0; j < n; j++) {
         double l = lo ? lo[j] : 0.0, u = hi ? hi[j] : INFINITY;
-        if ((c && (isnan(c[j]) || !isfinite(c[j]))) || isnan(l) || isnan(u) ||
-            l > u || l == INFINITY || u == -INFINITY)
+        if ((c && (isnan(c[j]) || !isfinite(c[j]))) || isnan(l) || isnan(u) || l > u ||
+            l == INFINITY || u == -INFINITY)
             return NULL;
     }
     surety_dense_single_thread();
@@ -86,8 +85,8 @@ surety_lp *surety_lp_create(size_t n, const double *c, const double *lo,
     lp->atcol = surety_xmalloc(n, sizeof *lp->atcol);
     lp->Kinv = surety_xmalloc(n * n > 0 ? n : 1, n * sizeof *lp->Kinv);
     lp->X = surety_xmalloc(n, 3 * sizeof *lp->X);
-    if (!lp->X || !lp->slot || !lp->atcol || !lp->obj || !lp->colS || !lp->rowN || !lp->posS || !lp->Kinv ||
-        grow_rows(lp, 16) < 0) {
+    if (!lp->X || !lp->slot || !lp->atcol || !lp->obj || !lp->colS || !lp->rowN || !lp->posS ||
+        !lp->Kinv || grow_rows(lp, 16) < 0) {
         surety_lp_free(lp);
         return NULL;
     }
@@ -158,12 +157,10 @@ size_t surety_lp_nrows(const surety_lp *lp)
 
 static int check_bounds(double lo, double hi)
 {
-    return isnan(lo) || isnan(hi) || lo > hi || lo == INFINITY ||
-           hi == -INFINITY;
+    return isnan(lo) || isnan(hi) || lo > hi || lo == INFINITY || hi == -INFINITY;
 }
 
-long surety_lp_add_row(surety_lp *lp, const double *a, double rlo,
-                       double rhi)
+long surety_lp_add_row(surety_lp *lp, const double *a, double rlo, double rhi)
 {
     if (!lp || !a || check_bounds(rlo, rhi))
         return -1;
@@ -376,8 +373,7 @@ size_t surety_lp_get_basis(const surety_lp *lp, signed char *status)
     return lp->n + lp->m;
 }
 
-int surety_lp_set_basis(surety_lp *lp, const signed char *status,
-                        size_t nrows)
+int surety_lp_set_basis(surety_lp *lp, const signed char *status, size_t nrows)
 {
     if (!lp || !status || nrows > lp->m)
         return -1;

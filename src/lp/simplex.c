@@ -26,14 +26,14 @@
  * Programming, Freeman 1983 (ch. 7-8) and I. Maros, Computational
  * Techniques of the Simplex Method, Kluwer 2003 (ch. 9-10). */
 
-#define FEAS_TOL 1e-9         /* primal feasibility, relative to 1+|bound| */
-#define OPT_TOL 1e-9          /* dual feasibility of reduced costs */
-#define PIVOT_TOL 1e-9        /* smallest acceptable |pivot| */
-#define REFACTOR_EVERY 64     /* updates of K^-1 between LU rebuilds */
-#define ARTIFICIAL_BOX 1e6    /* first artificial bound distance */
-#define ARTIFICIAL_MAX 1e13   /* give up enlarging the box beyond this */
-#define STALL_PERTURB 25      /* degenerate dual steps before perturbing */
-#define MAX_ROUNDS 8          /* dual/primal alternations per solve */
+#define FEAS_TOL 1e-9       /* primal feasibility, relative to 1+|bound| */
+#define OPT_TOL 1e-9        /* dual feasibility of reduced costs */
+#define PIVOT_TOL 1e-9      /* smallest acceptable |pivot| */
+#define REFACTOR_EVERY 64   /* updates of K^-1 between LU rebuilds */
+#define ARTIFICIAL_BOX 1e6  /* first artificial bound distance */
+#define ARTIFICIAL_MAX 1e13 /* give up enlarging the box beyond this */
+#define STALL_PERTURB 25    /* degenerate dual steps before perturbing */
+#define MAX_ROUNDS 8        /* dual/primal alternations per solve */
 
 static double urand(surety_lp *lp)
 {
@@ -260,8 +260,8 @@ static size_t ratio_test(surety_lp *lp, double sgn, double slope, long *q)
         if (fabs(a) <= ptol)
             continue;
         int s = lp->stat[j];
-        if ((s == SURETY_LP_AT_LOWER && a > 0) ||
-            (s == SURETY_LP_AT_UPPER && a < 0) || s == SURETY_LP_AT_ZERO)
+        if ((s == SURETY_LP_AT_LOWER && a > 0) || (s == SURETY_LP_AT_UPPER && a < 0) ||
+            s == SURETY_LP_AT_ZERO)
             cand[nc++] = j;
     }
     *q = -1;
@@ -322,8 +322,7 @@ static int enlarge_box(surety_lp *lp)
     for (size_t j = 0; j < lp->n + lp->m; j++) {
         if (lp->stat[j] == SURETY_LP_BASIC)
             continue;
-        if ((lp->wlb[j] != lp->lb[j] || lp->wub[j] != lp->ub[j]) &&
-            fabs(lp->alpha[j]) > PIVOT_TOL)
+        if ((lp->wlb[j] != lp->lb[j] || lp->wub[j] != lp->ub[j]) && fabs(lp->alpha[j]) > PIVOT_TOL)
             used = 1;
     }
     if (!used)
@@ -406,8 +405,7 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
         }
         surety_basis_dual_columns(lp, (size_t)q, flips);
         double arq_col = -lp->dv[r], arq_row = lp->alpha[q];
-        if (fabs(arq_col - arq_row) > 1e-8 * (1.0 + fabs(arq_col)) ||
-            fabs(arq_col) <= PIVOT_TOL) {
+        if (fabs(arq_col - arq_row) > 1e-8 * (1.0 + fabs(arq_col)) || fabs(arq_col) <= PIVOT_TOL) {
             /* The updated inverse has drifted: rebuild and price again. */
             if (lp->nupd > 0 && !retried) {
                 retried = 1;
@@ -422,8 +420,7 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
         /* dual step; a slightly infeasible d_q (Harris) is shifted to 0 */
         double dq = lp->d[q];
         if ((lp->stat[q] == SURETY_LP_AT_LOWER && dq < 0) ||
-            (lp->stat[q] == SURETY_LP_AT_UPPER && dq > 0) ||
-            lp->stat[q] == SURETY_LP_AT_ZERO) {
+            (lp->stat[q] == SURETY_LP_AT_UPPER && dq > 0) || lp->stat[q] == SURETY_LP_AT_ZERO) {
             lp->cost[q] -= dq;
             dq = 0.0;
             if (lp->d[q] != 0.0)
@@ -462,21 +459,18 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
         /* primal step: x_r reaches its violated bound */
         double thp = (target - lp->x[r]) / lp->dv[r];
         for (size_t j = 0; j < nv; j++)
-            if (lp->dv[j] != 0.0 &&
-                (lp->stat[j] == SURETY_LP_BASIC || j == (size_t)q))
+            if (lp->dv[j] != 0.0 && (lp->stat[j] == SURETY_LP_BASIC || j == (size_t)q))
                 lp->x[j] += thp * lp->dv[j];
         lp->x[r] = target;
         /* steepest-edge weights: alpha_iq / alpha_rq = dv_i / dv_r */
         for (size_t j = 0; j < nv; j++) {
-            if (lp->stat[j] != SURETY_LP_BASIC || j == (size_t)r ||
-                lp->dv[j] == 0.0)
+            if (lp->stat[j] != SURETY_LP_BASIC || j == (size_t)r || lp->dv[j] == 0.0)
                 continue;
             double f = lp->dv[j] / lp->dv[r];
-            double wj = SURETY_LP_DSE_EXACT
-                            ? lp->wgt[j] - 2.0 * f * lp->tau[j] + f * f * beta_r
-                            : lp->wgt[j];
-            lp->wgt[j] = SURETY_LP_DSE_EXACT ? fmax(wj, fmax(f * f, 1e-12))
-                                   : fmax(wj, f * f * beta_r);
+            double wj = SURETY_LP_DSE_EXACT ? lp->wgt[j] - 2.0 * f * lp->tau[j] + f * f * beta_r
+                                            : lp->wgt[j];
+            lp->wgt[j] =
+                SURETY_LP_DSE_EXACT ? fmax(wj, fmax(f * f, 1e-12)) : fmax(wj, f * f * beta_r);
         }
         lp->wgt[q] = fmax(beta_r / (arq_col * arq_col), 1e-12);
         lp->stat[q] = SURETY_LP_BASIC;
@@ -610,9 +604,7 @@ static void finish(surety_lp *lp, surety_lp_status st)
     double v = 0.0;
     for (size_t j = 0; j < lp->n; j++)
         v += lp->obj[j] * lp->x[j];
-    lp->objval = st == SURETY_LP_INFEASIBLE  ? -INFINITY
-                 : st == SURETY_LP_UNBOUNDED ? INFINITY
-                                             : v;
+    lp->objval = st == SURETY_LP_INFEASIBLE ? -INFINITY : st == SURETY_LP_UNBOUNDED ? INFINITY : v;
 }
 
 /* One solve: rebuild from the statuses, place the nonbasics by their
@@ -623,9 +615,7 @@ surety_lp_status surety_lp_solve(surety_lp *lp)
 {
     if (!lp)
         return SURETY_LP_NUMERIC;
-    long limit = lp->iter_limit > 0
-                     ? lp->iter_limit
-                     : 1000 + 20 * (long)(lp->n + lp->m);
+    long limit = lp->iter_limit > 0 ? lp->iter_limit : 1000 + 20 * (long)(lp->n + lp->m);
     long saved_limit = lp->iter_limit;
     lp->iter_limit = limit;
     lp->iters = 0;

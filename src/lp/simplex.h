@@ -34,7 +34,7 @@
 typedef struct surety_lp surety_lp;
 
 typedef enum surety_lp_status {
-    SURETY_LP_UNSOLVED = 0,   /* no solve yet, or changed since */
+    SURETY_LP_UNSOLVED = 0, /* no solve yet, or changed since */
     SURETY_LP_OPTIMAL = 1,
     SURETY_LP_INFEASIBLE = 2, /* no x satisfies rows and bounds */
     SURETY_LP_UNBOUNDED = 3,  /* feasible, objective unbounded above */
@@ -56,8 +56,7 @@ enum {
  * (column bounds) are arrays of n copied values; NULL means all 0 for c
  * and lo, all +INFINITY for hi. Returns NULL on bad input (n == 0,
  * lo > hi, NaN) or when out of memory. The caller frees the handle. */
-surety_lp *surety_lp_create(size_t n, const double *c, const double *lo,
-                            const double *hi);
+surety_lp *surety_lp_create(size_t n, const double *c, const double *lo, const double *hi);
 
 /* Releases the handle and all it owns; NULL is accepted. */
 void surety_lp_free(surety_lp *lp);
@@ -69,8 +68,7 @@ size_t surety_lp_nrows(const surety_lp *lp);
  * Its activity enters the basis, so the current basis stays valid. Returns
  * the new row index, or -1 on bad input (rlo > rhi, NaN) or out of
  * memory. */
-long surety_lp_add_row(surety_lp *lp, const double *a, double rlo,
-                       double rhi);
+long surety_lp_add_row(surety_lp *lp, const double *a, double rlo, double rhi);
 
 /* Deletes the `count` rows listed in rows[] (any order, repeats allowed);
  * the rows after them move down and keep their order, so row indices
@@ -135,7 +133,6 @@ size_t surety_lp_get_basis(const surety_lp *lp, signed char *status);
  * after children added rows. Returns 0, or -1 when nrows > m or the
  * statuses do not form a basis (wrong count of basic variables). A basis
  * found singular at the next solve is replaced by the all-slack basis. */
-int surety_lp_set_basis(surety_lp *lp, const signed char *status,
-                        size_t nrows);
+int surety_lp_set_basis(surety_lp *lp, const signed char *status, size_t nrows);
 
 #endif
