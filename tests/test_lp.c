@@ -432,10 +432,30 @@ Test(lp, chvatal_example)
     prob_free(&p);
 }
 
+/* Counters summed over a batch, to check that the paths a batch is meant
+ * to exercise (artificial bounds, the primal phase, bound flips,
+ * perturbation) were taken. */
+static surety_lp_stats total;
+
+static void add_stats(const surety_lp *lp)
+{
+    surety_lp_stats s;
+    surety_lp_get_stats(lp, &s);
+    total.solves += s.solves;
+    total.dual_iterations += s.dual_iterations;
+    total.primal_iterations += s.primal_iterations;
+    total.bound_flips += s.bound_flips;
+    total.refactors += s.refactors;
+    total.singular += s.singular;
+    total.perturbations += s.perturbations;
+    total.artificial += s.artificial;
+}
+
 static void random_batch(int kind, int count, uint64_t seed)
 {
     need_glpsol();
     rs = seed;
+    memset(&total, 0, sizeof total);
     for (int t = 0; t < count; t++) {
         size_t n, m;
         int shape = t % 4;
@@ -457,6 +477,7 @@ static void random_batch(int kind, int count, uint64_t seed)
         char what[64];
         snprintf(what, sizeof what, "kind %d instance %d", kind, t);
         compare(&p, lp, st, what);
+        add_stats(lp);
         surety_lp_free(lp);
         prob_free(&p);
     }
@@ -465,6 +486,11 @@ static void random_batch(int kind, int count, uint64_t seed)
 Test(lp, random_general)
 {
     random_batch(0, 150, 11);
+    /* free and one-sided columns need artificial bounds and a primal
+     * clean-up; boxed ones get flipped by the ratio test */
+    cr_expect_gt(total.artificial, 0);
+    cr_expect_gt(total.primal_iterations, 0);
+    cr_expect_gt(total.bound_flips, 0);
 }
 
 Test(lp, random_degenerate)
@@ -479,6 +505,7 @@ Test(lp, random_set_cover)
 {
     need_glpsol();
     rs = 61;
+    memset(&total, 0, sizeof total);
     for (int t = 0; t < 60; t++) {
         size_t n = (size_t)irand(60, 100), m = n * (size_t)irand(2, 4);
         prob p = prob_new(n, m);
@@ -497,9 +524,11 @@ Test(lp, random_set_cover)
         surety_lp *lp = build(&p);
         surety_lp_status st = surety_lp_solve(lp);
         compare(&p, lp, st, "set cover");
+        add_stats(lp);
         surety_lp_free(lp);
         prob_free(&p);
     }
+    cr_expect_gt(total.perturbations, 0, "no set-cover LP stalled");
 }
 
 Test(lp, random_badly_scaled)
@@ -515,6 +544,9 @@ Test(lp, random_often_infeasible_or_unbounded)
 Test(lp, random_branch_and_bound_shape)
 {
     random_batch(3, 60, 41);
+    /* all columns boxed: never artificial bounds */
+    cr_expect_eq(total.artificial, 0);
+    cr_expect_gt(total.bound_flips, 0);
 }
 
 /* Hand-made corner cases whose answer is plain from the algebra. */

@@ -154,7 +154,9 @@ int surety_basis_refactor(surety_lp *lp)
     int rc = surety_dense_invert(k, M, n, &rcond);
     if (rc < 0)
         return -2;
+    lp->stats.refactors++;
     if (rc > 0 || rcond < 1e-14) {
+        lp->stats.singular++;
         slack_basis(lp);
         return 1;
     }

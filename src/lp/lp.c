@@ -367,6 +367,11 @@ void surety_lp_get_redcosts(const surety_lp *lp, double *d)
         d[j] = -lp->d[j];
 }
 
+void surety_lp_get_stats(const surety_lp *lp, surety_lp_stats *stats)
+{
+    *stats = lp->stats;
+}
+
 size_t surety_lp_get_basis(const surety_lp *lp, signed char *status)
 {
     memcpy(status, lp->stat, (lp->n + lp->m) * sizeof *status);

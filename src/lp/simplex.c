@@ -435,12 +435,14 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
         if (fabs(thd) <= 1e-12) {
             if (++stall >= STALL_PERTURB && allow_perturb && !lp->perturbed) {
                 perturb(lp);
+                lp->stats.perturbations++;
                 stall = 0;
             }
         } else {
             stall = 0;
         }
         /* bound flips move the basics by fl */
+        lp->stats.bound_flips += (long)flips;
         if (flips > 0) {
             for (size_t j = 0; j < nv; j++)
                 if (lp->stat[j] == SURETY_LP_BASIC)
@@ -478,6 +480,7 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
         surety_basis_pivot(lp, (size_t)q, (size_t)r);
         lp->d[q] = 0.0;
         lp->iters++;
+        lp->stats.dual_iterations++;
     }
 }
 
@@ -570,6 +573,7 @@ static surety_lp_status primal_phase(surety_lp *lp)
         if (r < 0 && !isfinite(range))
             return SURETY_LP_UNBOUNDED;
         lp->iters++;
+        lp->stats.primal_iterations++;
         if (r < 0 || range <= theta) {
             /* bound flip of the entering variable */
             for (size_t j = 0; j < nv; j++)
@@ -632,6 +636,8 @@ surety_lp_status surety_lp_solve(surety_lp *lp)
             goto done;
     surety_basis_dual(lp);
     place_nonbasics(lp);
+    lp->stats.solves++;
+    lp->stats.artificial += lp->artificial;
     surety_basis_primal(lp);
     int round;
     for (round = 0; round < MAX_ROUNDS; round++) {

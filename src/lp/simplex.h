@@ -124,6 +124,20 @@ void surety_lp_get_row_activity(const surety_lp *lp, double *act);
 void surety_lp_get_row_duals(const surety_lp *lp, double *y);
 void surety_lp_get_redcosts(const surety_lp *lp, double *d);
 
+/* Counters since creation, for the solver's statistics. */
+typedef struct surety_lp_stats {
+    long solves;            /* calls of surety_lp_solve */
+    long dual_iterations;   /* dual simplex basis changes */
+    long primal_iterations; /* primal clean-up steps (pivots and flips) */
+    long bound_flips;       /* variables flipped by the dual ratio test */
+    long refactors;         /* LU rebuilds of the working basis */
+    long singular;          /* rebuilds that found the basis singular */
+    long perturbations;     /* times the costs were perturbed (stalling) */
+    long artificial;        /* solves that needed artificial bounds */
+} surety_lp_stats;
+
+void surety_lp_get_stats(const surety_lp *lp, surety_lp_stats *stats);
+
 /* Copies the basis: n + m status values (SURETY_LP_BASIC etc.), columns
  * first then rows. Returns n + m. */
 size_t surety_lp_get_basis(const surety_lp *lp, signed char *status);

@@ -58,7 +58,8 @@ struct surety_lp {
     size_t *cand;  /* n + mcap: ratio-test candidates */
     long iter_limit;
     long iters;
-    double cutoff; /* stop once the bound c^T x is <= cutoff (money) */
+    surety_lp_stats stats; /* counters since creation */
+    double cutoff;         /* stop once the bound c^T x is <= cutoff (money) */
     surety_lp_status status;
     double objval;
 };
