@@ -537,9 +537,9 @@ Test(solve, early_stop_keeps_an_honest_bound)
     for (uint64_t t = 0; t < 6; t++) {
         solve_gen_params p;
         memset(&p, 0, sizeof p);
-        p.n = 25;
+        p.n = 16;
         p.m = 3;
-        p.N = 200;
+        p.N = 120;
         p.eps = 0.05;
         p.tightness = 0.5;
         p.dist = SOLVE_GEN_LOGNORMAL;

@@ -2,7 +2,10 @@
  * (METHODS.md s.7, rules 1, 3 and 4).
  * SPDX-License-Identifier: MIT */
 #include <math.h>
+#include <stdlib.h>
 #include <string.h>
+
+#include "alloc.h"
 
 #include "solve/solve.h"
 
@@ -119,18 +122,20 @@ static double knap_joint(const surety_solver *s, size_t l)
     return v;
 }
 
-/* The same for one resource i (separate constraint): candidates allowed in
- * i into its residual capacity. */
-static double knap_single(const surety_solver *s, size_t i, size_t l)
+/* Fractional knapsack of resource i in scenario l with the reduced
+ * profits rp (Lagrangian prices subtracted): free candidates allowed in i
+ * by rp/w, into the residual capacity of i. When x is given, it receives
+ * the fraction taken of each job (entries of untaken jobs untouched). */
+static double knap_lagr(const surety_solver *s, size_t i, size_t l, double *x)
 {
     size_t n = s->n, m = s->m, N = s->N;
     const double *row = s->w + l * n;
     double r = s->cap_hi[i] - s->load[i * N + l];
     if (r < 0)
         r = 0;
-    const uint32_t *e = s->eff + l * s->ncand;
+    const uint32_t *e = s->leff + l * s->nl;
     double v = 0, c = r;
-    for (size_t t = 0; t < s->ncand; t++) {
+    for (size_t t = 0; t < s->nl; t++) {
         uint32_t j = e[t];
         if (s->state[j] != JOB_FREE || !s->allowed[j * m + i])
             continue;
@@ -138,60 +143,116 @@ static double knap_single(const surety_solver *s, size_t i, size_t l)
         if (wj > r)
             continue;
         if (wj <= c) {
-            v += s->p[j];
+            v += s->rp[j];
             c -= wj;
+            if (x)
+                x[j] = 1;
         } else {
-            v += s->p[j] * (c / wj);
+            v += s->rp[j] * (c / wj);
+            if (x)
+                x[j] = c / wj;
             break;
         }
     }
     return v;
 }
 
-/* Why this bound holds (METHODS.md s.7): a completion that beats the
- * cutoff fits, in each group g, all but at most b_g = k - dead_g of the
- * live scenarios. In every scenario it fits, its extra profit in g is at
- * most the knapsack value kn_gl, so it is at most the (b_g+1)-th smallest
- * kn_gl (weighted by multiplicity). Summing over groups bounds the whole
- * completion (for the joint constraint there is one group). A scenario
- * whose kn_gl plus the other groups' quantiles cannot beat the cutoff must
- * be among the failed ones (rule 4): it is fixed dead for the subtree. */
+/* Per-resource quantiles of the Lagrangian bound. Why it holds: for prices
+ * lam >= 0 and y_j = sum_i x_ij <= 1,
+ *   sum_j p_j y_j <= sum_j lam_j + sum_i sum_j (p_j - lam_j)^+ x_ij,
+ * and the jobs of resource i hold there in all but at most b of the live
+ * scenarios (joint: the plan fits all but b live scenarios, so every
+ * resource does; separate: resource i's own budget). In each scenario where
+ * i holds, its reduced profit is at most the knapsack value kl_il, hence at
+ * most the (b+1)-th smallest kl_il (METHODS.md s.7 rule 3 per resource;
+ * Lagrangian relaxation of the assignment rows as for the multiple
+ * knapsack problem, Martello & Toth's bound). Returns sum_i q_i. */
+static double lagr_quantiles(surety_solver *s)
+{
+    size_t N = s->N, m = s->m, k = s->k;
+    double qsum = 0;
+    for (size_t i = 0; i < m; i++) {
+        size_t g = s->separate ? i : 0;
+        const unsigned char *dead = s->dead + g * N;
+        double *kl = s->kl + i * N;
+        double unc = 0;
+        for (size_t t = 0; t < s->nb; t++) {
+            size_t j = s->order[t];
+            if (s->state[j] == JOB_FREE && s->allowed[j * m + i])
+                unc += s->rp[j];
+        }
+        size_t c = 0, livew = 0;
+        for (size_t l = 0; l < N; l++) {
+            if (dead[l] != LIVE)
+                continue;
+            double v = knap_lagr(s, i, l, NULL);
+            kl[l] = v;
+            s->ub[c] = v;
+            s->ubw[c] = s->cnt[l];
+            livew += s->cnt[l];
+            c++;
+        }
+        size_t b = k - s->dead_w[g];
+        double q = livew > b ? select_weighted(s->ub, s->ubw, c, b) : unc;
+        if (q > unc)
+            q = unc;
+        s->ql[i] = q;
+        qsum += q;
+    }
+    return qsum;
+}
+
+static double lam_free(const surety_solver *s)
+{
+    double v = 0;
+    for (size_t t = 0; t < s->nb; t++) {
+        size_t j = s->order[t];
+        if (s->cand[j] && s->state[j] == JOB_FREE)
+            v += s->lam[j];
+    }
+    return v;
+}
+
+/* The node bound is the smaller of two valid bounds:
+ *  - aggregated (joint only; METHODS.md s.7 rule 3): a completion that
+ *    beats the cutoff fits all but at most b = k - dead of the live
+ *    scenarios; in each one it fits, its extra profit is at most the
+ *    knapsack value kn_l over the summed residual capacity, so it is at
+ *    most the (b+1)-th smallest kn_l (weighted by multiplicity);
+ *  - per resource with Lagrangian prices (lagr_quantiles above).
+ * A scenario in which either bound, evaluated as if the completion held
+ * there, cannot beat the cutoff must be among the failed ones (rule 4): it
+ * is fixed dead for the subtree. */
 double surety_bound_node(surety_solver *s, double cutoff)
 {
-    size_t N = s->N, G = s->G, k = s->k;
+    size_t N = s->N, G = s->G, k = s->k, m = s->m;
     double base = s->fixed_profit + s->req_profit;
 
     for (size_t g = 0; g < G; g++)
         if (s->dead_w[g] > k)
             return -INFINITY;
 
-    /* unconstrained completion value per group and overall */
-    double unc_all = 0;
+    double unc = 0;
     for (size_t t = 0; t < s->nb; t++) {
         size_t j = s->order[t];
         if (s->cand[j] && s->state[j] == JOB_FREE)
-            unc_all += s->p[j];
+            unc += s->p[j];
     }
-
-    double qsum = 0;
-    for (size_t g = 0; g < G; g++) {
-        double unc = unc_all;
-        if (s->separate) {
-            unc = 0;
-            for (size_t t = 0; t < s->nb; t++) {
-                size_t j = s->order[t];
-                if (s->cand[j] && s->state[j] == JOB_FREE &&
-                    s->allowed[j * s->m + g])
-                    unc += s->p[j];
-            }
-        }
-        const unsigned char *dead = s->dead + g * N;
-        double *kn = s->kn + g * N;
+    double lf = 0, lsum = 0, bound = base + unc;
+    if (s->use_lagr) {
+        lf = lam_free(s);
+        lsum = lagr_quantiles(s);
+        if (base + lf + lsum < bound)
+            bound = base + lf + lsum;
+    }
+    double qa = INFINITY;
+    if (!s->separate) {
+        double *kn = s->kn;
         size_t c = 0, livew = 0;
         for (size_t l = 0; l < N; l++) {
-            if (dead[l] != LIVE)
+            if (s->dead[l] != LIVE)
                 continue;
-            double v = s->separate ? knap_single(s, g, l) : knap_joint(s, l);
+            double v = knap_joint(s, l);
             if (v > unc)
                 v = unc;
             kn[l] = v;
@@ -200,28 +261,30 @@ double surety_bound_node(surety_solver *s, double cutoff)
             livew += s->cnt[l];
             c++;
         }
-        size_t b = k - s->dead_w[g];
-        double q = livew > b ? select_weighted(s->ub, s->ubw, c, b) : unc;
-        s->q[g] = q;
-        qsum += q;
+        size_t b = k - s->dead_w[0];
+        qa = livew > b ? select_weighted(s->ub, s->ubw, c, b) : unc;
+        if (base + qa < bound)
+            bound = base + qa;
     }
-    if (qsum > unc_all)
-        qsum = unc_all;
-    double bound = base + qsum;
     if (bound == -INFINITY || !(bound > cutoff))
         return bound == -INFINITY ? -INFINITY : bound;
 
     for (size_t g = 0; g < G; g++) {
-        double others = 0;
-        for (size_t h = 0; h < G; h++)
-            if (h != g)
-                others += s->q[h];
         unsigned char *dead = s->dead + g * N;
-        const double *kn = s->kn + g * N;
         for (size_t l = 0; l < N; l++) {
             if (dead[l] != LIVE)
                 continue;
-            if (kn[l] == -INFINITY || base + kn[l] + others <= cutoff) {
+            int fail = 0;
+            if (!s->separate) {
+                double v = s->kn[l];
+                fail = v == -INFINITY || base + v <= cutoff;
+            }
+            for (size_t i = 0; i < m && !fail && s->use_lagr; i++) {
+                if (s->separate && i != g)
+                    continue;
+                fail = base + lf + lsum - s->ql[i] + s->kl[i * N + l] <= cutoff;
+            }
+            if (fail) {
                 trail_push(s, g * N + l);
                 dead[l] = DEAD_BOUND;
                 s->dead_w[g] += s->cnt[l];
@@ -231,4 +294,142 @@ double surety_bound_node(surety_solver *s, double cutoff)
             return -INFINITY;
     }
     return bound;
+}
+
+typedef struct lctx {
+    const double *rp;
+    const double *row;
+} lctx;
+
+static int cmp_lagr(const void *a, const void *b, void *ctx)
+{
+    const lctx *e = ctx;
+    uint32_t ja = *(const uint32_t *)a, jb = *(const uint32_t *)b;
+    double x = e->rp[ja] * e->row[jb], y = e->rp[jb] * e->row[ja];
+    if (x != y)
+        return x > y ? -1 : 1;
+    return (ja > jb) - (ja < jb);
+}
+
+/* Reduced profits and the per-scenario orders for the current prices. */
+static void lagr_prepare(surety_solver *s)
+{
+    size_t n = s->n;
+    s->nl = 0;
+    for (size_t j = 0; j < n; j++) {
+        s->rp[j] = s->cand[j] ? s->p[j] - s->lam[j] : 0;
+        if (s->rp[j] < 0)
+            s->rp[j] = 0;
+        s->nl += s->rp[j] > 0;
+    }
+    for (size_t l = 0; l < s->N; l++) {
+        uint32_t *e = s->leff + l * s->nl;
+        size_t c = 0;
+        for (size_t j = 0; j < n; j++)
+            if (s->rp[j] > 0)
+                e[c++] = (uint32_t)j;
+        lctx ctx = {s->rp, s->w + l * n};
+        qsort_r(e, c, sizeof *e, cmp_lagr, &ctx);
+    }
+}
+
+/* Root prices by projected subgradient steps on L(lam) = sum lam_j +
+ * sum_i q_i(lam) (Polyak step toward the incumbent; Held, Wolfe & Crowder
+ * 1974 style halving when progress stalls). lam_j stays in [0, p_j]. */
+int surety_bound_init(surety_solver *s)
+{
+    size_t n = s->n, N = s->N, m = s->m;
+    s->lam = surety_xcalloc(n, sizeof *s->lam);
+    s->rp = surety_xcalloc(n, sizeof *s->rp);
+    s->leff = surety_xmalloc(N * (s->ncand ? s->ncand : 1), sizeof *s->leff);
+    s->kl = surety_xmalloc(m * N, sizeof *s->kl);
+    s->ql = surety_xmalloc(m, sizeof *s->ql);
+    s->lx = surety_xmalloc(n, sizeof *s->lx);
+    double *best = surety_xcalloc(n, sizeof *best);
+    double *g = surety_xmalloc(n, sizeof *g);
+    if (!s->lam || !s->rp || !s->leff || !s->kl || !s->ql || !s->lx ||
+        !best || !g) {
+        surety_xfree(best);
+        surety_xfree(g);
+        return -1;
+    }
+    double bestL = INFINITY, theta = 1;
+    int stall = 0;
+    double base = s->fixed_profit + s->req_profit;
+    int iters = m > 1 ? 60 : 1;
+    for (int it = 0; it < iters; it++) {
+        lagr_prepare(s);
+        for (size_t j = 0; j < n; j++)
+            g[j] = s->cand[j] ? 1 : 0;
+        lagr_quantiles(s);
+        /* subgradient: 1 - sum over resources of the fraction of j taken
+         * in that resource's critical scenario */
+        double lsum;
+        lsum = 0;
+        for (size_t i = 0; i < m; i++) {
+            size_t gi = s->separate ? i : 0;
+            lsum += s->ql[i];
+            if (s->ql[i] <= 0)
+                continue;
+            for (size_t l = 0; l < N; l++)
+                if (s->dead[gi * N + l] == LIVE && s->kl[i * N + l] == s->ql[i]) {
+                    memset(s->lx, 0, n * sizeof *s->lx);
+                    knap_lagr(s, i, l, s->lx);
+                    for (size_t j = 0; j < n; j++)
+                        g[j] -= s->lx[j];
+                    break;
+                }
+        }
+        double L = base + lam_free(s) + lsum;
+        if (L < bestL - 1e-12 * (s->pscale + 1)) {
+            bestL = L;
+            memcpy(best, s->lam, n * sizeof *best);
+            stall = 0;
+        } else if (++stall >= 5) {
+            theta /= 2;
+            stall = 0;
+        }
+        double norm = 0;
+        for (size_t j = 0; j < n; j++)
+            if (s->cand[j] && s->state[j] == JOB_FREE)
+                norm += g[j] * g[j];
+        if (norm <= 0 || theta < 1e-4)
+            break;
+        double target = s->have_inc ? s->inc : 0.9 * L;
+        double step = theta * (L - target) / norm;
+        if (step <= 0)
+            step = theta * 1e-3 * (s->pscale + 1) / norm;
+        for (size_t j = 0; j < n; j++) {
+            if (!s->cand[j] || s->state[j] != JOB_FREE)
+                continue;
+            double v = s->lam[j] - step * g[j];
+            s->lam[j] = v < 0 ? 0 : (v > s->p[j] ? s->p[j] : v);
+        }
+    }
+    memcpy(s->lam, best, n * sizeof *best);
+    lagr_prepare(s);
+    /* for the joint constraint the aggregated bound is often the smaller
+     * one; the per-resource bound is kept only when it helps at the root */
+    s->use_lagr = 1;
+    s->root_agg = INFINITY;
+    if (!s->separate) {
+        s->use_lagr = 0;
+        double agg = surety_bound_node(s, -INFINITY);
+        s->use_lagr = bestL < agg;
+        s->root_agg = agg;
+    }
+    s->root_lagr = bestL;
+    surety_xfree(best);
+    surety_xfree(g);
+    return 0;
+}
+
+void surety_bound_free(surety_solver *s)
+{
+    surety_xfree(s->lam);
+    surety_xfree(s->rp);
+    surety_xfree(s->leff);
+    surety_xfree(s->kl);
+    surety_xfree(s->ql);
+    surety_xfree(s->lx);
 }

@@ -182,6 +182,7 @@ static void solver_free(surety_solver *s)
 {
     surety_presolve_free(s);
     surety_heur_free(s);
+    surety_bound_free(s);
     surety_xfree(s->state);
     surety_xfree(s->nin);
     surety_xfree(s->load);
@@ -338,6 +339,17 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
             surety_solve_offer(&s, s.tplan);
         if (s.have_inc)
             surety_solve_log_progress(&s, 1, 'H');
+        if (surety_bound_init(&s) != 0) {
+            surety_error_set(err, NULL, 0, 0, NULL,
+                             "out of memory for the bound (%zu jobs, %zu "
+                             "scenarios)", s.n, s.N);
+            rc = SURETY_EINTERNAL;
+            goto fail;
+        }
+        logf_(&s, SURETY_LOG_INFO,
+              "root bounds: aggregated %.6f, per resource %.6f%s",
+              s.root_agg, s.root_lagr,
+              s.use_lagr ? "" : " (aggregated used in the tree)");
         double open = surety_tree_search(&s);
         if (s.stop) {
             res->stop = (surety_stop)(s.stop - 1);

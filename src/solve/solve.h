@@ -86,6 +86,16 @@ struct surety_solver {
     unsigned *ubw;       /* N weights */
     size_t *ubl;         /* N scenario ids */
     double *kn;          /* G*N knapsack values of the last evaluation */
+    /* per-resource bound with Lagrangian prices on "each job once" */
+    double *lam;         /* n prices, 0 <= lam_j <= p_j (0 off candidates) */
+    double *rp;          /* n reduced profits max(p_j - lam_j, 0) */
+    uint32_t *leff;      /* N*nl: per scenario, jobs with rp > 0 by rp/w */
+    size_t nl;
+    double *kl;          /* m*N per-resource knapsack values */
+    double *ql;          /* m per-resource quantiles */
+    double *lx;          /* n scratch: fractions taken */
+    int use_lagr;        /* evaluate the per-resource bound at nodes */
+    double root_agg, root_lagr; /* the two bounds at the root */
     double *q;           /* G group quantiles of the last evaluation */
 
     /* heuristic scratch (heur.c) */
@@ -132,6 +142,11 @@ void surety_presolve_free(surety_solver *s);
  * node is pruned by more than k dead scenarios. Pushes fixings onto the
  * trail. `cutoff` is the value a completion must exceed to matter. */
 double surety_bound_node(surety_solver *s, double cutoff);
+
+/* bound.c: chooses the Lagrangian prices at the root by subgradient steps
+ * (needs the search arrays); 0, or -1 when out of memory. */
+int surety_bound_init(surety_solver *s);
+void surety_bound_free(surety_solver *s);
 
 /* heur.c: greedy insertion with a violation budget and local search
  * (METHODS.md s.8). Completes the partial assignment `fixed` (n entries,
