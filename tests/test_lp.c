@@ -436,6 +436,7 @@ Test(lp, chvatal_example)
  * to exercise (artificial bounds, the primal phase, bound flips,
  * perturbation) were taken. */
 static surety_lp_stats total;
+static long bland_steps; /* primal steps of LPs run on Bland's rule */
 
 static void add_stats(const surety_lp *lp)
 {
@@ -456,6 +457,7 @@ static void random_batch(int kind, int count, uint64_t seed)
     need_glpsol();
     rs = seed;
     memset(&total, 0, sizeof total);
+    bland_steps = 0;
     for (int t = 0; t < count; t++) {
         size_t n, m;
         int shape = t % 4;
@@ -473,11 +475,19 @@ static void random_batch(int kind, int count, uint64_t seed)
         if (kind == 4)
             scale_prob(&p);
         surety_lp *lp = build(&p);
+        /* every other LP runs its primal phase on Bland's rule only */
+        if (t % 2)
+            surety_lp_set_bland_after(lp, 0);
         surety_lp_status st = surety_lp_solve(lp);
         char what[64];
         snprintf(what, sizeof what, "kind %d instance %d", kind, t);
         compare(&p, lp, st, what);
         add_stats(lp);
+        if (t % 2) {
+            surety_lp_stats s;
+            surety_lp_get_stats(lp, &s);
+            bland_steps += s.primal_iterations;
+        }
         surety_lp_free(lp);
         prob_free(&p);
     }
@@ -490,6 +500,7 @@ Test(lp, random_general)
      * clean-up; boxed ones get flipped by the ratio test */
     cr_expect_gt(total.artificial, 0);
     cr_expect_gt(total.primal_iterations, 0);
+    cr_expect_gt(bland_steps, 0, "Bland's rule never ran");
     cr_expect_gt(total.bound_flips, 0);
 }
 
@@ -760,14 +771,15 @@ Test(lp, iteration_limit)
     prob_free(&p);
 }
 
-/* New objective coefficients on a solved LP: the re-solve (primal
- * iterations from the old basis) must match GLPK. */
+/* New objective coefficients on a solved LP: the re-solve from the old
+ * basis (nonbasics re-placed by the new reduced costs, artificial bounds
+ * for free columns, then the primal clean-up) must match GLPK. */
 Test(lp, objective_change)
 {
     need_glpsol();
     rs = 606;
-    for (int t = 0; t < 20; t++) {
-        prob p = random_prob((size_t)irand(3, 20), (size_t)irand(3, 30), t % 2 ? 3 : 0);
+    for (int t = 0; t < 30; t++) {
+        prob p = random_prob((size_t)irand(3, 20), (size_t)irand(3, 30), t % 4 == 3 ? 3 : 0);
         surety_lp *lp = build(&p);
         surety_lp_solve(lp);
         for (size_t j = 0; j < p.n; j++)

@@ -103,7 +103,7 @@ static void print_text(const surety_model *model, const surety_scenarios *sc,
                 surety_result_bound(res));
         return;
     }
-    fprintf(fp, "  mean profit %.2f, upper bound %.2f, gap %.3g%%\n", surety_result_objective(res),
+    fprintf(fp, "  mean profit %.2f, upper bound %.2f, gap %.4f%%\n", surety_result_objective(res),
             surety_result_bound(res), 100.0 * surety_result_gap(res));
     fprintf(fp, "  in sample: %zu of %zu scenarios fit (at most %zu may overload)\n\n",
             surety_result_fit(res), N, surety_result_allowance(res));

@@ -106,6 +106,7 @@ surety_lp *surety_lp_create(size_t n, const double *c, const double *lo, const d
     lp->factored = 1;
     lp->rng = 0x9E3779B97F4A7C15ULL;
     lp->cutoff = -INFINITY;
+    lp->bland_after = 50;
     lp->status = SURETY_LP_UNSOLVED;
     return lp;
 }
@@ -321,6 +322,11 @@ int surety_lp_set_obj(surety_lp *lp, size_t j, double c)
 void surety_lp_set_iter_limit(surety_lp *lp, long limit)
 {
     lp->iter_limit = limit;
+}
+
+void surety_lp_set_bland_after(surety_lp *lp, long steps)
+{
+    lp->bland_after = steps < 0 ? 50 : steps;
 }
 
 void surety_lp_set_cutoff(surety_lp *lp, double cutoff)

@@ -487,10 +487,16 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
 /* Primal simplex from a primal feasible basis (Chvatal 1983, ch. 8, for
  * bounded variables; Dantzig pricing, two-pass Harris ratio test).
  * Removes the dual infeasibilities left by artificial bounds, cost
- * shifts and perturbation; proves unboundedness. */
+ * shifts and perturbation; proves unboundedness. After bland_after
+ * degenerate steps in a row it switches to Bland's smallest-index rule
+ * with the exact ratio test, which cannot cycle (R. G. Bland, "New finite
+ * pivoting rules for the simplex method", Math. Oper. Res. 2 (1977)
+ * 103-107). */
 static surety_lp_status primal_phase(surety_lp *lp)
 {
     size_t n = lp->n;
+    long degenerate = 0;
+    int bland = lp->bland_after == 0;
     surety_basis_dual(lp);
     for (;;) {
         size_t nv = n + lp->m;
@@ -518,7 +524,7 @@ static surety_lp_status primal_phase(surety_lp *lp)
                 continue;
             if (lp->stat[j] == SURETY_LP_AT_UPPER && dj < 0)
                 continue;
-            if (fabs(dj) > best) {
+            if (bland ? q < 0 : fabs(dj) > best) {
                 best = fabs(dj);
                 q = (long)j;
                 dir = sj;
@@ -540,11 +546,13 @@ static surety_lp_status primal_phase(surety_lp *lp)
                 continue;
             double g = dir * lp->dv[j];
             if (g > ptol && isfinite(lp->wub[j])) {
-                double t = (lp->wub[j] + ftol(lp->wub[j]) - lp->x[j]) / g;
+                double slack = bland ? 0.0 : ftol(lp->wub[j]);
+                double t = (lp->wub[j] + slack - lp->x[j]) / g;
                 if (t < tmax)
                     tmax = t;
             } else if (g < -ptol && isfinite(lp->wlb[j])) {
-                double t = (lp->wlb[j] - ftol(lp->wlb[j]) - lp->x[j]) / g;
+                double slack = bland ? 0.0 : ftol(lp->wlb[j]);
+                double t = (lp->wlb[j] - slack - lp->x[j]) / g;
                 if (t < tmax)
                     tmax = t;
             }
@@ -562,7 +570,7 @@ static surety_lp_status primal_phase(surety_lp *lp)
                     t = (lp->wlb[j] - lp->x[j]) / g;
                 else
                     continue;
-                if (t <= tmax && fabs(g) > gbest) {
+                if (t <= tmax && (bland ? r < 0 : fabs(g) > gbest)) {
                     gbest = fabs(g);
                     r = (long)j;
                     theta = t > 0 ? t : 0.0;
@@ -582,6 +590,12 @@ static surety_lp_status primal_phase(surety_lp *lp)
             lp->stat[q] = dir > 0 ? SURETY_LP_AT_UPPER : SURETY_LP_AT_LOWER;
             lp->x[q] = dir > 0 ? lp->wub[q] : lp->wlb[q];
             continue;
+        }
+        if (theta <= 1e-12) {
+            if (++degenerate >= lp->bland_after)
+                bland = 1;
+        } else {
+            degenerate = 0;
         }
         int to_upper = dir * lp->dv[r] > 0;
         for (size_t j = 0; j < nv; j++)

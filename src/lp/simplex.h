@@ -91,6 +91,11 @@ int surety_lp_set_obj(surety_lp *lp, size_t j, double c);
  * restores the default, which grows with the size. */
 void surety_lp_set_iter_limit(surety_lp *lp, long limit);
 
+/* Anti-cycling of the primal phase: after `steps` degenerate steps in a
+ * row it follows Bland's smallest-index rule (0: from the first step;
+ * < 0 restores the default, 50). The dual phase perturbs costs instead. */
+void surety_lp_set_bland_after(surety_lp *lp, long steps);
+
 /* A branch and bound prunes a node whose LP bound cannot beat the
  * incumbent: with a cutoff set, the dual simplex stops as soon as its
  * current value, an upper bound on the optimum, is <= cutoff, with status

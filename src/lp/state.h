@@ -59,6 +59,7 @@ struct surety_lp {
     long iter_limit;
     long iters;
     surety_lp_stats stats; /* counters since creation */
+    long bland_after;      /* degenerate primal steps before Bland's rule */
     double cutoff;         /* stop once the bound c^T x is <= cutoff (money) */
     surety_lp_status status;
     double objval;
