@@ -87,7 +87,7 @@ int surety_lp_set_row_bounds(surety_lp *lp, size_t i, double lo, double hi);
  * primal iterations. Returns 0 or -1 on a bad index or NaN. */
 int surety_lp_set_obj(surety_lp *lp, size_t j, double c);
 
-/* Simplex iterations allowed per solve (pivots and bound flips); <= 0
+/* Simplex iterations allowed per solve (dual pivots and primal steps); <= 0
  * restores the default, which grows with the size. */
 void surety_lp_set_iter_limit(surety_lp *lp, long limit);
 
