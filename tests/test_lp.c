@@ -10,6 +10,7 @@
 #include <string.h>
 #include <unistd.h>
 
+#include "lp/dense.h"
 #include "lp/simplex.h"
 
 /* ------------------------------------------------------------------ */
@@ -944,4 +945,27 @@ Test(lp, delete_rows)
         prob_free(&p);
     }
     cr_expect_gt(binding_deleted, 0, "no deleted row was binding");
+}
+
+/* The dense kernel behind every basis rebuild: the inverse of the 4 x 4
+ * Hilbert matrix H_ij = 1/(i+j+1) has integer entries, here from SciPy
+ * 1.10 (scipy.linalg.invhilbert(4, exact=True)); its 1-norm condition
+ * number is 28375 (numpy.linalg.cond(hilbert(4), 1)), so rcond must be
+ * near 1/28375. A singular matrix must be reported, not inverted. */
+Test(lp, dense_inverse)
+{
+    double H[16], ref[16] = {16,  -120,  240,  -140,  -120, 1200, -2700, 1680,
+                             240, -2700, 6480, -4200, -140, 1680, -4200, 2800};
+    for (int i = 0; i < 4; i++)
+        for (int j = 0; j < 4; j++)
+            H[i * 4 + j] = 1.0 / (i + j + 1);
+    double rcond;
+    cr_assert_eq(surety_dense_invert(4, H, 4, &rcond), 0);
+    for (int t = 0; t < 16; t++)
+        cr_expect(fabs(H[t] - ref[t]) < 1e-8 * fabs(ref[t]), "entry %d: %.15g vs %g", t, H[t],
+                  ref[t]);
+    /* dgecon estimates; the estimate is within a small factor */
+    cr_expect(rcond > 0.3 / 28375 && rcond < 3.0 / 28375, "rcond %g", rcond);
+    double S[4] = {1, 2, 2, 4};
+    cr_expect_eq(surety_dense_invert(2, S, 2, &rcond), 1);
 }
