@@ -212,6 +212,16 @@ def parse_cbc(log, sol_text, mps):
                 t = t[1:]
             if len(t) >= 3:
                 r["x"][t[1]] = float(t[2])
+    # Stopped before any integer solution, CBC still writes a solution file, with the LP
+    # relaxation's fractional values and objective: that is no plan.
+    if objective is not None:
+        for col, v in r["x"].items():
+            j = mps.col_index.get(col)
+            if j is not None and mps.integer[j] and abs(v - round(v)) > 1e-6:
+                objective = None
+                r["x"] = {}
+                r["note"] = "CBC wrote a fractional (LP) solution: no integer solution found"
+                break
     if r["status"] == "optimal" and objective is not None:
         bound = objective
     r["objective"] = obj_to_profit(mps, objective)
