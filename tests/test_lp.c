@@ -135,6 +135,17 @@ static void write_lp(const prob *p, const char *path)
 
 static char tmpdir[256];
 
+static void remove_tmpdir(void)
+{
+    const char *names[] = {"p.lp", "p.raw", "log"};
+    char path[512];
+    for (int t = 0; t < 3; t++) {
+        snprintf(path, sizeof path, "%s/%s", tmpdir, names[t]);
+        unlink(path);
+    }
+    rmdir(tmpdir);
+}
+
 static void need_glpsol(void)
 {
     /* Fail loudly: the set-up installs glpk-utils. */
@@ -143,6 +154,7 @@ static void need_glpsol(void)
     if (!tmpdir[0]) {
         snprintf(tmpdir, sizeof tmpdir, "/tmp/surety_lp_XXXXXX");
         cr_assert(mkdtemp(tmpdir), "mkdtemp failed");
+        atexit(remove_tmpdir);
     }
 }
 
