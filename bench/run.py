@@ -7,9 +7,8 @@ For each model file: `surety export` writes the sample approximation as MPS (pla
 strengthened big-M) from the model's seed and N; `surety solve` solves the same scenarios;
 every installed peer solves each MPS file under the same time limit, one run at a time,
 single-threaded, with the order of solvers rotated from one instance to the next. Each run is
-measured for wall time and peak resident memory (os.wait4 on the child: the kernel's ru_maxrss
-of that one process, so runs never mix; RUSAGE_CHILDREN would only give the running maximum
-over all children so far). Then:
+measured for wall time, CPU time and peak resident memory (GNU time around the solver alone;
+see measure() for why not wait4 or RUSAGE_CHILDREN from here). Then:
   - every solver that claims optimality must agree with surety's objective to 1e-6 relative
     (the MPS minimises minus the mean profit; the harness flips the sign);
   - a solver stopped by the limit must stay consistent: its plan no better than surety's
@@ -17,7 +16,9 @@ over all children so far). Then:
   - every returned plan (surety's and each peer's, rounded from its x values) must fit at
     least N-k of the N scenarios by surety's own count (`surety check --json`, in_sample);
   - each plan's objective recomputed from the MPS objective row must match what its solver
-    reported, and surety's plan must have the same value in the MPS as surety says.
+    reported, and surety's plan must have the same value in the MPS as surety says;
+  - surety's plan must satisfy every row of both MPS files exactly (indicators completed at
+    their cheapest), which tells an invalid export apart from a peer's wrong optimum.
 Any disagreement is printed as DISAGREE lines and the exit status is 1.
 """
 import argparse
@@ -75,6 +76,8 @@ def measure(cmd, stdout_path, hard_timeout_s, env=None, cwd=None):
     of the pre-exec and post-exec peaks, and a child forked (or vforked) from a Python that
     has numpy and scipy loaded starts at ~47 MB, which would hide every small solver run.
     /usr/bin/time is a small C program, so the floor it adds is about 1-2 MB.
+    RUSAGE_CHILDREN deltas would not do either: that field is the running maximum over all
+    children waited for so far, not a sum, so a small run after a large one shows no delta.
     The hard timeout is a safety net beyond the solver's own limit (SIGKILL to the group)."""
     tfile = stdout_path + ".time"
     full = [TIME_PROG, "-f", "%M %U %S", "-o", tfile] + list(cmd) if os.access(TIME_PROG, os.X_OK) \
