@@ -146,12 +146,11 @@ def svg(rows, time_limit, title="Solve time against scenario count N"):
         return '<svg xmlns="http://www.w3.org/2000/svg" width="10" height="10"/>\n'
     xs = [r["N"] for r in pts]
     ys = [r["wall_s"] for r in pts]
-    x0, x1 = math.floor(math.log10(min(xs))), math.ceil(math.log10(max(xs)))
-    y0, y1 = math.floor(math.log10(min(ys))), math.ceil(math.log10(max(ys)))
-    if x1 == x0:
-        x1 += 1
-    if y1 == y0:
-        y1 += 1
+    # whole decades with a margin, so no point sits on the frame
+    x0 = math.floor(math.log10(min(xs)) - 0.15)
+    x1 = math.ceil(math.log10(max(xs)) + 0.15)
+    y0 = math.floor(math.log10(min(ys)) - 0.15)
+    y1 = math.ceil(math.log10(max(ys)) + 0.15)
 
     def px(x):
         return L + (math.log10(x) - x0) / (x1 - x0) * (W - L - R)
