@@ -244,40 +244,6 @@ double surety_dist_from_normal(const surety_marginal *mg, double z)
     return surety_dist_from_uniform(mg, surety_norm_cdf(z));
 }
 
-/* Phi^{-1} of n probabilities in place. Wichura's AS 241 (Applied
- * Statistics 37, 1988; coefficients as published) central rational
- * approximation is evaluated on every element without a branch, so the CPU
- * overlaps the independent evaluations instead of stalling on one chain
- * and on mispredicted region tests; the elements outside |p - 1/2| <= 0.425
- * (about 15%) are then redone by surety_norm_quantile. The central formula
- * is stats.c's, operation for operation, so the results are the same bits
- * (test_sample checks this); it costs 30% less per value. */
-static void quantile_batch(double *p, size_t n)
-{
-    static const double a[8] = {
-        3.3871328727963666080e0, 1.3314166789178437745e+2,
-        1.9715909503065514427e+3, 1.3731693765509461125e+4,
-        4.5921953931549871457e+4, 6.7265770927008700853e+4,
-        3.3430575583588128105e+4, 2.5090809287301226727e+3};
-    static const double b[8] = {
-        1.0, 4.2313330701600911252e+1,
-        6.8718700749205790830e+2, 5.3941960214247511077e+3,
-        2.1213794301586595867e+4, 3.9307895800092710610e+4,
-        2.8729085735721942674e+4, 5.2264952788528545610e+3};
-    double w[QBATCH];
-    for (size_t r = 0; r < n; r++) {
-        double q = p[r] - 0.5, t = 0.180625 - q * q;
-        double num = a[7], den = b[7];
-        for (int k = 6; k >= 0; k--) {
-            num = num * t + a[k];
-            den = den * t + b[k];
-        }
-        w[r] = q * num / den;
-    }
-    for (size_t r = 0; r < n; r++)
-        p[r] = fabs(p[r] - 0.5) <= 0.425 ? w[r] : surety_norm_quantile(p[r]);
-}
-
 /* Truncated normal or lognormal over a batch, the hot case of real models
  * (the model reader truncates every normal at 0): the same arithmetic as
  * surety_dist_from_uniform, bit for bit, in passes over QBATCH values.
@@ -299,7 +265,7 @@ static void window_batch(const surety_marginal *mg, int from_normal,
                 u = surety_norm_cdf(u);
             p[r] = p0 + u * spw;
         }
-        quantile_batch(p, len);
+        surety_norm_quantile_batch(p, len);
         double *dst = out + at * ostride;
         for (size_t r = 0; r < len; r++) {
             double x = a + b * (sgn * p[r]);

@@ -7,8 +7,10 @@
  * tests/ref/gen_stats_ref.py with SciPy 1.10.1 and 60-digit decimal
  * arithmetic. */
 #include <criterion/criterion.h>
+#include <float.h>
 #include <math.h>
 #include <stdio.h>
+#include <string.h>
 
 #include "ref/stats_ref.h"
 #include "stats.h"
@@ -98,6 +100,53 @@ Test(normal, tails_and_edges)
         double x = surety_norm_quantile(p);
         EXPECT_REL(surety_norm_cdf(x), p, 1e-15 * (4.0 + x * x));
     }
+}
+
+/* The limits of a distribution function: Phi(-inf) = 0, Phi(inf) = 1
+ * (definition). The compensated lower tail once returned NaN at -inf. */
+Test(normal, infinite_arguments)
+{
+    cr_expect(surety_norm_cdf(-INFINITY) == 0.0, "%g",
+              surety_norm_cdf(-INFINITY));
+    cr_expect(surety_norm_cdf(INFINITY) == 1.0);
+    cr_expect(isnan(surety_norm_cdf(NAN)));
+    /* far in the lower tail the value underflows to 0 without NaN */
+    cr_expect(surety_norm_cdf(-1e300) == 0.0);
+    cr_expect(surety_norm_cdf(-DBL_MAX) == 0.0);
+    cr_expect(surety_norm_cdf(DBL_MAX) == 1.0);
+    /* round trip through the quantile's infinities */
+    cr_expect(surety_norm_cdf(surety_norm_quantile(0.0)) == 0.0);
+    cr_expect(surety_norm_cdf(surety_norm_quantile(1.0)) == 1.0);
+}
+
+/* The batch quantile gives the scalar one's bits on every element: both
+ * AS 241 regions, their borders, the limits and invalid input, over
+ * lengths that cross its internal passes. */
+Test(normal, quantile_batch_equals_scalar)
+{
+    enum { M = 1000 };
+    static double p[M], want[M];
+    static const double edge[] = {0.0, 1.0, NAN, -0.1, 1.5, 0.5, 0.075,
+                                  0.925, 0.07499999999999999, 1e-300,
+                                  4.9e-324, 1.0 - 0x1p-53};
+    size_t nedge = NROWS(edge);
+    for (size_t t = 0; t < M; t++) {
+        /* a deterministic spread over (0,1), denser in the tails */
+        double u = (t + 0.5) / M;
+        p[t] = t < nedge ? edge[t] : (t % 3 == 0 ? pow(u, 8) : u);
+        want[t] = surety_norm_quantile(p[t]);
+    }
+    surety_norm_quantile_batch(p, M);
+    size_t bad = 0;
+    for (size_t t = 0; t < M; t++) {
+        int same = isnan(want[t]) ? isnan(p[t])
+                                  : memcmp(&p[t], &want[t], sizeof p[t]) == 0;
+        if (!same && bad++ < 10)
+            cr_log_error("element %zu: %.17g vs %.17g", t, p[t], want[t]);
+    }
+    cr_expect(bad == 0, "%zu of %d elements differ", bad, M);
+    /* length 0 touches nothing */
+    surety_norm_quantile_batch(NULL, 0);
 }
 
 Test(binom, methods_values)
