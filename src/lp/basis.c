@@ -7,6 +7,7 @@
 #include <math.h>
 #include <string.h>
 
+#include "alloc.h"
 #include "lp/dense.h"
 #include "lp/state.h"
 
@@ -512,4 +513,32 @@ void surety_basis_check(const surety_lp *lp)
     for (size_t j = 0; j < n + lp->m; j++)
         assert(lp->stat[j] != SURETY_LP_BASIC || lp->d[j] == 0.0);
     (void)worst;
+}
+
+/* Rows of B^-1 (see the block form above): a basic column at position c
+ * has [K^-1(c,:), 0], a basic logical of row i in R_B has
+ * [A(i,S) K^-1, -e_i]; Z = A(:,S) K^-1 comes from the first k slots of AT
+ * in one product. */
+void surety_basis_dse_weights(surety_lp *lp)
+{
+    size_t n = lp->n, m = lp->m, k = lp->k;
+    for (size_t c = 0; c < k; c++) {
+        double w = 0.0;
+        for (size_t p = 0; p < k; p++)
+            w += lp->Kinv[c * n + p] * lp->Kinv[c * n + p];
+        lp->wgt[lp->colS[c]] = fmax(w, 1e-12);
+    }
+    double *Z = k > 0 ? surety_xmalloc(m, k * sizeof *Z) : NULL;
+    if (Z)
+        surety_dense_gemm(1, m, k, k, lp->AT, lp->mcap, lp->Kinv, n, Z, k);
+    for (size_t i = 0; i < m; i++) {
+        if (lp->posN[i] >= 0)
+            continue;
+        double w = 1.0;
+        if (Z)
+            for (size_t p = 0; p < k; p++)
+                w += Z[i * k + p] * Z[i * k + p];
+        lp->wgt[n + i] = w;
+    }
+    surety_xfree(Z);
 }

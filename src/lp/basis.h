@@ -35,6 +35,10 @@ void surety_basis_primal(surety_lp *lp);
 /* Duals y (left in rho) and reduced costs d from the costs in use. */
 void surety_basis_dual(surety_lp *lp);
 
+/* Exact dual steepest-edge weights ||row of B^-1||^2 of all basic
+ * variables: O(m k^2) by one BLAS dgemm; all 1 when out of memory. */
+void surety_basis_dse_weights(surety_lp *lp);
+
 /* Asserts the invariants (expensive; for -Dexpensive_checks). */
 void surety_basis_check(const surety_lp *lp);
 

@@ -96,6 +96,23 @@ void surety_dense_axpy(size_t len, double f, const double *x, double *y)
         cblas_daxpy((int)len, f, x, 1, y, 1);
 }
 
+void surety_dense_gemm(int transa, size_t m, size_t n, size_t k, const double *A,
+                       size_t lda, const double *B, size_t ldb, double *C,
+                       size_t ldc)
+{
+    if (m == 0 || n == 0)
+        return;
+    if (k == 0) {
+        for (size_t i = 0; i < m; i++)
+            for (size_t j = 0; j < n; j++)
+                C[i * ldc + j] = 0.0;
+        return;
+    }
+    cblas_dgemm(CblasRowMajor, transa ? CblasTrans : CblasNoTrans,
+                CblasNoTrans, (int)m, (int)n, (int)k, 1.0, A, (int)lda, B,
+                (int)ldb, 0.0, C, (int)ldc);
+}
+
 /* LU with partial pivoting (dgetrf), a 1-norm condition estimate (dgecon)
  * to catch near-singular bases that dgetrf alone would accept, then the
  * explicit inverse (dgetri). */

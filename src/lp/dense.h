@@ -59,6 +59,12 @@ void surety_dense_ger(size_t m, size_t n, double alpha, const double *x,
 /* y += f x, vectors of length len. */
 void surety_dense_axpy(size_t len, double f, const double *x, double *y);
 
+/* C = op(A) B, row-major: op(A) m x k (A^T when transa != 0, A then
+ * stored k x m), B k x n, C m x n. */
+void surety_dense_gemm(int transa, size_t m, size_t n, size_t k,
+                       const double *A, size_t lda, const double *B,
+                       size_t ldb, double *C, size_t ldc);
+
 /* Replaces the k x k matrix M by its inverse. Stores the reciprocal
  * 1-norm condition estimate of M in *rcond. Returns 0 on success, 1 when
  * M is exactly singular (M is then garbage), -1 when out of memory. */

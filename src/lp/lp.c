@@ -284,6 +284,7 @@ int surety_lp_del_rows(surety_lp *lp, const size_t *rows, size_t count)
     for (size_t p = 0; p < lp->k; p++)
         lp->rowN[p] = to[lp->rowN[p]];
     lp->m = w;
+    lp->weights_stale = 1;
     lp->status = SURETY_LP_UNSOLVED;
     surety_xfree(del);
     surety_xfree(to);
@@ -399,9 +400,7 @@ int surety_lp_set_basis(surety_lp *lp, const signed char *status, size_t nrows)
     memcpy(lp->stat, status, (n + nrows) * sizeof *status);
     for (size_t i = nrows; i < lp->m; i++)
         lp->stat[n + i] = SURETY_LP_BASIC;
-    /* a new reference framework for the steepest-edge weights */
-    for (size_t j = 0; j < n + lp->m; j++)
-        lp->wgt[j] = 1.0;
+    lp->weights_stale = 1;
     lp->factored = 0;
     lp->status = SURETY_LP_UNSOLVED;
     return 0;

@@ -648,6 +648,10 @@ surety_lp_status surety_lp_solve(surety_lp *lp)
     if (!lp->factored || lp->nupd >= REFACTOR_EVERY)
         if (surety_basis_refactor(lp) < -1)
             goto done;
+    if (lp->weights_stale) {
+        surety_basis_dse_weights(lp);
+        lp->weights_stale = 0;
+    }
     surety_basis_dual(lp);
     place_nonbasics(lp);
     lp->stats.solves++;

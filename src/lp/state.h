@@ -38,6 +38,7 @@ struct surety_lp {
     long *posS;        /* n: position in S, or -1 */
     long *posN;        /* mcap: position in R_N, or -1 */
     double *Kinv;      /* n x n, leading dimension n */
+    int weights_stale; /* wgt must be recomputed (after set_basis) */
     int factored;      /* Kinv matches colS/rowN */
     int nupd;          /* updates since the last rebuild */
     int perturbed;     /* cost differs from -obj */
