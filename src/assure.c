@@ -3,19 +3,13 @@
  * SPDX-License-Identifier: MIT */
 #include <math.h>
 #include <string.h>
-#include <time.h>
 
 #include "alloc.h"
+#include "check.h"
+#include "clock.h"
 #include "model.h"
 #include "sample.h"
 #include "stats.h"
-
-static double now_s(void)
-{
-    struct timespec ts;
-    clock_gettime(CLOCK_MONOTONIC, &ts);
-    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
-}
 
 void surety_assure_options_init(surety_assure_options *opt)
 {
@@ -147,7 +141,7 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
     out->chosen = -1;
     out->end = SURETY_ASSURE_SCENARIO_LIMIT;
 
-    double t0 = now_s();
+    double t0 = surety_clock_seconds();
     int table = surety_model_has_table(model);
     size_t N = opt->start_scenarios ? opt->start_scenarios : surety_model_scenarios(model);
     if (table)
@@ -172,7 +166,7 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
     }
 
     for (int s = 0; s < max_steps; s++) {
-        double t = now_s();
+        double t = surety_clock_seconds();
         if (table) {
             if (!sc)
                 code = surety_model_sample(model, &sc, err);
@@ -181,7 +175,7 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
         } else {
             code = (!sc || sc->N < N) ? grow_sample(model, sc, N, &sc, err) : SURETY_OK;
         }
-        out->sample_seconds += now_s() - t;
+        out->sample_seconds += surety_clock_seconds() - t;
         if (code)
             goto fail;
 
@@ -196,7 +190,7 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
         surety_solve_options sopt = opt->solve;
         sopt.start = hint;
         if (opt->time_limit_s > 0) {
-            double left = opt->time_limit_s - (now_s() - t0);
+            double left = opt->time_limit_s - (surety_clock_seconds() - t0);
             if (left <= 0) {
                 out->end = SURETY_ASSURE_TIME_LIMIT;
                 break;
@@ -230,18 +224,11 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
         if (plans[s]) {
             /* Screening: every candidate on the same fresh scenarios, CHECK
              * stream 0..M-1 (common random numbers). */
-            surety_check_options copt;
-            surety_check_options_init(&copt);
-            copt.samples = opt->samples;
-            copt.confidence = opt->confidence;
-            copt.in_sample = 0;
             surety_check_report rep;
-            memset(&rep, 0, sizeof rep);
-            code = surety_check(&level, plans[s], &copt, &rep, err);
-            if (code) {
-                surety_check_report_free(&rep);
+            code = surety_check_fresh(&level, plans[s], opt->samples, 0,
+                                      opt->confidence, &rep, err);
+            if (code)
                 goto fail;
-            }
             st.M = rep.M;
             st.fit = rep.fit;
             st.reliability = rep.reliability;
@@ -277,7 +264,7 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
             break;
         }
         if (st.stop == SURETY_STOP_TIME && opt->time_limit_s > 0 &&
-            now_s() - t0 >= opt->time_limit_s) {
+            surety_clock_seconds() - t0 >= opt->time_limit_s) {
             out->end = SURETY_ASSURE_TIME_LIMIT;
             break;
         }
@@ -303,14 +290,9 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
         /* The certificate: the chosen plan on CHECK scenarios samples ..
          * samples+Mc-1, none of which took part in screening, so the
          * selection among candidates does not bias it (METHODS.md s.4). */
-        surety_check_options copt;
-        surety_check_options_init(&copt);
-        copt.samples = Mc;
-        copt.first = opt->samples;
-        copt.confidence = opt->confidence;
-        copt.in_sample = 0;
         level.risk = 1 - R;
-        code = surety_check(&level, out->plan, &copt, &out->cert, err);
+        code = surety_check_fresh(&level, out->plan, Mc, opt->samples,
+                                  opt->confidence, &out->cert, err);
         if (code)
             goto fail;
         out->sample_seconds += out->cert.sample_seconds;
@@ -323,7 +305,7 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
         surety_plan_free(plans[s]);
     surety_xfree(plans);
     surety_scenarios_free(sc);
-    out->seconds = now_s() - t0;
+    out->seconds = surety_clock_seconds() - t0;
     return SURETY_OK;
 fail:
     for (int s = 0; s < max_steps; s++)

@@ -3,19 +3,13 @@
  * SPDX-License-Identifier: MIT */
 #include <math.h>
 #include <string.h>
-#include <time.h>
 
 #include "alloc.h"
+#include "check.h"
+#include "clock.h"
 #include "model.h"
 #include "plan.h"
 #include "stats.h"
-
-static double now_s(void)
-{
-    struct timespec ts;
-    clock_gettime(CLOCK_MONOTONIC, &ts);
-    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
-}
 
 void surety_bounds_options_init(surety_bounds_options *opt)
 {
@@ -125,7 +119,7 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
                          "table has only one");
         return SURETY_EINPUT;
     }
-    double t0 = now_s();
+    double t0 = surety_clock_seconds();
     size_t M = opt->replications;
     double beta = 1 - opt->confidence;
     out->eps = surety_model_risk(model);
@@ -234,18 +228,11 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
     double best_profit = -INFINITY;
     surety_model level = *model;
     for (size_t c = 0; c < K; c++) {
-        surety_check_options copt;
-        surety_check_options_init(&copt);
-        copt.samples = opt->samples;
-        copt.confidence = 1 - beta_feas / (double)K;
-        copt.in_sample = 0;
         surety_check_report rep;
-        memset(&rep, 0, sizeof rep);
-        code = surety_check(&level, cand[c], &copt, &rep, err);
-        if (code) {
-            surety_check_report_free(&rep);
+        code = surety_check_fresh(&level, cand[c], opt->samples, 0,
+                                  1 - beta_feas / (double)K, &rep, err);
+        if (code)
             goto done;
-        }
         out->check_seconds += rep.sample_seconds + rep.check_seconds;
         if (rep.lower >= 1 - out->eps && rep.profit_mean > best_profit) {
             best_profit = rep.profit_mean;
@@ -258,19 +245,11 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
         /* the chosen plan's profit on scenarios no candidate was screened
          * on: CHECK stream samples .. 2*samples-1, so the choice of the
          * best screened mean does not inflate it */
-        surety_check_options copt;
-        surety_check_options_init(&copt);
-        copt.samples = opt->samples;
-        copt.first = opt->samples;
-        copt.confidence = opt->confidence;
-        copt.in_sample = 0;
         surety_check_report rep;
-        memset(&rep, 0, sizeof rep);
-        code = surety_check(&level, cand[best], &copt, &rep, err);
-        if (code) {
-            surety_check_report_free(&rep);
+        code = surety_check_fresh(&level, cand[best], opt->samples,
+                                  opt->samples, opt->confidence, &rep, err);
+        if (code)
             goto done;
-        }
         out->check_seconds += rep.sample_seconds + rep.check_seconds;
         out->profit_mean = rep.profit_mean;
         out->profit_sd = rep.profit_sd;
@@ -292,7 +271,7 @@ done:
             surety_plan_free(cand[c]);
     surety_xfree(cand);
     surety_xfree(src);
-    out->seconds = now_s() - t0;
+    out->seconds = surety_clock_seconds() - t0;
     if (code)
         surety_bounds_report_free(out);
     return code;

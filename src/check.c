@@ -5,9 +5,9 @@
 
 #include <math.h>
 #include <string.h>
-#include <time.h>
 
 #include "alloc.h"
+#include "clock.h"
 #include "model.h"
 #include "sample.h"
 #include "stats.h"
@@ -140,13 +140,6 @@ void surety_check_report_free(surety_check_report *rep)
         return;
     surety_xfree(rep->resource);
     memset(rep, 0, sizeof *rep);
-}
-
-static double now_s(void)
-{
-    struct timespec ts;
-    clock_gettime(CLOCK_MONOTONIC, &ts);
-    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
 }
 
 /* The k-th smallest (0-based) of v[0..len-1] by quickselect (Hoare
@@ -483,12 +476,12 @@ surety_code surety_check(const surety_model *model, const surety_plan *plan,
     double t_sample = 0, t_check = 0;
     for (size_t done = 0; done < M; done += B) {
         size_t count = M - done < B ? M - done : B;
-        double t0 = now_s();
+        double t0 = surety_clock_seconds();
         surety_sampler_fill(smp, opt->stream, opt->first + done, count, hours,
                             profit);
-        double t1 = now_s();
+        double t1 = surety_clock_seconds();
         eval_block(&ev, &a, M, hours, profit, count);
-        t_check += now_s() - t1;
+        t_check += surety_clock_seconds() - t1;
         t_sample += t1 - t0;
     }
     surety_sampler_free(smp);
@@ -503,17 +496,34 @@ surety_code surety_check(const surety_model *model, const surety_plan *plan,
         return SURETY_EINTERNAL;
     }
 
-    double t0 = now_s();
+    double t0 = surety_clock_seconds();
     out->M = M;
     out->fit = a.fit;
     out->reliability = (double)a.fit / (double)M;
     surety_clopper_pearson(a.fit, M, opt->confidence, &out->lo, &out->hi,
                            &out->lower);
     summarise(model, &a, M, opt->confidence, out);
-    t_check += now_s() - t0;
+    t_check += surety_clock_seconds() - t0;
     out->sample_seconds = t_sample;
     out->check_seconds = t_check;
     free_acc(&a, m);
     surety_check_eval_free(&ev);
     return SURETY_OK;
+}
+
+surety_code surety_check_fresh(const surety_model *model,
+                               const surety_plan *plan, size_t samples,
+                               size_t first, double confidence,
+                               surety_check_report *rep, surety_error *err)
+{
+    surety_check_options opt;
+    surety_check_options_init(&opt);
+    opt.samples = samples;
+    opt.first = first;
+    opt.confidence = confidence;
+    opt.in_sample = 0;
+    surety_code rc = surety_check(model, plan, &opt, rep, err);
+    if (rc != SURETY_OK)
+        surety_check_report_free(rep);
+    return rc;
 }

@@ -4,18 +4,12 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include <time.h>
 
 #include "alloc.h"
+#include "check.h"
+#include "clock.h"
 #include "fileio.h"
 #include "model.h"
-
-static double now_s(void)
-{
-    struct timespec ts;
-    clock_gettime(CLOCK_MONOTONIC, &ts);
-    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
-}
 
 void surety_frontier_options_init(surety_frontier_options *opt)
 {
@@ -107,10 +101,10 @@ surety_code surety_frontier(const surety_model *model, const double *risks,
             order[b - 1] = t;
         }
 
-    double t0 = now_s();
+    double t0 = surety_clock_seconds();
     surety_scenarios *sc = NULL;
     code = surety_model_sample(model, &sc, err);
-    out->sample_seconds = now_s() - t0;
+    out->sample_seconds = surety_clock_seconds() - t0;
     if (code)
         goto fail;
     out->N = surety_scenarios_count(sc);
@@ -156,18 +150,11 @@ surety_code surety_frontier(const surety_model *model, const double *risks,
         /* Common random numbers: every level is checked on the same fresh
          * scenarios, so differences between levels are not sampling noise
          * of the check. */
-        surety_check_options copt;
-        surety_check_options_init(&copt);
-        copt.samples = opt->samples;
-        copt.confidence = opt->confidence;
-        copt.in_sample = 0;
         surety_check_report rep;
-        memset(&rep, 0, sizeof rep);
-        code = surety_check(&level, pt->plan, &copt, &rep, err);
-        if (code) {
-            surety_check_report_free(&rep);
+        code = surety_check_fresh(&level, pt->plan, opt->samples, 0,
+                                  opt->confidence, &rep, err);
+        if (code)
             goto fail;
-        }
         pt->M = rep.M;
         pt->fit = rep.fit;
         pt->reliability = rep.reliability;
