@@ -6,10 +6,9 @@
 
 #include "cli.h"
 
-/* Reads MODEL and applies -n / --seed / --risk overrides. */
-static int load_model(const char *cmd, const char *path, const char *n_arg,
-                      const char *seed_arg, const char *risk_arg,
-                      surety_model **out)
+int cli_load_model(const char *cmd, const char *path, const char *n_arg,
+                   const char *seed_arg, const char *risk_arg,
+                   surety_model **out)
 {
     surety_error err;
     surety_error_clear(&err);
@@ -47,12 +46,6 @@ static int load_model(const char *cmd, const char *path, const char *n_arg,
     return 0;
 }
 
-int cli_load_model(const char *cmd, const char *path, const char *n_arg,
-                   const char *seed_arg, const char *risk_arg, surety_model **out)
-{
-    return load_model(cmd, path, n_arg, seed_arg, risk_arg, out);
-}
-
 static const char sample_help[] =
     "usage: surety sample MODEL [-n N] [--seed S] -o FILE.csv\n"
     "\n"
@@ -65,32 +58,59 @@ static const char sample_help[] =
     "  --seed S      random seed (default: the model's)\n"
     "  -o FILE       output file (written atomically; required)\n";
 
-int cmd_sample(int argc, char **argv)
+/* What sample and export are asked to do. */
+typedef struct data_args {
+    const char *model, *n_arg, *seed_arg, *out;
+    int mps;           /* export: an MPS file; sample: a CSV table */
+    surety_bigm bigm;  /* export only */
+} data_args;
+
+/* The options both commands share (-n, --seed, -o, --help) and export's
+ * formulation flags, which sample refuses. Returns -1 to go on, otherwise
+ * the exit code (0 after --help). */
+static int parse_data_args(const char *cmd, const char *help, int argc,
+                           char **argv, data_args *a)
 {
     static const struct option opts[] = {
         {"seed", required_argument, 0, 's'},
+        {"plain", no_argument, 0, 'p'},
+        {"strengthened", no_argument, 0, 'S'},
         {"output", required_argument, 0, 'o'},
         {"help", no_argument, 0, 'h'},
         {0, 0, 0, 0},
     };
-    const char *n_arg = NULL, *seed_arg = NULL, *out = NULL;
     int c;
     optind = 1;
     while ((c = getopt_long(argc, argv, "n:o:h", opts, NULL)) != -1) {
         switch (c) {
-        case 'n': n_arg = optarg; break;
-        case 's': seed_arg = optarg; break;
-        case 'o': out = optarg; break;
-        case 'h': fputs(sample_help, stdout); return 0;
-        default: return cli_usage_error("sample", "unknown option");
+        case 'n': a->n_arg = optarg; break;
+        case 's': a->seed_arg = optarg; break;
+        case 'p':
+        case 'S':
+            if (!a->mps)
+                return cli_usage_error(cmd, "unknown option");
+            a->bigm = c == 'p' ? SURETY_BIGM_PLAIN : SURETY_BIGM_STRENGTHENED;
+            break;
+        case 'o': a->out = optarg; break;
+        case 'h': fputs(help, stdout); return 0;
+        default: return cli_usage_error(cmd, "unknown option");
         }
     }
     if (optind + 1 != argc)
-        return cli_usage_error("sample", "expected one MODEL file");
-    if (!out)
-        return cli_usage_error("sample", "-o FILE.csv is required");
+        return cli_usage_error(cmd, "expected one MODEL file");
+    if (!a->out)
+        return cli_usage_error(cmd, "-o FILE.%s is required",
+                               a->mps ? "mps" : "csv");
+    a->model = argv[optind];
+    return -1;
+}
+
+/* Reads the model, draws the scenarios it is solved on and writes them as
+ * a table or as the MPS file of the sample approximation. */
+static int write_data(const char *cmd, const data_args *a)
+{
     surety_model *model;
-    int rc = load_model("sample", argv[optind], n_arg, seed_arg, NULL, &model);
+    int rc = cli_load_model(cmd, a->model, a->n_arg, a->seed_arg, NULL, &model);
     if (rc)
         return rc;
     surety_error err;
@@ -98,14 +118,26 @@ int cmd_sample(int argc, char **argv)
     surety_scenarios *sc = NULL;
     surety_code code = surety_model_sample(model, &sc, &err);
     if (!code)
-        code = surety_scenarios_write_csv(model, sc, out, &err);
-    if (!code)
+        code = a->mps ? surety_export_mps(model, sc, a->bigm, a->out, &err)
+                      : surety_scenarios_write_csv(model, sc, a->out, &err);
+    if (!code && a->mps)
+        fprintf(stderr, "wrote the %s formulation with %zu scenarios to %s\n",
+                a->bigm == SURETY_BIGM_PLAIN ? "plain" : "strengthened",
+                surety_scenarios_count(sc), a->out);
+    else if (!code)
         fprintf(stderr, "wrote %zu scenarios of %zu jobs to %s\n",
-                surety_scenarios_count(sc), surety_model_jobs(model), out);
+                surety_scenarios_count(sc), surety_model_jobs(model), a->out);
     rc = code ? cli_report(&err, code) : 0;
     surety_scenarios_free(sc);
     surety_model_free(model);
     return rc;
+}
+
+int cmd_sample(int argc, char **argv)
+{
+    data_args a = {0};
+    int rc = parse_data_args("sample", sample_help, argc, argv, &a);
+    return rc >= 0 ? rc : write_data("sample", &a);
 }
 
 static const char export_help[] =
@@ -124,49 +156,9 @@ static const char export_help[] =
 
 int cmd_export(int argc, char **argv)
 {
-    static const struct option opts[] = {
-        {"seed", required_argument, 0, 's'},
-        {"plain", no_argument, 0, 'p'},
-        {"strengthened", no_argument, 0, 'S'},
-        {"output", required_argument, 0, 'o'},
-        {"help", no_argument, 0, 'h'},
-        {0, 0, 0, 0},
-    };
-    const char *n_arg = NULL, *seed_arg = NULL, *out = NULL;
-    surety_bigm bigm = SURETY_BIGM_STRENGTHENED;
-    int c;
-    optind = 1;
-    while ((c = getopt_long(argc, argv, "n:o:h", opts, NULL)) != -1) {
-        switch (c) {
-        case 'n': n_arg = optarg; break;
-        case 's': seed_arg = optarg; break;
-        case 'p': bigm = SURETY_BIGM_PLAIN; break;
-        case 'S': bigm = SURETY_BIGM_STRENGTHENED; break;
-        case 'o': out = optarg; break;
-        case 'h': fputs(export_help, stdout); return 0;
-        default: return cli_usage_error("export", "unknown option");
-        }
-    }
-    if (optind + 1 != argc)
-        return cli_usage_error("export", "expected one MODEL file");
-    if (!out)
-        return cli_usage_error("export", "-o FILE.mps is required");
-    surety_model *model;
-    int rc = load_model("export", argv[optind], n_arg, seed_arg, NULL, &model);
-    if (rc)
-        return rc;
-    surety_error err;
-    surety_error_clear(&err);
-    surety_scenarios *sc = NULL;
-    surety_code code = surety_model_sample(model, &sc, &err);
-    if (!code)
-        code = surety_export_mps(model, sc, bigm, out, &err);
-    if (!code)
-        fprintf(stderr, "wrote the %s formulation with %zu scenarios to %s\n",
-                bigm == SURETY_BIGM_PLAIN ? "plain" : "strengthened",
-                surety_scenarios_count(sc), out);
-    rc = code ? cli_report(&err, code) : 0;
-    surety_scenarios_free(sc);
-    surety_model_free(model);
-    return rc;
+    data_args a = {0};
+    a.mps = 1;
+    a.bigm = SURETY_BIGM_STRENGTHENED;
+    int rc = parse_data_args("export", export_help, argc, argv, &a);
+    return rc >= 0 ? rc : write_data("export", &a);
 }
