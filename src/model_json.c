@@ -906,18 +906,45 @@ static size_t first_duplicate(const char *const *ids, size_t count,
     return best;
 }
 
+/* The required, non-empty top-level array `key` of `what`s ("resources"
+ * of "resource"); pushes `key` on the path. Returns its size, or 0 after
+ * failing. */
+static size_t get_list(reader *r, json_t *root, const char *key,
+                       const char *what, json_t **arr)
+{
+    *arr = json_object_get(root, key);
+    push_key(r, key);
+    if (!*arr)
+        return (size_t)fail(r, AT_PARENT, "required field is missing") + 1;
+    if (!json_is_array(*arr))
+        return (size_t)fail(r, AT_VALUE, "must be an array of %s, not %s",
+                            key, type_name(*arr)) + 1;
+    if (json_array_size(*arr) == 0)
+        return (size_t)fail(r, AT_VALUE, "must list at least one %s",
+                            what) + 1;
+    return json_array_size(*arr);
+}
+
+/* Fails at <key>[d].id on the first id of ids[0..count-1] that repeats an
+ * earlier one, naming that one; the list's key is on the path. */
+static int unique_ids(reader *r, const char **ids, size_t count,
+                      const char *key, const char *what)
+{
+    size_t first = 0, dup = first_duplicate(ids, count, &first);
+    if (dup == count)
+        return 0;
+    push_index(r, dup);
+    push_key(r, "id");
+    return fail(r, AT_VALUE, "duplicate %s id '%s' (also %s[%zu])", what,
+                ids[dup], key, first);
+}
+
 static int read_resources(reader *r, json_t *root, surety_model *model)
 {
-    json_t *arr = json_object_get(root, "resources");
-    push_key(r, "resources");
-    if (!arr)
-        return fail(r, AT_PARENT, "required field is missing");
-    if (!json_is_array(arr))
-        return fail(r, AT_VALUE, "must be an array of resources, not %s",
-                    type_name(arr));
-    if (json_array_size(arr) == 0)
-        return fail(r, AT_VALUE, "must list at least one resource");
-    size_t m = json_array_size(arr);
+    json_t *arr;
+    size_t m = get_list(r, root, "resources", "resource", &arr);
+    if (m == 0)
+        return -1;
     model->resources = surety_xcalloc(m, sizeof *model->resources);
     if (!model->resources)
         return fail(r, AT_VALUE, "out of memory");
@@ -948,14 +975,10 @@ static int read_resources(reader *r, json_t *root, surety_model *model)
         return fail(r, AT_VALUE, "out of memory");
     for (size_t i = 0; i < m; i++)
         ids[i] = model->resources[i].id;
-    size_t first = 0, dup = first_duplicate(ids, m, &first);
+    int rc = unique_ids(r, ids, m, "resources", "resource");
     surety_xfree(ids);
-    if (dup < m) {
-        push_index(r, dup);
-        push_key(r, "id");
-        return fail(r, AT_VALUE, "duplicate resource id '%s' (also "
-                    "resources[%zu])", model->resources[dup].id, first);
-    }
+    if (rc < 0)
+        return -1;
     pop(r);
     return 0;
 }
@@ -1055,16 +1078,10 @@ static int read_job(reader *r, json_t *o, surety_model *model,
 
 static int read_jobs(reader *r, json_t *root, surety_model *model)
 {
-    json_t *arr = json_object_get(root, "jobs");
-    push_key(r, "jobs");
-    if (!arr)
-        return fail(r, AT_PARENT, "required field is missing");
-    if (!json_is_array(arr))
-        return fail(r, AT_VALUE, "must be an array of jobs, not %s",
-                    type_name(arr));
-    if (json_array_size(arr) == 0)
-        return fail(r, AT_VALUE, "must list at least one job");
-    size_t n = json_array_size(arr);
+    json_t *arr;
+    size_t n = get_list(r, root, "jobs", "job", &arr);
+    if (n == 0)
+        return -1;
     model->jobs = surety_xcalloc(n, sizeof *model->jobs);
     if (!model->jobs)
         return fail(r, AT_VALUE, "out of memory");
@@ -1080,14 +1097,10 @@ static int read_jobs(reader *r, json_t *root, surety_model *model)
         return fail(r, AT_VALUE, "out of memory");
     for (size_t j = 0; j < n; j++)
         ids[j] = model->jobs[j].id;
-    size_t first = 0, dup = first_duplicate(ids, n, &first);
+    int rc = unique_ids(r, ids, n, "jobs", "job");
     surety_xfree(ids);
-    if (dup < n) {
-        push_index(r, dup);
-        push_key(r, "id");
-        return fail(r, AT_VALUE, "duplicate job id '%s' (also jobs[%zu])",
-                    model->jobs[dup].id, first);
-    }
+    if (rc < 0)
+        return -1;
     pop(r);
     return 0;
 }
