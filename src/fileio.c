@@ -5,6 +5,7 @@
 #include <errno.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include "alloc.h"
@@ -16,8 +17,26 @@ surety_code surety_outfile_open(surety_outfile *f, const char *path,
     memset(f, 0, sizeof *f);
     size_t len = strlen(path);
     f->path = surety_xstrdup(path);
+    if (!f->path) {
+        surety_error_set(err, path, 0, 0, NULL, "out of memory");
+        return SURETY_EINTERNAL;
+    }
+    /* Only a regular file (or a new one) is replaced by renaming: renaming
+     * over /dev/null, a pipe or a terminal would put a plain file in place
+     * of the device, so those are written in place. */
+    struct stat st;
+    if (stat(path, &st) == 0 && !S_ISREG(st.st_mode)) {
+        f->fp = fopen(path, "w");
+        if (!f->fp) {
+            surety_error_set(err, path, 0, 0, NULL, "cannot open: %s",
+                             strerror(errno));
+            surety_outfile_abort(f);
+            return SURETY_EINPUT;
+        }
+        return SURETY_OK;
+    }
     f->tmp = surety_xmalloc(len + 16, 1);
-    if (!f->path || !f->tmp) {
+    if (!f->tmp) {
         surety_outfile_abort(f);
         surety_error_set(err, path, 0, 0, NULL, "out of memory");
         return SURETY_EINTERNAL;
@@ -48,7 +67,8 @@ surety_code surety_outfile_commit(surety_outfile *f, surety_error *err)
     int bad = ferror(f->fp);
     if (fflush(f->fp) != 0)
         bad = 1;
-    if (!bad && fsync(fileno(f->fp)) != 0)
+    /* a device or pipe written in place has nothing to sync or rename */
+    if (!bad && f->tmp && fsync(fileno(f->fp)) != 0)
         bad = 1;
     int saved = errno;
     if (fclose(f->fp) != 0)
@@ -60,7 +80,7 @@ surety_code surety_outfile_commit(surety_outfile *f, surety_error *err)
         surety_outfile_abort(f);
         return SURETY_EINTERNAL;
     }
-    if (rename(f->tmp, f->path) != 0) {
+    if (f->tmp && rename(f->tmp, f->path) != 0) {
         surety_error_set(err, f->path, 0, 0, NULL, "cannot rename into place: %s",
                          strerror(errno));
         surety_outfile_abort(f);

@@ -15,7 +15,8 @@ typedef struct surety_outfile {
     char *tmp;        /* temporary path beside it */
 } surety_outfile;
 
-/* Opens a temporary file beside `path`. */
+/* Opens a temporary file beside `path`; when `path` exists and is not a
+ * regular file (/dev/null, a pipe), opens it directly instead. */
 surety_code surety_outfile_open(surety_outfile *f, const char *path,
                                 surety_error *err);
 /* Flushes, syncs and renames the temporary file over `path`; on any

@@ -1,10 +1,13 @@
 /* test_export.c - the MPS export, solved by CBC and GLPK and read back.
  * SPDX-License-Identifier: MIT */
 #include <criterion/criterion.h>
+#include <fcntl.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include "alloc.h"
 #include "cbc_util.h"
@@ -497,6 +500,46 @@ Test(export, rejects_mismatched_scenarios)
     cr_assert(strstr(err.message, "jobs") != NULL);
     FILE *fp = fopen(path, "r");
     cr_assert_null(fp, "nothing may be written on error");
+    cbc_rmdir(dir);
+    free(dir);
+    surety_scenarios_free(sc);
+    surety_model_free(model);
+}
+
+/* Output to something that is not a regular file (a FIFO here, /dev/null
+ * or a terminal in use) is written in place: the atomic rename would
+ * replace the device by a plain file, which as root destroys /dev/null
+ * for the whole machine. The FIFO must still be a FIFO afterwards and
+ * carry the whole file (a reader is opened first so the writer does not
+ * block; the file is far below the pipe's buffer). */
+Test(export, writes_into_a_fifo_without_replacing_it)
+{
+    const double cap = 10;
+    surety_model *model = make_model(2, 1, &cap, NULL, 0.5, SURETY_JOINT);
+    surety_scenarios *sc = make_scenarios(2, 2);
+    for (size_t t = 0; t < 4; t++) {
+        sc->hours[t] = 1 + (double)t;
+        sc->profit[t] = 3;
+    }
+    char *dir = cbc_tempdir();
+    cr_assert_not_null(dir);
+    char path[1100];
+    snprintf(path, sizeof path, "%s/out.mps", dir);
+    cr_assert_eq(mkfifo(path, 0600), 0);
+    int rd = open(path, O_RDONLY | O_NONBLOCK);
+    cr_assert_geq(rd, 0);
+    surety_error err;
+    cr_assert_eq(surety_export_mps(model, sc, SURETY_BIGM_PLAIN, path, &err),
+                 SURETY_OK, "%s", err.message);
+    struct stat st;
+    cr_assert_eq(stat(path, &st), 0);
+    cr_expect(S_ISFIFO(st.st_mode), "the FIFO was replaced by a file");
+    char buf[16384];
+    ssize_t got = read(rd, buf, sizeof buf - 1);
+    close(rd);
+    cr_assert_gt(got, 0, "nothing came through the FIFO");
+    buf[got] = '\0';
+    cr_expect(strstr(buf, "ENDATA") != NULL, "incomplete MPS:\n%s", buf);
     cbc_rmdir(dir);
     free(dir);
     surety_scenarios_free(sc);
