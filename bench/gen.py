@@ -1,7 +1,7 @@
 #!/usr/bin/python3
 # gen.py - benchmark instance families for surety: small model files, reproducible from
 # (family, n, m, N, eps, seed, tightness). SPDX-License-Identifier: MIT
-"""Writes surety model files (JSON) for benchmarking.
+"""Writes surety model files (JSON) for benchmarking; --rho sets the correlation level.
 
 Every instance is a pure function of its parameters: the same command writes the same bytes.
 Scenarios are not written: surety draws them from the model's distributions and seed, so a
@@ -37,9 +37,10 @@ import numpy as np
 FAMILIES = ("ident", "diff", "shock", "pairs")
 
 
-def instance_name(family, n, m, N, eps, seed, tightness):
-    return "%s-n%d-m%d-N%d-e%03d-t%02d-s%d" % (
+def instance_name(family, n, m, N, eps, seed, tightness, rho=None):
+    name = "%s-n%d-m%d-N%d-e%03d-t%02d-s%d" % (
         family, n, m, N, round(eps * 1000), round(tightness * 10), seed)
+    return name if rho is None else name + "-r%02d" % round(rho * 100)
 
 
 def rng_for(family, n, m, eps, seed, tightness):
@@ -55,10 +56,14 @@ def r2(x):
     return float("%.2f" % x)
 
 
-def generate(family, n, m, N, eps, seed, tightness=0.5):
+def generate(family, n, m, N, eps, seed, tightness=0.5, rho=None):
+    """The model as a dict. rho overrides the correlation level of shock (default 0.3, every
+    pair) and pairs (default 0.6, disjoint pairs); other families ignore it."""
     if family not in FAMILIES:
         raise ValueError("unknown family %r (one of %s)" % (family, ", ".join(FAMILIES)))
     if not (1 <= m <= 26 and n >= 1 and N >= 1 and 0 < eps < 1 and 0 < tightness <= 1):
+        raise ValueError("parameters out of range")
+    if rho is not None and not (0 <= rho < 1):
         raise ValueError("parameters out of range")
     rng = rng_for(family, n, m, eps, seed, tightness)
     width = max(2, len(str(n)))
@@ -106,18 +111,21 @@ def generate(family, n, m, N, eps, seed, tightness=0.5):
             job["allowed"] = [res_ids[i] for i in range(m) if allowed[j, i]]
         jobs.append(job)
 
-    model = {"name": instance_name(family, n, m, N, eps, seed, tightness),
+    if family not in ("shock", "pairs"):
+        rho = None
+    model = {"name": instance_name(family, n, m, N, eps, seed, tightness, rho),
              "risk": eps, "scenarios": N, "seed": seed, "constraint": "joint",
              "resources": resources, "jobs": jobs}
     if family == "shock":
-        model["correlation"] = {"all": 0.3}
+        model["correlation"] = {"all": 0.3 if rho is None else rho}
     elif family == "pairs":
         # Disjoint pairs keep the correlation matrix block-diagonal with 2x2 blocks of
         # |rho| < 1, hence positive definite without any repair.
         order = rng.permutation(n)
         pairs = []
         for a in range(0, n - 1, 4):
-            pairs.append([job_ids[order[a]], job_ids[order[a + 1]], 0.6])
+            pairs.append([job_ids[order[a]], job_ids[order[a + 1]],
+                          0.6 if rho is None else rho])
         model["correlation"] = {"pairs": pairs}
     return model
 
@@ -185,6 +193,8 @@ def main(argv):
     ap.add_argument("--seed", type=int, default=1)
     ap.add_argument("--tightness", type=float, default=0.5,
                     help="capacity as a share of expected total hours (default 0.5)")
+    ap.add_argument("--rho", type=float, default=None,
+                    help="correlation level for shock (default 0.3) and pairs (default 0.6)")
     ap.add_argument("-o", dest="out", help="output file (default: stdout)")
     ap.add_argument("--set", metavar="DIR",
                     help="write the committed benchmark set into DIR (with README.md)")
@@ -201,7 +211,7 @@ def main(argv):
     if not a.family:
         ap.error("give a family or --set DIR")
     try:
-        model = generate(a.family, a.n, a.m, a.N, a.eps, a.seed, a.tightness)
+        model = generate(a.family, a.n, a.m, a.N, a.eps, a.seed, a.tightness, a.rho)
     except ValueError as e:
         ap.error(str(e))
     text = dumps(model)
