@@ -485,12 +485,19 @@ void surety_basis_dual_columns(surety_lp *lp, size_t q, size_t flips)
 }
 
 /* Expensive invariant check (meson -Dexpensive_checks=true, debug
- * builds): K^-1 is the inverse of A(R_N, S), the basic values satisfy
- * A x - s = 0, and basic reduced costs vanish. */
+ * builds): the column copy AT matches A with S in its first k slots,
+ * K^-1 is the inverse of A(R_N, S), the basic values satisfy A x - s = 0,
+ * and basic reduced costs vanish. */
 void surety_basis_check(const surety_lp *lp)
 {
     size_t n = lp->n, k = lp->k;
     double worst = 0.0;
+    for (size_t s = 0; s < n; s++) {
+        assert(lp->slot[lp->atcol[s]] == s);
+        assert(s >= k || lp->atcol[s] == lp->colS[s]);
+        for (size_t i = 0; i < lp->m; i++)
+            assert(lp->AT[s * lp->mcap + i] == lp->A[i * n + lp->atcol[s]]);
+    }
     for (size_t p = 0; p < k; p++) {
         const double *a = lp->A + lp->rowN[p] * n;
         for (size_t p2 = 0; p2 < k; p2++) {
