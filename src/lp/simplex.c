@@ -351,6 +351,10 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
 {
     size_t n = lp->n;
     int stall = 0, retried = 0;
+    if (lp->weights_stale) {
+        surety_basis_dse_weights(lp);
+        lp->weights_stale = 0;
+    }
     for (;;) {
         size_t nv = n + lp->m;
         if (lp->nupd >= REFACTOR_EVERY) {
@@ -607,7 +611,7 @@ static surety_lp_status primal_phase(surety_lp *lp)
             surety_basis_btran_row(lp, (size_t)r);
         lp->stat[q] = SURETY_LP_BASIC;
         lp->stat[r] = to_upper ? SURETY_LP_AT_UPPER : SURETY_LP_AT_LOWER;
-        lp->wgt[q] = 1.0;
+        lp->weights_stale = 1;
         surety_basis_pivot(lp, (size_t)q, (size_t)r);
         surety_basis_dual(lp);
     }
@@ -648,10 +652,6 @@ surety_lp_status surety_lp_solve(surety_lp *lp)
     if (!lp->factored || lp->nupd >= REFACTOR_EVERY)
         if (surety_basis_refactor(lp) < -1)
             goto done;
-    if (lp->weights_stale) {
-        surety_basis_dse_weights(lp);
-        lp->weights_stale = 0;
-    }
     surety_basis_dual(lp);
     place_nonbasics(lp);
     lp->stats.solves++;

@@ -38,7 +38,8 @@ struct surety_lp {
     long *posS;        /* n: position in S, or -1 */
     long *posN;        /* mcap: position in R_N, or -1 */
     double *Kinv;      /* n x n, leading dimension n */
-    int weights_stale; /* wgt must be recomputed (after set_basis) */
+    int weights_stale; /* wgt must be recomputed (after set_basis,
+                          del_rows or primal pivots) */
     int factored;      /* Kinv matches colS/rowN */
     int nupd;          /* updates since the last rebuild */
     int perturbed;     /* cost differs from -obj */
