@@ -229,6 +229,7 @@ typedef struct surety_resource_check {
      * only informative. */
     double reliability;
     double reliability_lower;
+    double reliability_confidence; /* the confidence of reliability_lower */
     surety_verdict verdict;
 } surety_resource_check;
 

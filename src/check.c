@@ -348,6 +348,7 @@ static void summarise(const surety_model *model, check_acc *a, size_t M,
         q->reliability = (double)a->holds[i] / (double)M;
         surety_clopper_pearson(a->holds[i], M, c_each, &lo, &hi, &lower);
         q->reliability_lower = lower;
+        q->reliability_confidence = c_each;
         q->verdict = verdict_of(q->reliability, lower, out->target);
         if (model->constraint == SURETY_SEPARATE && q->verdict > out->verdict)
             out->verdict = q->verdict;

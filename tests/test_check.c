@@ -265,16 +265,24 @@ Test(check, verdict_logic)
     surety_model_free(model);
 }
 
-Test(check, separate_verdicts_are_bonferroni)
+/* normal_json with the separate constraint and seed 12 (caller frees). */
+static char *separate_json(void)
 {
     char *json = strdup(normal_json);
     char *p = strstr(json, "\"seed\": 11,");
     cr_assert_not_null(p);
     memcpy(p, "\"seed\": 12,", 11);
-    /* same model, separate constraint; eps 0.1: east (0.75) fails */
     size_t len = strlen(json);
     char *sep = malloc(len + 64);
     snprintf(sep, len + 64, "{\"constraint\": \"separate\", %s", json + 1);
+    free(json);
+    return sep;
+}
+
+Test(check, separate_verdicts_are_bonferroni)
+{
+    /* same model, separate constraint; eps 0.1: east (0.75) fails */
+    char *sep = separate_json();
     surety_model *model = parse(sep);
     cr_assert_eq(surety_model_constraint(model), SURETY_SEPARATE);
     cr_assert_eq(surety_model_set_risk(model, 0.1, NULL), SURETY_OK);
@@ -310,7 +318,96 @@ Test(check, separate_verdicts_are_bonferroni)
     surety_plan_free(plan);
     surety_model_free(model);
     free(sep);
-    free(json);
+}
+
+/* `surety check` on a separate model shows each resource's reliability,
+ * lower bound (at its Bonferroni confidence) and verdict, in the text and
+ * in the JSON, equal to what the library computes on the same fresh
+ * scenarios; Python's json module reads the JSON. */
+Test(check, cli_shows_each_resource_of_a_separate_model)
+{
+    const char *root = getenv("SURETY_BUILD_ROOT");
+    char exe[1024];
+    snprintf(exe, sizeof exe, "%s/surety", root ? root : ".");
+    if (!root || access(exe, X_OK) != 0 || access(PYTHON, X_OK) != 0)
+        cr_skip_test("no surety program or no python");
+    char dir[] = "/tmp/surety-check-cli-XXXXXX";
+    cr_assert_not_null(mkdtemp(dir));
+    char mpath[128], ppath[128];
+    snprintf(mpath, sizeof mpath, "%s/model.json", dir);
+    snprintf(ppath, sizeof ppath, "%s/plan.json", dir);
+    char *sep = separate_json();
+    FILE *fp = fopen(mpath, "w");
+    cr_assert_not_null(fp);
+    fputs(sep, fp);
+    fclose(fp);
+    surety_model *model = parse(sep);
+    cr_assert_eq(surety_model_set_risk(model, 0.1, NULL), SURETY_OK);
+    surety_plan *plan = normal_plan(model);
+    surety_error err;
+    cr_assert_eq(surety_plan_write(model, plan, NULL, ppath, &err), SURETY_OK,
+                 "%s", err.message);
+    surety_check_options opt;
+    surety_check_options_init(&opt);
+    opt.samples = 5000;
+    surety_check_report rep;
+    cr_assert_eq(surety_check(model, plan, &opt, &rep, NULL), SURETY_OK);
+    static const char *key[] = {"met", "uncertain", "not_met"};
+
+    char cmd[2048];
+    snprintf(cmd, sizeof cmd,
+             "'%s' check '%s' '%s' --risk 0.1 --samples 5000 --json | " PYTHON
+             " -c \"import json,sys; d=json.load(sys.stdin); print(d['constraint']); "
+             "[print(repr(r['reliability']), repr(r['lower_bound']), "
+             "repr(r['lower_bound_confidence']), r['verdict']) "
+             "for r in d['out_of_sample']['resources']]\"",
+             exe, mpath, ppath);
+    FILE *p = popen(cmd, "r");
+    cr_assert_not_null(p);
+    char word[32] = "";
+    cr_assert_eq(fscanf(p, "%31s", word), 1, "no JSON read");
+    cr_expect_str_eq(word, "separate");
+    for (size_t i = 0; i < 3; i++) {
+        double rel, lower, conf;
+        cr_assert_eq(fscanf(p, "%lf %lf %lf %31s", &rel, &lower, &conf, word),
+                     4, "resource %zu missing", i);
+        const surety_resource_check *q = &rep.resource[i];
+        cr_expect_eq(rel, q->reliability, "resource %zu", i);
+        cr_expect_eq(lower, q->reliability_lower, "resource %zu", i);
+        cr_expect_float_eq(conf, 1 - 0.05 / 3, 1e-15);
+        cr_expect_str_eq(word, key[q->verdict]);
+    }
+    cr_expect_eq(pclose(p), 0);
+
+    snprintf(cmd, sizeof cmd, "'%s' check '%s' '%s' --risk 0.1 --samples 5000",
+             exe, mpath, ppath);
+    p = popen(cmd, "r");
+    cr_assert_not_null(p);
+    static char text[16384];
+    size_t len = fread(text, 1, sizeof text - 1, p);
+    text[len] = '\0';
+    cr_expect_eq(pclose(p), 0);
+    cr_expect(strstr(text, "Each resource on its own") != NULL, "%s", text);
+    static const char *word_of[] = {"met", "not shown", "not met"};
+    for (size_t i = 0; i < 3; i++) {
+        const surety_resource_check *q = &rep.resource[i];
+        char line[160];
+        snprintf(line, sizeof line, "  %-16s %9.4f%% %9.4f%%  %s\n",
+                 surety_model_resource_id(model, i), 100 * q->reliability,
+                 100 * q->reliability_lower, word_of[q->verdict]);
+        cr_expect(strstr(text, line) != NULL, "no line '%s' in:\n%s", line,
+                  text);
+    }
+    /* east (truth 0.748) falls short, so the model's verdict is not met */
+    cr_expect_eq(rep.verdict, SURETY_NOT_MET);
+    cr_expect(strstr(text, "in every resource: not met") != NULL);
+    surety_check_report_free(&rep);
+    surety_plan_free(plan);
+    surety_model_free(model);
+    free(sep);
+    unlink(mpath);
+    unlink(ppath);
+    rmdir(dir);
 }
 
 Test(check, bad_plans_rejected)

@@ -162,7 +162,7 @@ static size_t run_corpus(const char *kind,
                   err.file);
         int line = e.line, col = e.column;
         if (e.at[0]) {
-            char fpath[1200];
+            char fpath[1300];
             snprintf(fpath, sizeof fpath, "%s/%s", dir, want_file);
             char *text = slurp(fpath);
             cr_assert_not_null(text, "%s: cannot read %s", names[c], fpath);

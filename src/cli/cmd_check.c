@@ -55,6 +55,8 @@ static void print_json(const surety_model *model, const surety_check_report *r)
     cli_json_string(fp, surety_model_name(model));
     fprintf(fp, ",\n  \"risk\": ");
     cli_json_number(fp, surety_model_risk(model));
+    fprintf(fp, ",\n  \"constraint\": \"%s\"",
+            surety_model_constraint(model) == SURETY_SEPARATE ? "separate" : "joint");
     fprintf(fp, ",\n  \"in_sample\": {\"scenarios\": %zu, \"fit\": %zu, \"allowance\": %zu, "
                 "\"holds\": %s},\n", r->in_N, r->in_fit, r->in_k, r->in_ok ? "true" : "false");
     fprintf(fp, "  \"out_of_sample\": {\n    \"scenarios\": %zu,\n    \"fit\": %zu,\n", r->M, r->fit);
@@ -92,7 +94,14 @@ static void print_json(const surety_model *model, const surety_check_report *r)
         cli_json_number(fp, q->load_mean);
         fprintf(fp, ", \"load_hours_p95\": ");
         cli_json_number(fp, q->load_p95);
-        fprintf(fp, "}%s\n", i + 1 < r->m ? "," : "");
+        fprintf(fp, ",\n       \"reliability\": ");
+        cli_json_number(fp, q->reliability);
+        fprintf(fp, ", \"lower_bound\": ");
+        cli_json_number(fp, q->reliability_lower);
+        fprintf(fp, ", \"lower_bound_confidence\": ");
+        cli_json_number(fp, q->reliability_confidence);
+        fprintf(fp, ", \"verdict\": \"%s\"}%s\n", verdict_key(q->verdict),
+                i + 1 < r->m ? "," : "");
     }
     fprintf(fp, "    ],\n    \"profit\": {\"mean\": ");
     cli_json_number(fp, r->profit_mean);
@@ -111,23 +120,10 @@ static void print_json(const surety_model *model, const surety_check_report *r)
     fprintf(fp, "\n  }\n}\n");
 }
 
-void cli_print_check(const surety_model *model, const surety_check_report *r)
+/* Why a verdict was reached, after its word. */
+static void print_verdict_reason(FILE *fp, surety_verdict v)
 {
-    FILE *fp = stdout;
-    double pct = 100.0 * r->confidence;
-    fprintf(fp, "Plan check for \"%s\" (risk %.4g, target reliability %.2f%%)\n\n",
-            surety_model_name(model), surety_model_risk(model), 100.0 * r->target);
-    fprintf(fp, "  In the model's %zu scenarios: %zu fit, %zu overload (at most %zu may) -> %s\n",
-            r->in_N, r->in_fit, r->in_N - r->in_fit, r->in_k,
-            r->in_ok ? "the sampled constraint holds" : "the sampled constraint FAILS");
-    fprintf(fp, "  In %zu fresh scenarios:       %zu fit\n\n", r->M, r->fit);
-    fprintf(fp, "  reliability      %8.4f%%\n", 100.0 * r->reliability);
-    fprintf(fp, "  %4.4g%% interval   %8.4f%% .. %.4f%%  (Clopper-Pearson, two-sided)\n",
-            pct, 100.0 * r->lo, 100.0 * r->hi);
-    fprintf(fp, "  at least         %8.4f%%  with %.4g%% confidence (one-sided)\n",
-            100.0 * r->lower, pct);
-    fprintf(fp, "  target %6.2f%%:  %s", 100.0 * r->target, verdict_text(r->verdict));
-    switch (r->verdict) {
+    switch (v) {
     case SURETY_MET:
         fprintf(fp, " (the lower bound reaches the target)\n");
         break;
@@ -138,6 +134,80 @@ void cli_print_check(const surety_model *model, const surety_check_report *r)
     case SURETY_NOT_MET:
         fprintf(fp, " (the estimate falls short of the target)\n");
         break;
+    }
+}
+
+/* The joint figures: every capacity holding together. */
+static void print_joint(FILE *fp, const surety_check_report *r)
+{
+    double pct = 100.0 * r->confidence;
+    fprintf(fp, "  reliability      %8.4f%%\n", 100.0 * r->reliability);
+    fprintf(fp, "  %4.4g%% interval   %8.4f%% .. %.4f%%  (Clopper-Pearson, two-sided)\n",
+            pct, 100.0 * r->lo, 100.0 * r->hi);
+    fprintf(fp, "  at least         %8.4f%%  with %.4g%% confidence (one-sided)\n",
+            100.0 * r->lower, pct);
+}
+
+/* A separate model: one chance constraint per resource, each judged on its
+ * own lower bound; the bounds are at the Bonferroni confidence so that all
+ * of them hold together at the requested one. */
+static void print_separate(FILE *fp, const surety_model *model, const surety_check_report *r)
+{
+    double each = r->m ? r->resource[0].reliability_confidence : r->confidence;
+    fprintf(fp, "  Each resource on its own (the model's constraint): lower bounds at\n"
+                "  %.4g%% confidence each, so that all %zu hold together with %.4g%%\n"
+                "  confidence (Bonferroni).\n\n",
+            100.0 * each, r->m, 100.0 * r->confidence);
+    fprintf(fp, "  %-16s %10s %10s  %s\n", "resource", "holds in", "at least", "verdict");
+    for (size_t i = 0; i < r->m; i++) {
+        const surety_resource_check *q = &r->resource[i];
+        fprintf(fp, "  %-16s %9.4f%% %9.4f%%  %s\n", surety_model_resource_id(model, i),
+                100.0 * q->reliability, 100.0 * q->reliability_lower, verdict_text(q->verdict));
+    }
+    fprintf(fp, "  target %6.2f%% in every resource: %s", 100.0 * r->target,
+            verdict_text(r->verdict));
+    switch (r->verdict) {
+    case SURETY_MET:
+        fprintf(fp, " (every lower bound reaches the target)\n");
+        break;
+    case SURETY_UNCERTAIN:
+        fprintf(fp, " (every estimate reaches the target, not every lower\n"
+                    "                   bound: check with more samples before relying on it)\n");
+        break;
+    case SURETY_NOT_MET:
+        fprintf(fp, " (an estimate falls short of the target)\n");
+        break;
+    }
+    fprintf(fp, "\n  Every capacity together (for information; not the model's constraint):\n");
+    print_joint(fp, r);
+}
+
+void cli_print_check(const surety_model *model, const surety_check_report *r)
+{
+    FILE *fp = stdout;
+    int separate = surety_model_constraint(model) == SURETY_SEPARATE;
+    fprintf(fp, "Plan check for \"%s\" (risk %.4g, target reliability %.2f%%%s)\n\n",
+            surety_model_name(model), surety_model_risk(model), 100.0 * r->target,
+            separate ? " for each resource" : "");
+    if (separate)
+        fprintf(fp, "  In the model's %zu scenarios: %zu fit every capacity; %s %zu -> %s\n",
+                r->in_N, r->in_fit,
+                r->in_ok ? "no resource overloads in more than"
+                         : "some resource overloads in more than",
+                r->in_k,
+                r->in_ok ? "the sampled constraints hold" : "the sampled constraints FAIL");
+    else
+        fprintf(fp, "  In the model's %zu scenarios: %zu fit, %zu overload (at most %zu may) -> %s\n",
+                r->in_N, r->in_fit, r->in_N - r->in_fit, r->in_k,
+                r->in_ok ? "the sampled constraint holds" : "the sampled constraint FAILS");
+    fprintf(fp, "  In %zu fresh scenarios:       %zu fit%s\n\n", r->M, r->fit,
+            separate ? " every capacity" : "");
+    if (separate) {
+        print_separate(fp, model, r);
+    } else {
+        print_joint(fp, r);
+        fprintf(fp, "  target %6.2f%%:  %s", 100.0 * r->target, verdict_text(r->verdict));
+        print_verdict_reason(fp, r->verdict);
     }
     fprintf(fp, "\n  %-16s %10s %10s %11s %11s %10s\n", "resource", "capacity",
             "load mean", "load P95", "P(over)", "over P95");
