@@ -285,6 +285,38 @@ Test(solve, brute_force_tiny)
     cr_assert(empty > 0, "no instance where the empty plan is optimal");
 }
 
+Test(solve, brute_force_many_scenarios)
+{
+    /* N in the hundreds: the search reuses parent bounds for scenarios far
+     * from the quantile and keeps hundreds of dead-scenario flags on its
+     * trail; the optimum must still equal exhaustive enumeration */
+    for (uint64_t t = 0; t < 40; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(3000 + t), 7, 3, 300);
+        p.N += 100;
+        p.n = 5 + t % 3;
+        p.eps = t % 2 ? 0.05 : 0.1;
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        surety_result *res = solve_ok(md, sc, NULL);
+        check_result(md, sc, res);
+        cr_assert_eq(surety_result_status(res),
+                     feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE);
+        if (feas)
+            cr_assert(fabs(surety_result_objective(res) - bf) <=
+                          1e-9 * (1 + fabs(bf)),
+                      "instance %lu (n=%zu m=%zu N=%zu %s): solver %.12g, "
+                      "enumeration %.12g", (unsigned long)t, p.n, p.m, p.N,
+                      p.separate ? "separate" : "joint",
+                      surety_result_objective(res), bf);
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+}
+
 /* ---- random small instances against CBC ---- */
 
 #include <time.h>

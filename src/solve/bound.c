@@ -223,7 +223,7 @@ static double lam_free(const surety_solver *s)
  * A scenario in which either bound, evaluated as if the completion held
  * there, cannot beat the cutoff must be among the failed ones (rule 4): it
  * is fixed dead for the subtree. */
-double surety_bound_node(surety_solver *s, double cutoff)
+double surety_bound_node(surety_solver *s, double cutoff, size_t row)
 {
     size_t N = s->N, G = s->G, k = s->k, m = s->m;
     double base = s->fixed_profit + s->req_profit;
@@ -247,24 +247,61 @@ double surety_bound_node(surety_solver *s, double cutoff)
     }
     double qa = INFINITY;
     if (!s->separate) {
-        double *kn = s->kn;
+        /* Values are kept per depth as absolute bounds base + kn_l. A
+         * child's bound in scenario l is at most its parent's (its
+         * completions are a subset), so for scenarios far above the
+         * parent's quantile the parent's value, plus rounding slack, stands
+         * in for a fresh knapsack; only the scenarios that can decide the
+         * quantile are recomputed, and every so often all of them. */
+        double *cur = s->ubst + row * N;
+        const double *prev = row > 0 ? s->ubst + (row - 1) * N : NULL;
+        double slack = 1e-12 * (s->pscale + 1), cap = base + unc;
+        size_t b = k - s->dead_w[0];
+        double tau = INFINITY;
+        size_t ties = 0; /* scenarios at exactly tau still recomputed */
+        if (prev && (s->evals++ & 31) != 0) {
+            size_t c = 0, livew = 0;
+            for (size_t l = 0; l < N; l++) {
+                if (s->dead[l] != LIVE)
+                    continue;
+                s->ub[c] = prev[l];
+                s->ubw[c] = s->cnt[l];
+                livew += s->cnt[l];
+                c++;
+            }
+            size_t want = 2 * (b + 1) + 16;
+            if (livew > want) {
+                tau = select_weighted(s->ub, s->ubw, c, want);
+                size_t below = 0;
+                for (size_t l = 0; l < N; l++)
+                    if (s->dead[l] == LIVE && prev[l] < tau)
+                        below++;
+                ties = want > below ? want - below : 0;
+            }
+        }
         size_t c = 0, livew = 0;
         for (size_t l = 0; l < N; l++) {
             if (s->dead[l] != LIVE)
                 continue;
-            double v = knap_joint(s, l);
-            if (v > unc)
-                v = unc;
-            kn[l] = v;
+            double v;
+            if (prev && (prev[l] > tau || (prev[l] == tau && ties == 0))) {
+                v = prev[l] + slack;
+            } else {
+                if (prev && prev[l] == tau)
+                    ties--;
+                v = base + knap_joint(s, l);
+            }
+            if (v > cap)
+                v = cap;
+            cur[l] = v;
             s->ub[c] = v;
             s->ubw[c] = s->cnt[l];
             livew += s->cnt[l];
             c++;
         }
-        size_t b = k - s->dead_w[0];
-        qa = livew > b ? select_weighted(s->ub, s->ubw, c, b) : unc;
-        if (base + qa < bound)
-            bound = base + qa;
+        qa = livew > b ? select_weighted(s->ub, s->ubw, c, b) : cap;
+        if (qa < bound)
+            bound = qa;
     }
     if (bound == -INFINITY || !(bound > cutoff))
         return bound == -INFINITY ? -INFINITY : bound;
@@ -276,8 +313,8 @@ double surety_bound_node(surety_solver *s, double cutoff)
                 continue;
             int fail = 0;
             if (!s->separate) {
-                double v = s->kn[l];
-                fail = v == -INFINITY || base + v <= cutoff;
+                double v = s->ubst[row * N + l];
+                fail = v == -INFINITY || v <= cutoff;
             }
             for (size_t i = 0; i < m && !fail && s->use_lagr; i++) {
                 if (s->separate && i != g)
@@ -414,7 +451,7 @@ int surety_bound_init(surety_solver *s)
     s->root_agg = INFINITY;
     if (!s->separate) {
         s->use_lagr = 0;
-        double agg = surety_bound_node(s, -INFINITY);
+        double agg = surety_bound_node(s, -INFINITY, 0);
         s->use_lagr = bestL < agg;
         s->root_agg = agg;
     }

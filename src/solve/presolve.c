@@ -93,8 +93,9 @@ static int cmp_branch(const void *a, const void *b, void *ctx)
     /* required jobs first: they constrain everything else */
     if (s->required[ja] != s->required[jb])
         return s->required[ja] ? -1 : 1;
-    if (s->p[ja] != s->p[jb])
-        return s->p[ja] > s->p[jb] ? -1 : 1;
+    double ka = s->bkey[ja], kb = s->bkey[jb];
+    if (ka != kb)
+        return ka > kb ? -1 : 1;
     return (ja > jb) - (ja < jb);
 }
 
@@ -330,6 +331,20 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
             s->order[s->nb++] = j;
         s->ncand += s->cand[j];
     }
+    s->bkey = surety_xmalloc(n, sizeof *s->bkey);
+    if (!s->bkey)
+        goto oom;
+    {
+        const char *mode = getenv("SURETY_BRANCH");
+        int md = mode ? atoi(mode) : 0;
+        for (size_t j = 0; j < n; j++) {
+            double mw = 0;
+            for (size_t l = 0; l < s->N; l++)
+                mw += s->w[l * n + j] * s->cnt[l];
+            mw /= (double)s->N0;
+            s->bkey[j] = md == 0 ? s->p[j] : md == 1 ? s->p[j] / (mw + 1e-300) : md == 2 ? mw : -mw;
+        }
+    }
     qsort_r(s->order, s->nb, sizeof *s->order, cmp_branch, s);
 
     /* per scenario, candidates by efficiency p_j / w_lj, sorted once here
@@ -388,6 +403,7 @@ void surety_presolve_free(surety_solver *s)
     surety_xfree(s->required);
     surety_xfree(s->cand);
     surety_xfree(s->order);
+    surety_xfree(s->bkey);
     surety_xfree(s->eff);
     surety_xfree(s->rclass);
 }

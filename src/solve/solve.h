@@ -61,6 +61,7 @@ struct surety_solver {
     unsigned char *required; /* n */
     unsigned char *cand; /* n: optional job worth taking (p > 0, allowed) */
     size_t *order;       /* nb jobs to branch on, in branching order */
+    double *bkey;        /* n branching keys (larger first) */
     size_t nb;
     size_t ncand;        /* candidate jobs */
     uint32_t *eff;       /* N*ncand: per scenario, candidates by p/w desc */
@@ -85,7 +86,9 @@ struct surety_solver {
     double *ub;          /* N values */
     unsigned *ubw;       /* N weights */
     size_t *ubl;         /* N scenario ids */
-    double *kn;          /* G*N knapsack values of the last evaluation */
+    double *kn;          /* G*N + m scratch */
+    double *ubst;        /* (nb+2)*N per-depth scenario bounds (absolute) */
+    unsigned long evals; /* bound evaluations (refresh schedule) */
     /* per-resource bound with Lagrangian prices on "each job once" */
     double *lam;         /* n prices, 0 <= lam_j <= p_j (0 off candidates) */
     double *rp;          /* n reduced profits max(p_j - lam_j, 0) */
@@ -140,8 +143,10 @@ void surety_presolve_free(surety_solver *s);
 /* bound.c: quantile bound of the current node with scenario fixing
  * (METHODS.md s.7 rules 1, 3, 4). Returns the bound, or -INFINITY when the
  * node is pruned by more than k dead scenarios. Pushes fixings onto the
- * trail. `cutoff` is the value a completion must exceed to matter. */
-double surety_bound_node(surety_solver *s, double cutoff);
+ * trail. `cutoff` is the value a completion must exceed to matter; `row`
+ * is the node's depth (decisions made), whose row of ubst it fills from
+ * the row above. */
+double surety_bound_node(surety_solver *s, double cutoff, size_t row);
 
 /* bound.c: chooses the Lagrangian prices at the root by subgradient steps
  * (needs the search arrays); 0, or -1 when out of memory. */

@@ -163,13 +163,25 @@ static void dive(surety_solver *s, size_t d, double node_bound)
     }
     if (!s->required[j])
         ch[nc++].c = JOB_OUT;
-    /* evaluate every child, then visit the best bound first */
+    /* children in the order of the greedy insertion (METHODS.md s.8): the
+     * resource where j overloads the fewest live scenarios, then the least
+     * loaded; rejecting j last. Each child is evaluated once, when
+     * visited; until then its bound is at most this node's. */
     for (size_t t = 0; t < nc; t++) {
-        double b = -INFINITY;
-        if (apply(s, d, j, ch[t].c))
-            b = surety_bound_node(s, cutoff_of(s));
-        undo(s, d);
-        ch[t].b = b;
+        if (ch[t].c < 0) {
+            ch[t].b = -INFINITY;
+            continue;
+        }
+        size_t i = (size_t)ch[t].c, g = group_of(s, i), N = s->N;
+        const double *ld = s->load + i * N, *wj = s->wt + j * N;
+        const unsigned char *dead = s->dead + g * N;
+        double hi = s->cap_hi[i], kill = 0, tot = 0;
+        for (size_t l = 0; l < N; l++) {
+            tot += ld[l];
+            if (dead[l] == LIVE && ld[l] + wj[l] > hi)
+                kill += s->cnt[l];
+        }
+        ch[t].b = -(kill * 1e6 * (double)N + tot / s->cap[i]);
     }
     for (size_t t = 1; t < nc; t++) {
         child x = ch[t];
@@ -182,11 +194,11 @@ static void dive(surety_solver *s, size_t d, double node_bound)
     }
     for (size_t t = 0; t < nc; t++) {
         double cut = cutoff_of(s);
-        if (!(ch[t].b > cut))
+        if (!(node_bound > cut))
             break;
-        s->open_bound[d] = t + 1 < nc ? ch[t + 1].b : -INFINITY;
+        s->open_bound[d] = t + 1 < nc ? node_bound : -INFINITY;
         if (apply(s, d, j, ch[t].c)) {
-            double b = surety_bound_node(s, cut);
+            double b = surety_bound_node(s, cut, d + 1);
             if (b > cut) {
                 try_partial(s);
                 if (b > cutoff_of(s))
@@ -203,7 +215,7 @@ static void dive(surety_solver *s, size_t d, double node_bound)
 double surety_tree_search(surety_solver *s)
 {
     double cut = cutoff_of(s);
-    double b = surety_bound_node(s, cut);
+    double b = surety_bound_node(s, cut, 0);
     s->root_bound = b;
     if (b > cut) {
         try_partial(s);
