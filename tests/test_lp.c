@@ -748,16 +748,16 @@ Test(lp, basis_save_restore)
     }
 }
 
-/* The size the branch and bound meets: many scenario rows over a few
- * hundred [0,1] columns is too slow for this file, so a tall one of
- * 1500 rows by 60 columns, and a wider one, against GLPK. */
+/* The sizes the branch and bound meets: a few thousand scenario rows
+ * over a couple of hundred [0,1] columns, a tall one, and two wider ones
+ * with general bounds, against GLPK. */
 Test(lp, larger_instances)
 {
     need_glpsol();
     rs = 404;
-    size_t shapes[][2] = {{60, 1500}, {150, 300}, {40, 400}};
-    for (int t = 0; t < 3; t++) {
-        prob p = random_prob(shapes[t][0], shapes[t][1], t == 2 ? 0 : 3);
+    size_t shapes[][2] = {{200, 2000}, {60, 1500}, {150, 300}, {40, 400}};
+    for (int t = 0; t < 4; t++) {
+        prob p = random_prob(shapes[t][0], shapes[t][1], t >= 2 ? 0 : 3);
         surety_lp *lp = build(&p);
         surety_lp_status st = surety_lp_solve(lp);
         compare(&p, lp, st, "larger");
