@@ -524,8 +524,19 @@ typedef struct surety_bounds_report {
     long *replication;     /* M replication indexes, same order */
     int all_optimal;       /* every replication proven optimal */
     double theta;          /* theta_N = B(floor(gamma N); N, eps) */
+    /* the per-replication success probability L rests on: theta_N, less
+     * (m-1)(1-theta_N) for a separate model (Bonferroni over its m
+     * constraints), less 0.02 when profits vary (see margin); >= 0 */
+    double theta_eff;
+    /* added to the L-th bound when profits vary with the hours: the
+     * sampled mean profit of the true optimal plan may fall below its
+     * true mean, by more than margin with probability <= 0.02 (normal
+     * approximation, its sd bounded by the summed per-job profit sd over
+     * sqrt(N)); 0 for fixed profits */
+    double margin;
     long L;                /* order statistic used, 0 when none exists */
-    double upper;          /* the L-th largest bound, NaN when L = 0 */
+    double upper;          /* the L-th largest bound plus margin, NaN when
+                              L = 0 */
     double beta_upper;     /* its error probability */
     /* lower side: the most profitable candidate whose reliability is
      * shown >= 1-eps (Bonferroni over candidates), profit measured on

@@ -38,11 +38,43 @@ static int same_plan(const surety_plan *a, const surety_plan *b)
     return a->n == b->n && !memcmp(a->resource, b->resource, a->n * sizeof *a->resource);
 }
 
-/* Solves one sample at `risk`; fills bound/objective and copies the plan. */
+/* Share of the upper side's per-replication success probability given up
+ * so that the sampled mean profit of the true optimal plan is covered too
+ * (see surety_bounds). A fixed choice: smaller makes the margin wider,
+ * larger makes L smaller. */
+#define BOUNDS_ETA 0.02
+
+/* Sum over jobs of the sample standard deviation of the job's profit in
+ * `sc`. By Minkowski's inequality it bounds the standard deviation of any
+ * plan's profit, a sum of some of these columns. */
+static double profit_sd_sum(const surety_scenarios *sc)
+{
+    size_t N = surety_scenarios_count(sc), n = surety_scenarios_jobs(sc);
+    const double *p = surety_scenarios_profit(sc);
+    if (N < 2)
+        return 0;
+    double sum = 0;
+    for (size_t j = 0; j < n; j++) {
+        double mean = 0, ss = 0;
+        for (size_t l = 0; l < N; l++)
+            mean += p[l * n + j];
+        mean /= (double)N;
+        for (size_t l = 0; l < N; l++) {
+            double d = p[l * n + j] - mean;
+            ss += d * d;
+        }
+        sum += sqrt(ss / (double)(N - 1));
+    }
+    return sum;
+}
+
+/* Solves one sample at `risk`; fills bound/objective, copies the plan and,
+ * when sd_sum is given, raises it to the sample's profit_sd_sum. */
 static surety_code solve_one(const surety_model *model, uint64_t stream, size_t N,
                              double risk, const surety_solve_options *sopt,
                              double *bound, double *objective, int *optimal,
-                             surety_plan **plan, double *seconds, surety_error *err)
+                             surety_plan **plan, double *seconds, double *sd_sum,
+                             surety_error *err)
 {
     surety_scenarios *sc = NULL;
     surety_code code;
@@ -52,6 +84,11 @@ static surety_code solve_one(const surety_model *model, uint64_t stream, size_t 
         code = surety_sample(model, stream, 0, N, &sc, err);
     if (code)
         return code;
+    if (sd_sum) {
+        double s = profit_sd_sum(sc);
+        if (s > *sd_sum)
+            *sd_sum = s;
+    }
     surety_model level = *model; /* shallow: only the risk changes */
     level.risk = risk;
     surety_result *res = NULL;
@@ -86,13 +123,23 @@ static surety_code solve_one(const surety_model *model, uint64_t stream, size_t 
  * The interval [lower, upper] then holds with probability >= C.
  *
  * Upper side (Pagnoncelli, Ahmed & Shapiro 2009, METHODS.md s.5): replication
- * r solves stream SURETY_STREAM_REPLICATE + r at risk gamma. Each sample
- * optimum is at least the true optimum with probability >= theta_N =
- * B(floor(gamma N); N, eps), because the true optimal plan then fits the
- * sample; so the L-th largest dual bound, L the largest with
- * B(L-1; M, theta_N) <= beta/2, is an upper bound with confidence
+ * r solves stream SURETY_STREAM_REPLICATE + r at risk gamma. The true
+ * optimal plan x* fits the sample with probability >= theta_N =
+ * B(floor(gamma N); N, eps), and then the sample optimum is at least x*'s
+ * objective in the sample; so the L-th largest dual bound, L the largest
+ * with B(L-1; M, theta) <= beta/2, is an upper bound with confidence
  * 1 - beta/2. The dual bound (not the incumbent) is used so that a search
- * stopped by a limit still gives a valid value. */
+ * stopped by a limit still gives a valid value. Two corrections keep that
+ * claim true here:
+ *  - PAS 2009 has a deterministic objective; ours is the mean profit over
+ *    the sample, which for x* falls below its true mean about half the
+ *    time. With sigma_S the summed per-job profit sd (>= the sd of x*'s
+ *    profit), x*'s sampled mean is below v* - z sigma_S / sqrt(N),
+ *    z = Phi^{-1}(1 - eta), with probability about eta (central limit
+ *    theorem), so bound + z sigma_S / sqrt(N) reaches v* with probability
+ *    >= theta_N - eta (union bound); the margin is added to the L-th bound.
+ *  - A separate model's x* fits the sample only if each of its m
+ *    constraints does: probability >= 1 - m (1 - theta_N) (Bonferroni). */
 surety_code surety_bounds(const surety_model *model, const surety_bounds_options *opt,
                           surety_bounds_report *out, surety_error *err)
 {
@@ -150,12 +197,13 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
     }
     out->all_optimal = 1;
     size_t K = 0;
+    double sd_sum = 0;
     for (size_t r = 0; r < M; r++) {
         int optimal = 0;
         surety_plan *plan = NULL;
         code = solve_one(model, SURETY_STREAM_REPLICATE + r, out->N, out->gamma, &opt->solve,
                          &out->bound[r], &out->objective[r], &optimal, &plan,
-                         &out->solve_seconds, err);
+                         &out->solve_seconds, &sd_sum, err);
         if (code)
             goto done;
         out->replication[r] = (long)r;
@@ -178,7 +226,7 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
         int optimal;
         surety_plan *plan = NULL;
         code = solve_one(model, SURETY_STREAM_SOLVE, out->N, risk, &opt->solve, &b, &o,
-                         &optimal, &plan, &out->solve_seconds, err);
+                         &optimal, &plan, &out->solve_seconds, NULL, err);
         if (code)
             goto done;
         if (plan) {
@@ -201,9 +249,18 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
             out->replication[q - 1] = u;
         }
     out->theta = surety_stats_pas_theta(out->N, out->gamma, out->eps);
-    out->L = (long)surety_stats_pas_rank(M, out->theta, out->beta_upper);
+    double theta = out->theta;
+    size_t m = surety_model_resources(model);
+    if (surety_model_constraint(model) == SURETY_SEPARATE && m > 1)
+        theta = 1 - (double)m * (1 - theta);
+    if (sd_sum > 0) {
+        theta -= BOUNDS_ETA;
+        out->margin = -surety_norm_quantile(BOUNDS_ETA) * sd_sum / sqrt((double)out->N);
+    }
+    out->theta_eff = theta > 0 ? theta : 0;
+    out->L = (long)surety_stats_pas_rank(M, out->theta_eff, out->beta_upper);
     if (out->L > 0)
-        out->upper = out->bound[out->L - 1];
+        out->upper = out->bound[out->L - 1] + out->margin;
 
     /* Lower side. Identical plans are one hypothesis: drop duplicates
      * before counting K for the Bonferroni split. */

@@ -292,6 +292,89 @@ Test(bounds, interval_on_an_enumerable_model)
     cr_expect_leq(lo, up);
 }
 
+/* PAS 2009 assume a deterministic objective; here each replication's
+ * objective is a sampled mean profit. One job of uniform(5, 15) hours
+ * always fits 100 hours, so the true optimum is its mean profit
+ * 100 * 10 = 1000 (arithmetic) and every replication's dual bound is a
+ * sample mean of 100 profits (sd 1000/sqrt(12) = 288.7), below 1000 about
+ * half the time. At gamma = 0.1, theta_N = B(10; 100, 0.05) = 0.98853
+ * (SciPy 1.10.1 binom.cdf), so without the margin L would be 9 of 10: the
+ * second smallest sample mean, below 1000 with probability
+ * 1 - B(1; 10, 0.5) = 0.989. */
+Test(bounds, random_profits_widen_the_upper_bound)
+{
+    static const char json[] =
+        "{\"name\": \"one job\", \"risk\": 0.05, \"scenarios\": 100, \"seed\": 4,\n"
+        " \"resources\": [{\"id\": \"shop\", \"capacity\": 100}],\n"
+        " \"jobs\": [{\"id\": \"a\", \"hours\": {\"dist\": \"uniform\", \"low\": 5, "
+        "\"high\": 15}, \"profit\": {\"rate\": 100}}]}\n";
+    surety_model *model = parse(json);
+    surety_bounds_options opt;
+    surety_bounds_options_init(&opt);
+    opt.gamma = 0.1;
+    opt.samples = 2000;
+    surety_bounds_report rep;
+    surety_error err;
+    cr_assert_eq(surety_bounds(model, &opt, &rep, &err), SURETY_OK, "%s", err.message);
+    cr_expect_float_eq(rep.theta, 0.98853, 5e-6);
+    cr_expect_float_eq(rep.theta_eff, rep.theta - 0.02, 1e-15);
+    /* margin = Phi^{-1}(0.98) = 2.0537489 (SciPy norm.ppf) times the
+     * sample sd over sqrt(100); the sample sd is within 20% of 288.7 */
+    cr_expect_gt(rep.margin, 2.0537489 * 288.7 / 10 * 0.8);
+    cr_expect_lt(rep.margin, 2.0537489 * 288.7 / 10 * 1.2);
+    int below = 0;
+    for (size_t r = 0; r < rep.M; r++)
+        below += rep.bound[r] < 1000;
+    cr_expect_geq(below, 2, "this seed should show the bias: %d of 10 below", below);
+    cr_expect_gt(rep.L, 0);
+    cr_expect_geq(rep.upper, 1000, "upper %g below the true optimum 1000", rep.upper);
+    cr_expect_leq(rep.lower, 1000);
+    surety_bounds_report_free(&rep);
+    surety_model_free(model);
+}
+
+/* A separate model's optimal plan fits a sample only if each of its m
+ * constraints does: theta_eff = 1 - m (1 - theta_N) (Bonferroni), here
+ * with fixed profits (no margin). At gamma = eps the two-resource tiny
+ * model has theta_N = B(34; 200, 0.17) = 0.545639 (SciPy 1.10.1), too
+ * little for any L; at gamma = 0.25 theta_N = B(50; 200, 0.17) = 0.998463
+ * (SciPy 1.10.1) and L exists. */
+Test(bounds, separate_models_use_bonferroni_for_theta)
+{
+    char json[2048];
+    snprintf(json, sizeof json, tiny_json_fmt, 0.17, 5UL);
+    char sep[2200];
+    snprintf(sep, sizeof sep, "{\"constraint\": \"separate\", %s", json + 1);
+    char *shop = strstr(sep, "\"capacity\": 12}");
+    cr_assert_not_null(shop);
+    char two[2300];
+    snprintf(two, sizeof two, "%.*s\"capacity\": 12}, {\"id\": \"yard\", \"capacity\": 9}%s",
+             (int)(shop - sep), sep, shop + strlen("\"capacity\": 12}"));
+    surety_model *model = parse(two);
+    cr_assert_eq(surety_model_resources(model), 2);
+    surety_bounds_options opt;
+    surety_bounds_options_init(&opt);
+    opt.samples = 1000;
+    surety_bounds_report rep;
+    surety_error err;
+    cr_assert_eq(surety_bounds(model, &opt, &rep, &err), SURETY_OK, "%s", err.message);
+    cr_expect_float_eq(rep.theta, 0.545639, 5e-7);
+    cr_expect_eq(rep.margin, 0);
+    /* 1 - 2 (1 - 0.545639) = 0.091278; B(0; 10, 0.091278) = 0.384 > 0.025
+     * (arithmetic), so no order statistic qualifies (one resource: L = 2) */
+    cr_expect_float_eq(rep.theta_eff, 0.091278, 5e-6);
+    cr_expect_eq(rep.L, 0);
+    cr_expect(isnan(rep.upper));
+    surety_bounds_report_free(&rep);
+    opt.gamma = 0.25;
+    cr_assert_eq(surety_bounds(model, &opt, &rep, &err), SURETY_OK, "%s", err.message);
+    cr_expect_float_eq(rep.theta, 0.998463, 5e-7);
+    cr_expect_float_eq(rep.theta_eff, 1 - 2 * (1 - rep.theta), 1e-15);
+    cr_expect_gt(rep.L, 0);
+    surety_bounds_report_free(&rep);
+    surety_model_free(model);
+}
+
 /* Coverage over many independent seeds: the interval must contain the true
  * optimum in at least the stated 95% of runs (minus three binomial standard
  * errors). Slow suite. */

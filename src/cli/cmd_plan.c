@@ -567,9 +567,23 @@ static void bounds_text(const surety_model *model, const surety_bounds_report *r
         fprintf(fp, "  %5zu %12ld %14.2f %14.2f%s\n", q + 1, r->replication[q], r->bound[q],
                 r->objective[q], (long)q + 1 == r->L ? "  <- L" : "");
     fprintf(fp, "\n  theta_N = P{Bin(%zu, %.4g) <= allowance} = %.6f\n", r->N, r->eps, r->theta);
+    if (r->theta_eff != r->theta)
+        fprintf(fp, "  theta used %.6f (%s%s)\n", r->theta_eff,
+                surety_model_constraint(model) == SURETY_SEPARATE
+                    ? "every resource's constraint must hold, Bonferroni"
+                    : "",
+                r->margin > 0 ? (surety_model_constraint(model) == SURETY_SEPARATE
+                                     ? "; less 0.02 for the margin"
+                                     : "less 0.02 for the margin")
+                              : "");
+    if (r->margin > 0)
+        fprintf(fp, "  margin %.2f: profits vary, so a sample's mean profit of the optimal plan\n"
+                    "  may fall short of its true mean (normal approximation)\n",
+                r->margin);
     if (r->L > 0)
-        fprintf(fp, "  Upper: L = %ld -> the optimum is at most %.2f (confidence %.4g%%)%s\n",
-                r->L, r->upper, 100 * (1 - r->beta_upper),
+        fprintf(fp, "  Upper: L = %ld -> the optimum is at most %.2f%s (confidence %.4g%%)%s\n",
+                r->L, r->upper, r->margin > 0 ? " (bound plus margin)" : "",
+                100 * (1 - r->beta_upper),
                 r->all_optimal ? "" : "\n  (some replications stopped early: their bounds were used)");
     else
         fprintf(fp, "  Upper: no L exists for %zu replications at this confidence; use more\n"
@@ -593,8 +607,6 @@ static void bounds_text(const surety_model *model, const surety_bounds_report *r
     if (r->L > 0 && r->plan)
         fprintf(fp, "\n  With confidence >= %.4g%%: %.2f <= optimal mean profit <= %.2f\n",
                 100 * r->confidence, r->lower, r->upper);
-    fprintf(fp, "  (If profits vary with the hours, the sampled mean profit is itself an\n"
-                "  estimate, and the upper side's confidence is approximate.)\n");
     fprintf(fp, "  Time: solver %.2f s, checking %.2f s, total %.2f s.\n\n", r->solve_seconds,
             r->check_seconds, r->seconds);
     cli_print_caution(fp);
@@ -619,6 +631,10 @@ static void bounds_json(const surety_model *model, const surety_bounds_report *r
     }
     fprintf(fp, "],\n  \"theta\": ");
     cli_json_number(fp, r->theta);
+    fprintf(fp, ",\n  \"theta_used\": ");
+    cli_json_number(fp, r->theta_eff);
+    fprintf(fp, ",\n  \"margin\": ");
+    cli_json_number(fp, r->margin);
     fprintf(fp, ",\n  \"L\": %ld,\n  \"upper\": ", r->L);
     cli_json_number(fp, r->upper);
     fprintf(fp, ",\n  \"upper_confidence\": ");
