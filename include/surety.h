@@ -425,7 +425,9 @@ typedef struct surety_advice {
 } surety_advice;
 
 /* ln |X| and d for a model: every job may go to any allowed resource or,
- * unless required, stay out; d counts the allowed job-resource pairs. */
+ * unless required, stay out; d counts the allowed job-resource pairs. For
+ * a separate model the finite-set bound must cover every (plan, resource)
+ * pair, so log_plans returns ln(m |X|) there. */
 double surety_advise_log_plans(const surety_model *model);
 size_t surety_advise_variables(const surety_model *model);
 

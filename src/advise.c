@@ -10,7 +10,9 @@
 
 /* Each job goes to one of its allowed resources or, unless required, stays
  * out: |X| <= prod_j (a_j + [not required]) (Luedtke & Ahmed 2008 use
- * n ln(m+1); counting the allowed pairs is the same bound, tighter). */
+ * n ln(m+1); counting the allowed pairs is the same bound, tighter). Their
+ * guarantee is a union bound over X; with separate constraints a plan
+ * makes m statements, one per resource, so the union runs over m |X|. */
 double surety_advise_log_plans(const surety_model *model)
 {
     if (!model)
@@ -23,6 +25,10 @@ double surety_advise_log_plans(const surety_model *model)
         if (a > 1)
             lnX += log((double)a);
     }
+    /* Separate constraints: the union bound of Luedtke & Ahmed runs over
+     * the m per-resource statements of every plan. */
+    if (model->constraint == SURETY_SEPARATE && model->m > 1)
+        lnX += log((double)model->m);
     return lnX;
 }
 

@@ -156,6 +156,16 @@ Test(advise, plan_count_of_a_model)
     cr_expect_float_eq(surety_advise_log_plans(m), log(16.0), 1e-12);
     cr_expect_eq(surety_advise_variables(m), 3 + 1 + 2);
     surety_model_free(m);
+
+    /* Separate constraints: Luedtke & Ahmed's union bound covers each of
+     * the 3 per-resource statements of the 16 plans: ln 48 */
+    char sep[sizeof json + 32];
+    snprintf(sep, sizeof sep, "{\"constraint\": \"separate\", %s", json + 1);
+    cr_assert_eq(surety_model_parse(sep, "count.json", NULL, &m, &err), SURETY_OK, "%s",
+                 err.message);
+    cr_expect_float_eq(surety_advise_log_plans(m), log(48.0), 1e-12);
+    cr_expect_eq(surety_advise_variables(m), 3 + 1 + 2);
+    surety_model_free(m);
 }
 
 Test(advise, bad_input)

@@ -223,9 +223,13 @@ int cmd_advise(int argc, char **argv)
         eps = surety_model_risk(model);
         lnX = surety_advise_log_plans(model);
         d = surety_advise_variables(model);
-        snprintf(what, sizeof what, "model \"%s\", %zu jobs x %zu resources",
+        snprintf(what, sizeof what, "model \"%s\", %zu jobs x %zu resources%s",
                  surety_model_name(model), surety_model_jobs(model),
-                 surety_model_resources(model));
+                 surety_model_resources(model),
+                 surety_model_constraint(model) == SURETY_SEPARATE &&
+                         surety_model_resources(model) > 1
+                     ? ", separate constraints (the plan count is multiplied by m)"
+                     : "");
         surety_model_free(model);
     } else {
         if (!n || !m)
