@@ -121,6 +121,11 @@ enum {
     SURETY_STREAM_CHECK = 1,     /* fresh scenarios for checking */
     SURETY_STREAM_REPLICATE = 2, /* replication r uses stream 2 + r */
 };
+/* Fresh scenarios that assure, bounds and frontier screen and certify
+ * candidate plans on, kept apart from SURETY_STREAM_CHECK: a plan chosen
+ * on them can then be checked on CHECK scenarios that played no part in
+ * choosing it. The largest stream id, beyond any replication's. */
+#define SURETY_STREAM_SCREEN UINT64_MAX
 
 /* Draws scenarios first .. first+N-1 of `stream` from the model's
  * distributions and copula. Refuses before allocating when the arrays would
@@ -491,8 +496,9 @@ typedef struct surety_assure_report {
     long chosen;           /* step whose plan is returned, or -1 */
     surety_plan *plan;     /* that plan (owned), or NULL */
     surety_assure_end end;
-    /* the returned plan on scenarios never used for screening: CHECK
-     * stream, scenarios samples .. samples+certify_samples-1 */
+    /* the returned plan on scenarios never used for screening: SCREEN
+     * stream, scenarios samples .. samples+certify_samples-1 (screening
+     * uses 0 .. samples-1) */
     int certified;         /* cert.lower >= target */
     surety_check_report cert; /* valid when plan != NULL */
     double solve_seconds, sample_seconds, check_seconds, seconds;

@@ -222,7 +222,7 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
         surety_result_free(res);
 
         if (plans[s]) {
-            /* Screening: every candidate on the same fresh scenarios, CHECK
+            /* Screening: every candidate on the same fresh scenarios, SCREEN
              * stream 0..M-1 (common random numbers). */
             surety_check_report rep;
             code = surety_check_fresh(&level, plans[s], opt->samples, 0,
@@ -287,7 +287,7 @@ surety_code surety_assure(const surety_model *model, const surety_assure_options
     if (out->chosen >= 0) {
         out->plan = plans[out->chosen];
         plans[out->chosen] = NULL;
-        /* The certificate: the chosen plan on CHECK scenarios samples ..
+        /* The certificate: the chosen plan on SCREEN scenarios samples ..
          * samples+Mc-1, none of which took part in screening, so the
          * selection among candidates does not bias it (METHODS.md s.4). */
         level.risk = 1 - R;

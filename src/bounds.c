@@ -300,7 +300,7 @@ surety_code surety_bounds(const surety_model *model, const surety_bounds_options
     }
     if (best >= 0) {
         /* the chosen plan's profit on scenarios no candidate was screened
-         * on: CHECK stream samples .. 2*samples-1, so the choice of the
+         * on: SCREEN stream samples .. 2*samples-1, so the choice of the
          * best screened mean does not inflate it */
         surety_check_report rep;
         code = surety_check_fresh(&level, cand[best], opt->samples,

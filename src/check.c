@@ -520,6 +520,7 @@ surety_code surety_check_fresh(const surety_model *model,
     surety_check_options opt;
     surety_check_options_init(&opt);
     opt.samples = samples;
+    opt.stream = SURETY_STREAM_SCREEN;
     opt.first = first;
     opt.confidence = confidence;
     opt.in_sample = 0;

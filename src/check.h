@@ -56,10 +56,11 @@ size_t surety_check_count_resources(const surety_plan_eval *ev,
                                     const double *hours, size_t count,
                                     size_t *per_resource);
 
-/* surety_check on fresh scenarios first .. first+samples-1 of the CHECK
- * stream at `confidence`, without the in-sample part: the screening and
- * certificates of assure, bounds and frontier. On failure *rep holds
- * nothing to free. */
+/* surety_check on fresh scenarios first .. first+samples-1 of
+ * SURETY_STREAM_SCREEN at `confidence`, without the in-sample part: the
+ * screening and certificates of assure, bounds and frontier, kept off the
+ * CHECK stream that `surety check` uses. On failure *rep holds nothing to
+ * free. */
 surety_code surety_check_fresh(const surety_model *model,
                                const surety_plan *plan, size_t samples,
                                size_t first, double confidence,

@@ -148,8 +148,10 @@ surety_code surety_frontier(const surety_model *model, const double *risks,
             continue;
 
         /* Common random numbers: every level is checked on the same fresh
-         * scenarios, so differences between levels are not sampling noise
-         * of the check. */
+         * scenarios (SCREEN stream, so that a level picked from the
+         * frontier can be checked afresh on the CHECK stream), and
+         * differences between levels are not sampling noise of the
+         * check. */
         surety_check_report rep;
         code = surety_check_fresh(&level, pt->plan, opt->samples, 0,
                                   opt->confidence, &rep, err);

@@ -65,8 +65,14 @@ Test(assure, grows_until_certified_and_an_independent_check_agrees)
     cr_assert(rep.plan);
     cr_expect(rep.certified);
     cr_expect_geq(rep.cert.lower, 0.95);
-    /* certificate scenarios are disjoint from screening */
+    /* certificate scenarios are disjoint from screening: SCREEN stream
+     * samples .. 2 samples-1 (recounted here); screening used 0..samples-1 */
     cr_expect_eq(rep.cert.M, opt.samples);
+    surety_scenarios *cert = NULL;
+    cr_assert_eq(surety_sample(model, SURETY_STREAM_SCREEN, opt.samples, opt.samples, &cert, &err),
+                 SURETY_OK);
+    cr_expect_eq(surety_plan_count_fit(model, rep.plan, cert, NULL), rep.cert.fit);
+    surety_scenarios_free(cert);
 
     /* Independent confirmation: another seed (every stream changes) and
      * 10^6 fresh scenarios. The claim "reliability >= 95%" should hold
@@ -146,6 +152,21 @@ Test(frontier, profits_fall_with_risk_and_plans_fit_their_sample)
         cr_expect_leq(pt->lo, pt->reliability);
         cr_expect_leq(pt->reliability, pt->hi);
     }
+    /* The levels were screened on SCREEN scenarios 0..4999, recounted
+     * here: a plan picked from the frontier and then checked by `surety
+     * check` (CHECK stream) is judged on scenarios it was not chosen on. */
+    surety_scenarios *screen = NULL;
+    cr_assert_eq(surety_sample(model, SURETY_STREAM_SCREEN, 0, 5000, &screen, &err), SURETY_OK);
+    for (size_t p = 0; p < 4; p++) {
+        const surety_frontier_point *pt = &rep.point[p];
+        cr_expect_eq(surety_plan_count_fit(model, pt->plan, screen, NULL), pt->fit,
+                     "risk %g: not the SCREEN scenarios", pt->risk);
+        double profit = surety_plan_profit(model, pt->plan, screen);
+        cr_expect(fabs(profit - pt->profit_mean) <= 1e-9 * fabs(profit), "risk %g: %.17g vs %.17g",
+                  pt->risk, profit, pt->profit_mean);
+    }
+    surety_scenarios_free(screen);
+    cr_expect_neq(SURETY_STREAM_SCREEN, SURETY_STREAM_CHECK);
     /* optimal profit is non-increasing as the risk decreases */
     for (size_t a = 0; a < 4; a++)
         for (size_t b = 0; b < 4; b++)
