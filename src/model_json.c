@@ -281,28 +281,38 @@ static long nearest_name(const char *word, const char *const *names,
     return best;
 }
 
-long surety_model_nearest_job(const surety_model *model, const char *id)
+typedef const char *(*id_of_fn)(const surety_model *model, size_t t);
+
+/* The ids id_of(model, 0 .. count-1) as one array (caller frees), or NULL
+ * when memory is short. */
+static const char **gather_ids(const surety_model *model, size_t count,
+                               id_of_fn id_of)
 {
-    const char **names = surety_xmalloc(model->n, sizeof *names);
+    const char **ids = surety_xmalloc(count ? count : 1, sizeof *ids);
+    for (size_t t = 0; ids && t < count; t++)
+        ids[t] = id_of(model, t);
+    return ids;
+}
+
+static long nearest_id(const surety_model *model, const char *id,
+                       size_t count, id_of_fn id_of)
+{
+    const char **names = gather_ids(model, count, id_of);
     if (!names)
         return -1;
-    for (size_t j = 0; j < model->n; j++)
-        names[j] = model->jobs[j].id;
-    long r = nearest_name(id, names, model->n);
+    long r = nearest_name(id, names, count);
     surety_xfree(names);
     return r;
 }
 
+long surety_model_nearest_job(const surety_model *model, const char *id)
+{
+    return nearest_id(model, id, model->n, surety_model_job_id);
+}
+
 long surety_model_nearest_resource(const surety_model *model, const char *id)
 {
-    const char **names = surety_xmalloc(model->m, sizeof *names);
-    if (!names)
-        return -1;
-    for (size_t i = 0; i < model->m; i++)
-        names[i] = model->resources[i].id;
-    long r = nearest_name(id, names, model->m);
-    surety_xfree(names);
-    return r;
+    return nearest_id(model, id, model->m, surety_model_resource_id);
 }
 
 /* ------------------------------------------------------------------ */
@@ -970,11 +980,9 @@ static int read_resources(reader *r, json_t *root, surety_model *model)
             return fail(r, AT_VALUE, "out of memory");
         pop(r);
     }
-    const char **ids = surety_xmalloc(m, sizeof *ids);
+    const char **ids = gather_ids(model, m, surety_model_resource_id);
     if (!ids)
         return fail(r, AT_VALUE, "out of memory");
-    for (size_t i = 0; i < m; i++)
-        ids[i] = model->resources[i].id;
     int rc = unique_ids(r, ids, m, "resources", "resource");
     surety_xfree(ids);
     if (rc < 0)
@@ -1092,11 +1100,9 @@ static int read_jobs(reader *r, json_t *root, surety_model *model)
             return -1;
         pop(r);
     }
-    const char **ids = surety_xmalloc(n, sizeof *ids);
+    const char **ids = gather_ids(model, n, surety_model_job_id);
     if (!ids)
         return fail(r, AT_VALUE, "out of memory");
-    for (size_t j = 0; j < n; j++)
-        ids[j] = model->jobs[j].id;
     int rc = unique_ids(r, ids, n, "jobs", "job");
     surety_xfree(ids);
     if (rc < 0)
