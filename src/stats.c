@@ -364,30 +364,26 @@ static int ibeta_args_ok(double x, double a, double b)
            && x >= 0.0 && x <= 1.0;
 }
 
-double surety_stats_ibeta(double x, double a, double b)
+/* I_x(a,b) when upper is 0, its complement when upper is 1. */
+static double ibeta_side(double x, double a, double b, int upper)
 {
     if (!ibeta_args_ok(x, a, b))
         return NAN;
-    if (x == 0.0)
-        return 0.0;
-    if (x == 1.0)
-        return 1.0;
+    if (x == 0.0 || x == 1.0)
+        return (x == 1.0) != upper ? 1.0 : 0.0;
     double lI, lIc;
     ibeta_log(x, a, b, &lI, &lIc);
-    return exp(lI);
+    return exp(upper ? lIc : lI);
+}
+
+double surety_stats_ibeta(double x, double a, double b)
+{
+    return ibeta_side(x, a, b, 0);
 }
 
 double surety_stats_ibetac(double x, double a, double b)
 {
-    if (!ibeta_args_ok(x, a, b))
-        return NAN;
-    if (x == 0.0)
-        return 1.0;
-    if (x == 1.0)
-        return 0.0;
-    double lI, lIc;
-    ibeta_log(x, a, b, &lI, &lIc);
-    return exp(lIc);
+    return ibeta_side(x, a, b, 1);
 }
 
 static uint64_t double_bits(double x)
