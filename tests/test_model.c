@@ -411,7 +411,7 @@ Test(model, api_misuse)
 Test(model, nearest_names)
 {
     surety_model *m;
-    cr_assert_eq(surety_model_read(SRC "/instances/demo.json", &m, NULL),
+    cr_assert_eq(surety_model_read(SRC "/instances/workshops-30.json", &m, NULL),
                  SURETY_OK);
     cr_expect_eq(surety_model_nearest_job(m, "O7"), 6);   /* O07 */
     cr_expect_eq(surety_model_nearest_job(m, "O300"), 29); /* O30 */
@@ -425,11 +425,11 @@ Test(model, nearest_names)
 /* The shipped instances                                               */
 /* ------------------------------------------------------------------ */
 
-Test(instances, demo)
+Test(instances, workshops_30)
 {
     surety_model *m;
     surety_error err;
-    cr_assert_eq(surety_model_read(SRC "/instances/demo.json", &m, &err),
+    cr_assert_eq(surety_model_read(SRC "/instances/workshops-30.json", &m, &err),
                  SURETY_OK, "%s:%d: %s", err.file, err.line, err.message);
     cr_expect_eq(m->n, 30);
     cr_expect_eq(m->m, 3);
@@ -704,11 +704,11 @@ Test(plan, round_trip)
  * parameter translation (lognormal mu, sigma; normal truncated at 0;
  * truncation windows) end to end. The bound is 4 standard errors of the
  * sample mean. */
-Test(instances, demo_expected_hours)
+Test(instances, workshops_30_expected_hours)
 {
     surety_model *m;
     surety_error err;
-    cr_assert_eq(surety_model_read(SRC "/instances/demo.json", &m, &err),
+    cr_assert_eq(surety_model_read(SRC "/instances/workshops-30.json", &m, &err),
                  SURETY_OK, "%s", err.message);
     const size_t M = 20000;
     surety_scenarios *sc;
@@ -781,5 +781,29 @@ Test(model, correlation_repair)
                  SURETY_OK, "%s", err.message);
     cr_expect_eq(m->corr_repaired, 1);
     cr_expect_not_null(m->chol);
+    surety_model_free(m);
+}
+
+/* The README's demo: the first 18 orders of workshops-30.json with the
+ * capacities scaled to 18/30 of theirs (72, 60, 48 hours), so that the
+ * solver proves it optimal in seconds. */
+Test(instances, demo)
+{
+    surety_model *m;
+    surety_error err;
+    cr_assert_eq(surety_model_read(SRC "/instances/demo.json", &m, &err),
+                 SURETY_OK, "%s:%d: %s", err.file, err.line, err.message);
+    cr_expect_eq(m->n, 18);
+    cr_expect_eq(m->m, 3);
+    cr_expect_eq(m->N, 1000);
+    cr_expect_eq(surety_allowance(m->risk, m->N), 50);
+    cr_expect_eq(m->resources[0].capacity, 72);
+    cr_expect_eq(m->resources[1].capacity, 60);
+    cr_expect_eq(m->resources[2].capacity, 48);
+    size_t required = 0;
+    for (size_t j = 0; j < m->n; j++)
+        required += (size_t)m->jobs[j].required;
+    cr_expect_eq(required, 2);
+    cr_expect_not_null(m->chol, "the demo's orders are correlated");
     surety_model_free(m);
 }
