@@ -347,8 +347,10 @@ static void assure_text(const surety_model *model, const surety_assure_report *r
         break;
     case SURETY_ASSURE_SCENARIO_LIMIT:
         fprintf(fp, "  Target %.4g%%: NOT reached within the scenario and step limits. The plan\n"
-                    "  returned is the one with the best lower bound; it is not certified at\n"
-                    "  the target.\n", 100 * r->target);
+                    "  returned is the one with the best lower bound; %s\n", 100 * r->target,
+                r->certified ? "its certificate alone reaches the\n"
+                               "  target (screening did not)."
+                             : "it is not certified at\n  the target.");
         break;
     case SURETY_ASSURE_TIME_LIMIT:
         fprintf(fp, "  Target %.4g%%: NOT reached before the time limit. %s\n", 100 * r->target,
