@@ -20,7 +20,8 @@
 /* ------------------------------------------------------------------ */
 
 /* Standard normal CDF, Phi(x) = 0.5 erfc(-x/sqrt 2). Accurate in both
- * tails (no cancellation for x << 0). */
+ * tails (no cancellation for x << 0); Phi(-inf) = 0, Phi(inf) = 1, NaN
+ * for NaN. */
 double surety_norm_cdf(double x);
 
 /* Standard normal quantile Phi^{-1}(p) for p in (0,1), by Wichura's
