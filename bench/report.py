@@ -17,7 +17,9 @@ def num(v, digits=10):
 
 
 def pct(g):
-    return "-" if g is None else "%.3g%%" % (100.0 * g)
+    if g is None:
+        return "-"
+    return ">1000%" if g > 10 else "%.3g%%" % (100.0 * g)
 
 
 def cpu_model():
@@ -95,14 +97,18 @@ def markdown(rows, meta):
         out.append("| " + " | ".join(line) + " |")
     out.append("")
     out.append("| solver | runs | proven optimal | median wall s | median CPU s "
-               "| median wall ratio to surety | median CPU ratio | median peak MB |")
+               "| median wall ratio to surety* | median CPU ratio* | median peak MB |")
     out.append("|---|---|---|---|---|---|---|---|")
     for s in solvers:
         rs = [r for r in rows if r["solver"] == s]
+        # ratios only where surety proved its optimum: where both stopped at the limit the
+        # ratio is about 1 by construction and says nothing
         ratios, cratios = [], []
         for r in rs:
             sur = by_inst[r["instance"]].get("surety")
-            if sur and sur["wall_s"] > 0:
+            if not sur or sur["status"] != "optimal":
+                continue
+            if sur["wall_s"] > 0:
                 ratios.append(r["wall_s"] / sur["wall_s"])
             # CPU ratios with a 10 ms floor: GNU time counts in 10 ms ticks
             if sur and sur.get("cpu_s") is not None and r.get("cpu_s") is not None:
@@ -116,6 +122,9 @@ def markdown(rows, meta):
             "%.3g" % statistics.median(ratios) if ratios and s != "surety" else "-",
             "%.3g" % statistics.median(cratios) if cratios and s != "surety" else "-",
             "%.3g" % statistics.median(mems) if mems else "-"))
+    out.append("")
+    out.append("\\* over the instances surety solved to optimality; a ratio involving a peer "
+               "stopped by the limit is a lower bound.")
     return "\n".join(out) + "\n"
 
 
@@ -212,3 +221,46 @@ def svg(rows, time_limit, title="Solve time against scenario count N"):
     o.append('<text x="%d" y="%d">stopped by limit</text>' % (W - R + 26, ly + 4))
     o.append("</svg>")
     return "\n".join(o) + "\n"
+
+
+def read_csv(path):
+    """Rows of a results.csv, with numbers as numbers (for re-rendering)."""
+    ints = ("n", "m", "N", "seed", "nodes", "fit", "required_fit", "order")
+    rows = []
+    with open(path, newline="") as fp:
+        for r in csv.DictReader(fp):
+            for k, v in r.items():
+                if v == "":
+                    r[k] = None
+                elif k in ints:
+                    r[k] = int(v)
+                elif k not in ("instance", "solver", "status"):
+                    r[k] = float(v)
+            rows.append(r)
+    return rows
+
+
+def main(argv):
+    import argparse
+    ap = argparse.ArgumentParser(description="Re-renders results.md and time.svg from a "
+                                 "results.csv written by run.py.")
+    ap.add_argument("csv")
+    ap.add_argument("--time-limit", type=float, required=True)
+    ap.add_argument("--command", default="(see the CSV's run)")
+    ap.add_argument("--date", default="")
+    ap.add_argument("--out", required=True)
+    a = ap.parse_args(argv)
+    rows = read_csv(a.csv)
+    meta = {"date": a.date, "nproc": os.cpu_count(), "cpu": cpu_model(),
+            "time_limit": a.time_limit, "command": a.command}
+    os.makedirs(a.out, exist_ok=True)
+    with open(os.path.join(a.out, "results.md"), "w") as fp:
+        fp.write(markdown(rows, meta))
+    with open(os.path.join(a.out, "time.svg"), "w") as fp:
+        fp.write(svg(rows, a.time_limit))
+    return 0
+
+
+if __name__ == "__main__":
+    import sys
+    sys.exit(main(sys.argv[1:]))
