@@ -70,7 +70,7 @@ static double knap_joint(const surety_solver *s, size_t l)
     size_t n = s->n, m = s->m, N = s->N;
     const double *row = s->w + l * n;
     double res[64];
-    double *r = m <= 64 ? res : s->kn + s->G * N; /* spare scratch */
+    double *r = m <= 64 ? res : s->kn;
     double agg = 0, rmax = -INFINITY;
     for (size_t i = 0; i < m; i++) {
         r[i] = s->cap_hi[i] - s->load[i * N + l];

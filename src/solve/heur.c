@@ -270,6 +270,89 @@ static void polish(surety_solver *s, long *plan, const long *fixed)
     }
 }
 
+static int cmp_key_ext(const void *a, const void *b, void *ctx);
+
+static uint64_t next_rand(uint64_t *x)
+{
+    /* SplitMix64: a fixed, seeded sequence keeps runs reproducible */
+    uint64_t z = (*x += 0x9e3779b97f4a7c15ULL);
+    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
+    z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
+    return z ^ (z >> 31);
+}
+
+/* Iterated local search: drop a few placed jobs at random, re-insert the
+ * outside jobs greedily in a randomly perturbed key order, keep the result
+ * when it is more profitable (METHODS.md s.8 rules 1-2 as the repair). The
+ * iteration count, not the clock, bounds the work, so runs repeat. */
+static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters)
+{
+    size_t n = s->n, nc = s->ncand;
+    long *cur = surety_xmalloc(n, sizeof *cur);
+    size_t *ord = surety_xmalloc(nc ? nc : 1, sizeof *ord);
+    double *key = surety_xmalloc(n, sizeof *key);
+    if (!cur || !ord || !key) {
+        surety_xfree(cur);
+        surety_xfree(ord);
+        surety_xfree(key);
+        return;
+    }
+    uint64_t seed = 0x5eed ^ (uint64_t)n * 1000003u ^ (uint64_t)s->N;
+    double best = profit_of(s, plan);
+    for (size_t it = 0; it < iters; it++) {
+        memcpy(cur, plan, n * sizeof *cur);
+        reset(s, cur);
+        size_t placed = 0;
+        for (size_t t = 0; t < nc; t++) {
+            size_t j = s->hordp[t];
+            placed += cur[j] >= 0 && !(fixed && fixed[j] != JOB_FREE);
+        }
+        if (placed == 0)
+            break;
+        size_t drop = 1 + next_rand(&seed) % 3;
+        for (size_t d = 0; d < drop && placed > 0; d++) {
+            size_t pick = next_rand(&seed) % placed, c = 0;
+            for (size_t t = 0; t < nc; t++) {
+                size_t j = s->hordp[t];
+                if (cur[j] < 0 || (fixed && fixed[j] != JOB_FREE))
+                    continue;
+                if (c++ == pick) {
+                    change(s, j, (size_t)cur[j], -1);
+                    cur[j] = JOB_OUT;
+                    placed--;
+                    break;
+                }
+            }
+        }
+        for (size_t t = 0; t < nc; t++) {
+            size_t j = s->hord[t];
+            double u = (double)(next_rand(&seed) >> 11) * 0x1.0p-53;
+            key[j] = s->hkey[j] * (0.7 + 0.6 * u);
+            ord[t] = j;
+        }
+        qsort_r(ord, nc, sizeof *ord, cmp_key_ext, key);
+        for (size_t t = 0; t < nc; t++) {
+            size_t j = ord[t];
+            if (cur[j] != JOB_OUT || (fixed && fixed[j] != JOB_FREE))
+                continue;
+            long i = best_resource(s, j, 0);
+            if (i >= 0) {
+                change(s, j, (size_t)i, 1);
+                cur[j] = i;
+            }
+        }
+        double v = profit_of(s, cur);
+        if (v > best + 1e-12 * (s->pscale + 1) && within(s)) {
+            best = v;
+            memcpy(plan, cur, n * sizeof *cur);
+        }
+    }
+    reset(s, plan);
+    surety_xfree(cur);
+    surety_xfree(ord);
+    surety_xfree(key);
+}
+
 typedef struct key_ctx {
     const double *key;
 } key_ctx;
@@ -281,6 +364,11 @@ static int cmp_key(const void *a, const void *b, void *ctx)
     if (key[ja] != key[jb])
         return key[ja] > key[jb] ? -1 : 1;
     return (ja > jb) - (ja < jb);
+}
+
+static int cmp_key_ext(const void *a, const void *b, void *ctx)
+{
+    return cmp_key(a, b, ctx);
 }
 
 typedef struct wq {
@@ -362,8 +450,14 @@ int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
             start[j] = plan[j] >= 0 ? plan[j] : JOB_OUT;
         reset(s, start);
         ok = greedy(s, plan, pass == 0 ? s->hord : s->hordp);
-        if (ok && polish_it)
+        if (ok && polish_it) {
             polish(s, plan, fixed);
+            /* about 5e7 elementary steps in all */
+            double per = (double)s->n * (double)s->m * (double)s->N + 1;
+            double it = 5e7 / per;
+            ils(s, plan, fixed, it < 20 ? 20 : it > 3000 ? 3000 : (size_t)it);
+            polish(s, plan, fixed);
+        }
         if (ok)
             ok = within(s);
         if (ok && polish_it && pass == 0)

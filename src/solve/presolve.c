@@ -334,17 +334,9 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
     s->bkey = surety_xmalloc(n, sizeof *s->bkey);
     if (!s->bkey)
         goto oom;
-    {
-        const char *mode = getenv("SURETY_BRANCH");
-        int md = mode ? atoi(mode) : 0;
-        for (size_t j = 0; j < n; j++) {
-            double mw = 0;
-            for (size_t l = 0; l < s->N; l++)
-                mw += s->w[l * n + j] * s->cnt[l];
-            mw /= (double)s->N0;
-            s->bkey[j] = md == 0 ? s->p[j] : md == 1 ? s->p[j] / (mw + 1e-300) : md == 2 ? mw : -mw;
-        }
-    }
+    /* largest profit first: those decisions move the bound most */
+    for (size_t j = 0; j < n; j++)
+        s->bkey[j] = s->p[j];
     qsort_r(s->order, s->nb, sizeof *s->order, cmp_branch, s);
 
     /* per scenario, candidates by efficiency p_j / w_lj, sorted once here

@@ -68,6 +68,13 @@ static void logf_(const surety_solver *s, surety_log_level level,
 static double global_bound(const surety_solver *s)
 {
     double b = s->have_inc ? s->inc : -INFINITY;
+    if (s->nodes == 0 && s->depth == 0 && s->open_bound &&
+        s->open_bound[0] == -INFINITY) {
+        /* before the search: the root bounds when known */
+        double r = s->root_agg < s->root_lagr ? s->root_agg : s->root_lagr;
+        return s->root_lagr == 0 && s->root_agg == 0 ? INFINITY
+                                                     : (r > b ? r : b);
+    }
     if (!s->open_bound)
         return s->root_bound > b ? s->root_bound : b;
     for (size_t d = 0; d <= s->depth && d <= s->nb; d++)
@@ -194,9 +201,7 @@ static void solver_free(surety_solver *s)
     surety_xfree(s->frames);
     surety_xfree(s->ub);
     surety_xfree(s->ubw);
-    surety_xfree(s->ubl);
     surety_xfree(s->kn);
-    surety_xfree(s->q);
     surety_xfree(s->ubst);
     surety_xfree(s->inc_plan);
     surety_xfree(s->open_bound);
@@ -219,16 +224,14 @@ static int search_alloc(surety_solver *s)
     s->frames = surety_xcalloc(nb + 1, sizeof *s->frames);
     s->ub = surety_xmalloc(N, sizeof *s->ub);
     s->ubw = surety_xmalloc(N, sizeof *s->ubw);
-    s->ubl = surety_xmalloc(N, sizeof *s->ubl);
-    s->kn = surety_xmalloc(G * N + m, sizeof *s->kn);
-    s->q = surety_xmalloc(G, sizeof *s->q);
+    s->kn = surety_xmalloc(m, sizeof *s->kn);
     s->ubst = surety_xmalloc((nb + 2) * N, sizeof *s->ubst);
     s->open_bound = surety_xmalloc(nb + 1, sizeof *s->open_bound);
     s->tplan = surety_xmalloc(n, sizeof *s->tplan);
     s->tfix = surety_xmalloc(n, sizeof *s->tfix);
     if (!s->state || !s->nin || !s->load || !s->dead || !s->dead_w ||
         !s->trail || !s->saved_load || !s->saved_dead_w || !s->frames ||
-        !s->ub || !s->ubw || !s->ubl || !s->kn || !s->q || !s->ubst || !s->open_bound ||
+        !s->ub || !s->ubw || !s->kn || !s->ubst || !s->open_bound ||
         !s->tplan || !s->tfix)
         return -1;
     for (size_t j = 0; j < n; j++)
@@ -339,8 +342,6 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
         memcpy(s.tfix, s.state, s.n * sizeof *s.tfix);
         if (surety_heur_complete(&s, s.tfix, s.tplan, 1))
             surety_solve_offer(&s, s.tplan);
-        if (s.have_inc)
-            surety_solve_log_progress(&s, 1, 'H');
         if (surety_bound_init(&s) != 0) {
             surety_error_set(err, NULL, 0, 0, NULL,
                              "out of memory for the bound (%zu jobs, %zu "
@@ -352,6 +353,8 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
               "root bounds: aggregated %.6f, per resource %.6f%s",
               s.root_agg, s.root_lagr,
               s.use_lagr ? "" : " (aggregated used in the tree)");
+        if (s.have_inc)
+            surety_solve_log_progress(&s, 1, 'H');
         double open = surety_tree_search(&s);
         if (s.stop) {
             res->stop = (surety_stop)(s.stop - 1);

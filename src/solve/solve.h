@@ -85,8 +85,7 @@ struct surety_solver {
     /* bound scratch */
     double *ub;          /* N values */
     unsigned *ubw;       /* N weights */
-    size_t *ubl;         /* N scenario ids */
-    double *kn;          /* G*N + m scratch */
+    double *kn;          /* m scratch: residuals when m > 64 */
     double *ubst;        /* (nb+2)*N per-depth scenario bounds (absolute) */
     unsigned long evals; /* bound evaluations (refresh schedule) */
     /* per-resource bound with Lagrangian prices on "each job once" */
@@ -99,7 +98,6 @@ struct surety_solver {
     double *lx;          /* n scratch: fractions taken */
     int use_lagr;        /* evaluate the per-resource bound at nodes */
     double root_agg, root_lagr; /* the two bounds at the root */
-    double *q;           /* G group quantiles of the last evaluation */
 
     /* heuristic scratch (heur.c) */
     double *hload;       /* m*N resource-major loads, base hours */
