@@ -528,9 +528,12 @@ def load_instance(path, N=None, seed=None):
     with open(path) as fp:
         js = json.load(fp)
     name = os.path.splitext(os.path.basename(path))[0]
-    return {"path": os.path.abspath(path), "name": name, "n": len(js["jobs"]),
-            "m": len(js["resources"]), "N": int(N if N else js["scenarios"]),
-            "eps": float(js["risk"]), "seed": int(seed if seed is not None else js.get("seed", 1))}
+    m = len(js["resources"])
+    pairs = sum(len(j.get("allowed") or range(m)) for j in js["jobs"])
+    N = int(N if N else js["scenarios"])
+    return {"path": os.path.abspath(path), "name": name, "n": len(js["jobs"]), "m": m, "N": N,
+            "eps": float(js["risk"]), "seed": int(seed if seed is not None else js.get("seed", 1)),
+            "nonzeros": N * pairs}
 
 
 def export(ctx, inst, work):
@@ -644,6 +647,9 @@ def main(argv):
     ap.add_argument("--out", default=None,
                     help="folder for results.md, results.csv, time.svg (default: none)")
     ap.add_argument("--keep", action="store_true", help="keep MPS files, logs and plans")
+    ap.add_argument("--max-nonzeros", type=float, default=5e6,
+                    help="skip models whose MPS would hold more capacity-row nonzeros "
+                    "(N x allowed job-resource pairs; default 5e6, about 200 MB of MPS)")
     ap.add_argument("--quick", action="store_true",
                     help="two tiny generated instances, CBC only: the test-suite check")
     a = ap.parse_args(argv)
@@ -695,6 +701,10 @@ def main(argv):
                 inst = load_instance(path, a.N, seed)
                 if seed is not None:
                     inst["name"] += "@%d" % seed
+                if inst["nonzeros"] > a.max_nonzeros:
+                    print("== %s skipped: its MPS would hold about %.3g nonzeros (--max-nonzeros)"
+                          % (inst["name"], inst["nonzeros"]), flush=True)
+                    continue
                 print("== %s (n=%d m=%d N=%d eps=%g seed=%d)" % (
                     inst["name"], inst["n"], inst["m"], inst["N"], inst["eps"], inst["seed"]),
                     flush=True)
