@@ -299,7 +299,8 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters)
     }
     uint64_t seed = 0x5eed ^ (uint64_t)n * 1000003u ^ (uint64_t)s->N;
     double best = profit_of(s, plan);
-    for (size_t it = 0; it < iters; it++) {
+    size_t since = 0; /* iterations since the last improvement */
+    for (size_t it = 0; it < iters && since < 150; it++, since++) {
         memcpy(cur, plan, n * sizeof *cur);
         reset(s, cur);
         size_t placed = 0;
@@ -344,6 +345,7 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters)
         double v = profit_of(s, cur);
         if (v > best + 1e-12 * (s->pscale + 1) && within(s)) {
             best = v;
+            since = 0;
             memcpy(plan, cur, n * sizeof *cur);
         }
     }
@@ -452,10 +454,10 @@ int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
         ok = greedy(s, plan, pass == 0 ? s->hord : s->hordp);
         if (ok && polish_it) {
             polish(s, plan, fixed);
-            /* about 5e7 elementary steps in all */
+            /* about 1e7 elementary steps in all */
             double per = (double)s->n * (double)s->m * (double)s->N + 1;
-            double it = 5e7 / per;
-            ils(s, plan, fixed, it < 20 ? 20 : it > 3000 ? 3000 : (size_t)it);
+            double it = 1e7 / per;
+            ils(s, plan, fixed, it < 20 ? 20 : it > 1000 ? 1000 : (size_t)it);
             polish(s, plan, fixed);
         }
         if (ok)
