@@ -246,16 +246,22 @@ def parse_glpk(log, sol_text, mps):
     elif "PROBLEM HAS NO INTEGER FEASIBLE SOLUTION" in log or \
             "PROBLEM HAS NO PRIMAL FEASIBLE SOLUTION" in log:
         r["status"] = "infeasible"
-    # progress lines: "+ iters: mip = best >= bound gap% (active; done)"; the last one holds
-    # the final bound and (active; done) subproblem counts. Nodes reported: done + active.
-    prog = re.findall(r"^\+\s*\d+: (?:mip =|>>>>>)\s+(\S+)\s+[<>]=\s+(.*?)\s+\S+%?\s+"
-                      r"\((\d+); (\d+)\)", log, re.M)
+    # progress lines: "+ ITERS: mip = BEST >= BOUND GAP% (A; R)", where BEST may read "not found
+    # yet", BOUND "tree is empty", and GAP is blank above 999.9%. A is the number of active
+    # subproblems and R the number removed from the tree (GLPK's glpios03.c prints a_cnt and
+    # t_cnt - n_cnt); nodes reported: A + R (inactive subproblems still in the tree are not shown
+    # in the log, so this is a slight undercount).
     bound = None
-    if prog:
-        last = prog[-1]
-        r["nodes"] = int(last[2]) + int(last[3])
+    for line in log.splitlines():
+        if not line.startswith("+"):
+            continue
+        m = re.search(r"\((\d+); (\d+)\)\s*$", line)
+        if not m:
+            continue
+        r["nodes"] = int(m.group(1)) + int(m.group(2))
+        b = re.search(r"[<>]=\s+(\S+)", line)
         try:
-            bound = float(last[1])
+            bound = float(b.group(1)) if b else None
         except ValueError:
             bound = None        # "tree is empty"
     # solution file (glpsol -w): "s mip ROWS COLS STATUS OBJ", then "j COLNO VALUE" lines;
