@@ -71,10 +71,18 @@ static double knap_joint(const surety_solver *s, size_t l)
     const double *row = s->w + l * n;
     double res[64];
     double *r = m <= 64 ? res : s->kn;
+    /* a resource whose residual is below the lightest open job's hours
+     * can take no more jobs in this scenario: its residual is not counted */
+    double wmin = INFINITY;
+    for (size_t t = 0; t < s->nb; t++) {
+        size_t j = s->order[t];
+        if (s->state[j] == JOB_FREE && row[j] < wmin)
+            wmin = row[j];
+    }
     double agg = 0, rmax = -INFINITY;
     for (size_t i = 0; i < m; i++) {
         r[i] = s->cap_hi[i] - s->load[i * N + l];
-        if (r[i] > 0)
+        if (r[i] > 0 && r[i] >= wmin)
             agg += r[i];
         if (r[i] > rmax)
             rmax = r[i];
