@@ -688,3 +688,49 @@ Test(solve, empty_model_is_an_input_error)
     surety_model_destroy(md);
     solve_gen_scenarios_free(sc);
 }
+
+Test(solve, starting_plan_is_used_when_feasible)
+{
+    /* a caller's plan is re-counted like any other: the optimum of a full
+     * run, given back as a start to a run of one node, is kept; an
+     * infeasible start (every job in the first resource) is ignored */
+    solve_gen_params p;
+    memset(&p, 0, sizeof p);
+    p.n = 14;
+    p.m = 3;
+    p.N = 150;
+    p.eps = 0.05;
+    p.tightness = 0.5;
+    p.dist = SOLVE_GEN_NORMAL;
+    p.seed = 77;
+    surety_model *md = solve_gen_model(&p);
+    for (size_t j = 0; j < p.n; j++)
+        for (size_t i = 0; i < p.m; i++)
+            md->jobs[j].allowed[i] = 1;
+    surety_scenarios *sc = solve_gen_scenarios(md, &p);
+    surety_result *full = solve_ok(md, sc, NULL);
+    cr_assert_eq(surety_result_status(full), SURETY_OPTIMAL);
+    surety_solve_options o;
+    surety_solve_options_init(&o);
+    o.node_limit = 1;
+    o.start = surety_result_plan(full);
+    surety_result *res = solve_ok(md, sc, &o);
+    check_result(md, sc, res);
+    cr_assert(surety_result_objective(res) >=
+              surety_result_objective(full) - 1e-9);
+
+    surety_plan bad = {p.n, NULL};
+    long all0[14];
+    for (size_t j = 0; j < p.n; j++)
+        all0[j] = 0;
+    bad.resource = all0;
+    cr_assert(!plan_ok(md, sc, all0), "the bad start must be infeasible");
+    o.start = &bad;
+    surety_result *res2 = solve_ok(md, sc, &o);
+    check_result(md, sc, res2);
+    surety_result_free(res2);
+    surety_result_free(res);
+    surety_result_free(full);
+    surety_model_destroy(md);
+    solve_gen_scenarios_free(sc);
+}
