@@ -103,8 +103,15 @@ static double knap_joint(const surety_solver *s, size_t l)
         if (agg < 0)
             return -INFINITY;
     }
+    /* Every job is taken whole or not at all, so this is a 0-1 knapsack
+     * and the Martello-Toth bound U2 applies at the break job c (Martello
+     * & Toth 1977): either c is left out (the rest of the capacity is
+     * filled at most at the next job's efficiency) or c is taken (the
+     * missing hours are removed from the taken jobs at least at the last
+     * taken job's efficiency). Both are at most the LP value. */
     const uint32_t *e = s->eff + l * s->ncand;
-    double v = 0, c = agg;
+    double v = 0, c = agg, elast = INFINITY;
+    long brk = -1;
     for (size_t t = 0; t < s->ncand; t++) {
         uint32_t j = e[t];
         if (s->state[j] != JOB_FREE)
@@ -119,13 +126,30 @@ static double knap_joint(const surety_solver *s, size_t l)
         }
         if (wj > fit)
             continue; /* fits no resource on its own in this scenario */
-        if (wj <= c) {
-            v += s->p[j];
-            c -= wj;
-        } else {
-            v += s->p[j] * (c / wj);
-            break;
+        if (brk < 0) {
+            if (wj <= c) {
+                v += s->p[j];
+                c -= wj;
+                elast = wj > 0 ? s->p[j] / wj : INFINITY;
+                continue;
+            }
+            brk = (long)j;
+            continue;
         }
+        /* the first fitting job after the break job */
+        double u0 = v + c * (s->p[j] / wj);
+        double wc = row[brk];
+        double u1 = v + s->p[brk] - (wc - c) * elast;
+        double lp = v + s->p[brk] * (c / wc);
+        double u = u0 > u1 ? u0 : u1;
+        return u < lp ? u : lp;
+    }
+    if (brk >= 0) {
+        double wc = row[brk];
+        double u1 = v + s->p[brk] - (wc - c) * elast;
+        double lp = v + s->p[brk] * (c / wc);
+        double u = v > u1 ? v : u1;
+        return u < lp ? u : lp;
     }
     return v;
 }
