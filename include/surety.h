@@ -355,6 +355,10 @@ void surety_result_free(surety_result *res);
 
 surety_stop surety_result_stop(const surety_result *res);
 surety_status surety_result_status(const surety_result *res);
+/* Mean profit of the plan (NaN without one); a valid upper bound on the
+ * optimum at any stop (-INFINITY when proven infeasible); their relative
+ * gap (bound - objective) / |objective| (INFINITY when unknown). The
+ * search is single-threaded: opt->threads is accepted and not used yet. */
 double surety_result_objective(const surety_result *res); /* mean profit */
 double surety_result_bound(const surety_result *res);     /* upper bound */
 double surety_result_gap(const surety_result *res);       /* relative */

@@ -193,7 +193,7 @@ static double profit_of(const surety_solver *s, const long *plan)
  * by the caller (fixed[j] != JOB_FREE) are never touched. */
 static void polish(surety_solver *s, long *plan, const long *fixed)
 {
-    size_t N = s->N, m = s->m;
+    size_t m = s->m;
     for (int round = 0; round < 50; round++) {
         int improved = 0;
         /* add */
@@ -263,7 +263,6 @@ static void polish(surety_solver *s, long *plan, const long *fixed)
                 reset(s, plan);
             }
         }
-        (void)N;
         if (!improved)
             break;
         reset(s, plan); /* drop the drift of incremental sums */

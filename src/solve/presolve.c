@@ -165,7 +165,6 @@ static int required_check(surety_solver *s, char *reason, size_t rlen)
     capsum *= 1 + SURETY_SOLVE_LOAD_TOL;
 
     size_t *failg = surety_xcalloc(s->G, sizeof *failg);
-    size_t agg = 0;
     if (!failg)
         goto done;
     for (size_t l = 0; l < N; l++) {
@@ -196,8 +195,6 @@ static int required_check(surety_solver *s, char *reason, size_t rlen)
         }
         if (!s->separate && (failed_joint || all > capsum))
             failg[0] += s->cnt[l];
-        if (!s->separate && all > capsum)
-            agg += s->cnt[l];
     }
     for (size_t g = 0; g < s->G && !found; g++) {
         if (failg[g] <= s->k)
@@ -218,7 +215,6 @@ static int required_check(surety_solver *s, char *reason, size_t rlen)
                      names, failg[g], s->N0, s->k);
         found = 1;
     }
-    (void)agg;
     surety_xfree(failg);
 done:
     surety_xfree(mark);

@@ -407,8 +407,6 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
     } else if (res->stop == SURETY_STOP_FINISHED) {
         res->status = SURETY_INFEASIBLE;
         if (!res->reason[0]) {
-            unsigned char *mark = NULL;
-            (void)mark;
             char names[400];
             size_t used = 0, shown = 0;
             names[0] = '\0';
