@@ -357,8 +357,15 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
             surety_solve_log_progress(&s, 1, 'H');
         double open = surety_tree_search(&s);
         if (s.stop) {
+            /* open subtrees, and plans within the pruning tolerance of
+             * the incumbent (fixings may have cut those) */
             res->stop = (surety_stop)(s.stop - 1);
-            double b = s.have_inc ? s.inc : -INFINITY;
+            double b = -INFINITY;
+            if (s.have_inc) {
+                double tol = opt->gap * fabs(s.inc);
+                double noise = 1e-12 * (s.pscale + 1);
+                b = s.inc + (tol > noise ? tol : noise);
+            }
             res->bound = open > b ? open : b;
         } else {
             res->stop = SURETY_STOP_FINISHED;
