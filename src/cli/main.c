@@ -117,10 +117,19 @@ void cli_json_string(FILE *fp, const char *s)
 
 void cli_json_number(FILE *fp, double v)
 {
-    if (isfinite(v))
-        fprintf(fp, "%.17g", v);
-    else
+    if (!isfinite(v)) {
         fputs("null", fp);
+        return;
+    }
+    /* The shortest of %.15g, %.16g, %.17g that reads back to the same
+     * double: 0.1 stays 0.1, and no value loses a bit. */
+    char buf[40];
+    for (int digits = 15; digits <= 17; digits++) {
+        snprintf(buf, sizeof buf, "%.*g", digits, v);
+        if (strtod(buf, NULL) == v)
+            break;
+    }
+    fputs(buf, fp);
 }
 
 void cli_print_caution(FILE *fp)
