@@ -311,33 +311,76 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
                 ties = want > below ? want - below : 0;
             }
         }
-        size_t c = 0, livew = 0;
+        /* recomputed scenarios go first in ub/ubw (their ids in rix),
+         * stale ones after; when the recomputed weight exceeds b, their
+         * own (b+1)-th smallest is at least the true one (fewer values can
+         * only raise an order statistic), hence still a valid bound */
+        size_t c = 0, livew = 0, nr = 0, rw = 0;
         for (size_t l = 0; l < N; l++) {
             if (s->dead[l] != LIVE)
                 continue;
             double v;
             if (prev && (prev[l] > tau || (prev[l] == tau && ties == 0))) {
                 v = prev[l] + slack;
-            } else {
-                if (prev && prev[l] == tau)
-                    ties--;
-                v = base + knap_joint(s, l);
+                if (v > cap)
+                    v = cap;
+                cur[l] = v;
+                livew += s->cnt[l];
+                continue;
             }
+            if (prev && prev[l] == tau)
+                ties--;
+            v = base + knap_joint(s, l);
             if (v > cap)
                 v = cap;
             cur[l] = v;
             s->ub[c] = v;
             s->ubw[c] = s->cnt[l];
+            s->rix[nr++] = l;
+            rw += s->cnt[l];
             livew += s->cnt[l];
             c++;
         }
-        qa = livew > b ? select_weighted(s->ub, s->ubw, c, b) : cap;
+        s->nrix = nr;
+        s->rix_all = nr == 0 || livew == rw;
+        if (rw > b) {
+            qa = select_weighted(s->ub, s->ubw, c, b);
+        } else if (livew > b) {
+            /* too few recomputed: select over every live value */
+            c = 0;
+            for (size_t l = 0; l < N; l++)
+                if (s->dead[l] == LIVE) {
+                    s->ub[c] = cur[l];
+                    s->ubw[c++] = s->cnt[l];
+                }
+            qa = select_weighted(s->ub, s->ubw, c, b);
+            s->rix_all = 1;
+        } else {
+            qa = cap;
+            s->rix_all = 1;
+        }
         if (qa < bound)
             bound = qa;
     }
     if (bound == -INFINITY || !(bound > cutoff))
         return bound == -INFINITY ? -INFINITY : bound;
 
+    if (!s->separate && !s->use_lagr && !s->rix_all) {
+        /* stale scenarios exceed the quantile, which exceeds the cutoff:
+         * only the recomputed ones can be fixed */
+        unsigned char *dead = s->dead;
+        const double *cur = s->ubst + row * N;
+        for (size_t r = 0; r < s->nrix; r++) {
+            size_t l = s->rix[r];
+            double v = cur[l];
+            if (v == -INFINITY || v <= cutoff) {
+                trail_push(s, l);
+                dead[l] = DEAD_BOUND;
+                s->dead_w[0] += s->cnt[l];
+            }
+        }
+        return s->dead_w[0] > k ? -INFINITY : bound;
+    }
     for (size_t g = 0; g < G; g++) {
         unsigned char *dead = s->dead + g * N;
         for (size_t l = 0; l < N; l++) {

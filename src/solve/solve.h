@@ -88,6 +88,9 @@ struct surety_solver {
     double *kn;          /* m scratch: residuals when m > 64 */
     double *ubst;        /* (nb+2)*N per-depth scenario bounds (absolute) */
     unsigned long evals; /* bound evaluations (refresh schedule) */
+    size_t *rix;         /* N: scenarios recomputed by the last evaluation */
+    size_t nrix;
+    int rix_all;         /* the last evaluation recomputed every scenario */
     /* per-resource bound with Lagrangian prices on "each job once" */
     double *lam;         /* n prices, 0 <= lam_j <= p_j (0 off candidates) */
     double *rp;          /* n reduced profits max(p_j - lam_j, 0) */
