@@ -76,7 +76,7 @@ static double knap_joint(const surety_solver *s, size_t l)
     double wmin = INFINITY;
     for (size_t t = 0; t < s->nb; t++) {
         size_t j = s->order[t];
-        if (s->state[j] == JOB_FREE && row[j] < wmin)
+        if (s->state[j] == SURETY_JOB_FREE && row[j] < wmin)
             wmin = row[j];
     }
     double agg = 0, rmax = -INFINITY;
@@ -90,7 +90,7 @@ static double knap_joint(const surety_solver *s, size_t l)
     if (s->req_left) {
         for (size_t t = 0; t < s->nb; t++) {
             size_t j = s->order[t];
-            if (!s->required[j] || s->state[j] != JOB_FREE)
+            if (!s->required[j] || s->state[j] != SURETY_JOB_FREE)
                 continue;
             double wj = row[j], best = -INFINITY;
             for (size_t i = 0; i < m; i++)
@@ -114,7 +114,7 @@ static double knap_joint(const surety_solver *s, size_t l)
     long brk = -1;
     for (size_t t = 0; t < s->ncand; t++) {
         uint32_t j = e[t];
-        if (s->state[j] != JOB_FREE)
+        if (s->state[j] != SURETY_JOB_FREE)
             continue;
         double wj = row[j];
         double fit = rmax;
@@ -169,7 +169,7 @@ static double knap_lagr(const surety_solver *s, size_t i, size_t l, double *x)
     double v = 0, c = r;
     for (size_t t = 0; t < s->nl; t++) {
         uint32_t j = e[t];
-        if (s->state[j] != JOB_FREE || !s->allowed[j * m + i])
+        if (s->state[j] != SURETY_JOB_FREE || !s->allowed[j * m + i])
             continue;
         double wj = row[j];
         if (wj > r)
@@ -210,12 +210,12 @@ static double lagr_quantiles(surety_solver *s)
         double unc = 0;
         for (size_t t = 0; t < s->nb; t++) {
             size_t j = s->order[t];
-            if (s->state[j] == JOB_FREE && s->allowed[j * m + i])
+            if (s->state[j] == SURETY_JOB_FREE && s->allowed[j * m + i])
                 unc += s->rp[j];
         }
         size_t c = 0, livew = 0;
         for (size_t l = 0; l < N; l++) {
-            if (dead[l] != LIVE)
+            if (dead[l] != SURETY_LIVE)
                 continue;
             double v = knap_lagr(s, i, l, NULL);
             kl[l] = v;
@@ -239,7 +239,7 @@ static double lam_free(const surety_solver *s)
     double v = 0;
     for (size_t t = 0; t < s->nb; t++) {
         size_t j = s->order[t];
-        if (s->cand[j] && s->state[j] == JOB_FREE)
+        if (s->cand[j] && s->state[j] == SURETY_JOB_FREE)
             v += s->lam[j];
     }
     return v;
@@ -267,7 +267,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
     double unc = 0;
     for (size_t t = 0; t < s->nb; t++) {
         size_t j = s->order[t];
-        if (s->cand[j] && s->state[j] == JOB_FREE)
+        if (s->cand[j] && s->state[j] == SURETY_JOB_FREE)
             unc += s->p[j];
     }
     double lf = 0, lsum = 0, bound = base + unc;
@@ -294,7 +294,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         if (prev && (s->evals++ & 31) != 0) {
             size_t c = 0, livew = 0;
             for (size_t l = 0; l < N; l++) {
-                if (s->dead[l] != LIVE)
+                if (s->dead[l] != SURETY_LIVE)
                     continue;
                 s->ub[c] = prev[l];
                 s->ubw[c] = s->cnt[l];
@@ -306,7 +306,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
                 tau = select_weighted(s->ub, s->ubw, c, want);
                 size_t below = 0;
                 for (size_t l = 0; l < N; l++)
-                    if (s->dead[l] == LIVE && prev[l] < tau)
+                    if (s->dead[l] == SURETY_LIVE && prev[l] < tau)
                         below++;
                 ties = want > below ? want - below : 0;
             }
@@ -317,7 +317,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
          * only raise an order statistic), hence still a valid bound */
         size_t c = 0, livew = 0, nr = 0, rw = 0;
         for (size_t l = 0; l < N; l++) {
-            if (s->dead[l] != LIVE)
+            if (s->dead[l] != SURETY_LIVE)
                 continue;
             double v;
             if (prev && (prev[l] > tau || (prev[l] == tau && ties == 0))) {
@@ -349,7 +349,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
             /* too few recomputed: select over every live value */
             c = 0;
             for (size_t l = 0; l < N; l++)
-                if (s->dead[l] == LIVE) {
+                if (s->dead[l] == SURETY_LIVE) {
                     s->ub[c] = cur[l];
                     s->ubw[c++] = s->cnt[l];
                 }
@@ -375,7 +375,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
             double v = cur[l];
             if (v == -INFINITY || v <= cutoff) {
                 trail_push(s, l);
-                dead[l] = DEAD_BOUND;
+                dead[l] = SURETY_DEAD_BOUND;
                 s->dead_w[0] += s->cnt[l];
             }
         }
@@ -384,7 +384,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
     for (size_t g = 0; g < G; g++) {
         unsigned char *dead = s->dead + g * N;
         for (size_t l = 0; l < N; l++) {
-            if (dead[l] != LIVE)
+            if (dead[l] != SURETY_LIVE)
                 continue;
             int fail = 0;
             if (!s->separate) {
@@ -398,7 +398,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
             }
             if (fail) {
                 trail_push(s, g * N + l);
-                dead[l] = DEAD_BOUND;
+                dead[l] = SURETY_DEAD_BOUND;
                 s->dead_w[g] += s->cnt[l];
             }
         }
@@ -484,7 +484,7 @@ int surety_bound_init(surety_solver *s)
             if (s->ql[i] <= 0)
                 continue;
             for (size_t l = 0; l < N; l++)
-                if (s->dead[gi * N + l] == LIVE && s->kl[i * N + l] == s->ql[i]) {
+                if (s->dead[gi * N + l] == SURETY_LIVE && s->kl[i * N + l] == s->ql[i]) {
                     memset(s->lx, 0, n * sizeof *s->lx);
                     knap_lagr(s, i, l, s->lx);
                     for (size_t j = 0; j < n; j++)
@@ -503,7 +503,7 @@ int surety_bound_init(surety_solver *s)
         }
         double norm = 0;
         for (size_t j = 0; j < n; j++)
-            if (s->cand[j] && s->state[j] == JOB_FREE)
+            if (s->cand[j] && s->state[j] == SURETY_JOB_FREE)
                 norm += g[j] * g[j];
         if (norm <= 0 || theta < 1e-4)
             break;
@@ -512,7 +512,7 @@ int surety_bound_init(surety_solver *s)
         if (step <= 0)
             step = theta * 1e-3 * (s->pscale + 1) / norm;
         for (size_t j = 0; j < n; j++) {
-            if (!s->cand[j] || s->state[j] != JOB_FREE)
+            if (!s->cand[j] || s->state[j] != SURETY_JOB_FREE)
                 continue;
             double v = s->lam[j] - step * g[j];
             s->lam[j] = v < 0 ? 0 : (v > s->p[j] ? s->p[j] : v);

@@ -142,14 +142,14 @@ static int within(const surety_solver *s)
     return 1;
 }
 
-/* Inserts the free jobs of plan (JOB_FREE entries) greedily: required
+/* Inserts the free jobs of plan (SURETY_JOB_FREE entries) greedily: required
  * jobs first, then candidates in the order `ord`. Free jobs left over
- * become JOB_OUT. */
+ * become SURETY_JOB_OUT. */
 static int greedy(surety_solver *s, long *plan, const size_t *ord)
 {
     for (size_t t = 0; t < s->nb; t++) {
         size_t j = s->order[t];
-        if (!s->required[j] || plan[j] != JOB_FREE)
+        if (!s->required[j] || plan[j] != SURETY_JOB_FREE)
             continue;
         long i = best_resource(s, j, 1);
         if (i < 0)
@@ -161,19 +161,19 @@ static int greedy(surety_solver *s, long *plan, const size_t *ord)
         return 0;
     for (size_t t = 0; t < s->ncand; t++) {
         size_t j = ord[t];
-        if (plan[j] != JOB_FREE)
+        if (plan[j] != SURETY_JOB_FREE)
             continue;
         long i = best_resource(s, j, 0);
         if (i >= 0) {
             change(s, j, (size_t)i, 1);
             plan[j] = i;
         } else {
-            plan[j] = JOB_OUT;
+            plan[j] = SURETY_JOB_OUT;
         }
     }
     for (size_t j = 0; j < s->n; j++)
-        if (plan[j] == JOB_FREE)
-            plan[j] = JOB_OUT;
+        if (plan[j] == SURETY_JOB_FREE)
+            plan[j] = SURETY_JOB_OUT;
     return 1;
 }
 
@@ -190,7 +190,7 @@ static double profit_of(const surety_solver *s, const long *plan)
  * outside job; swap a placed optional job for a more profitable outside
  * one in the same resource; drop a placed job and re-insert greedily
  * (itself included, so it may move), kept when profit rises. Jobs fixed
- * by the caller (fixed[j] != JOB_FREE) are never touched. */
+ * by the caller (fixed[j] != SURETY_JOB_FREE) are never touched. */
 static void polish(surety_solver *s, long *plan, const long *fixed)
 {
     size_t m = s->m;
@@ -199,7 +199,7 @@ static void polish(surety_solver *s, long *plan, const long *fixed)
         /* add */
         for (size_t t = 0; t < s->ncand; t++) {
             size_t j = s->hordp[t];
-            if (plan[j] != JOB_OUT || (fixed && fixed[j] != JOB_FREE))
+            if (plan[j] != SURETY_JOB_OUT || (fixed && fixed[j] != SURETY_JOB_FREE))
                 continue;
             long i = best_resource(s, j, 0);
             if (i >= 0) {
@@ -211,20 +211,20 @@ static void polish(surety_solver *s, long *plan, const long *fixed)
         /* swap in resource i: a out, b in, p_b > p_a */
         for (size_t ta = 0; ta < s->ncand; ta++) {
             size_t a = s->hordp[s->ncand - 1 - ta]; /* least profitable first */
-            if (plan[a] < 0 || (fixed && fixed[a] != JOB_FREE))
+            if (plan[a] < 0 || (fixed && fixed[a] != SURETY_JOB_FREE))
                 continue;
             size_t i = (size_t)plan[a];
             for (size_t tb = 0; tb < s->ncand; tb++) {
                 size_t b = s->hordp[tb];
                 if (!(s->p[b] > s->p[a]))
                     break;
-                if (plan[b] != JOB_OUT || (fixed && fixed[b] != JOB_FREE) ||
+                if (plan[b] != SURETY_JOB_OUT || (fixed && fixed[b] != SURETY_JOB_FREE) ||
                     !s->allowed[b * m + i])
                     continue;
                 if (fail_after(s, i, b, a) <= s->k) {
                     change(s, a, i, -1);
                     change(s, b, i, 1);
-                    plan[a] = JOB_OUT;
+                    plan[a] = SURETY_JOB_OUT;
                     plan[b] = (long)i;
                     improved = 1;
                     break;
@@ -234,16 +234,16 @@ static void polish(surety_solver *s, long *plan, const long *fixed)
         /* drop one job, re-insert greedily */
         for (size_t ta = 0; ta < s->ncand; ta++) {
             size_t a = s->hordp[ta];
-            if (plan[a] < 0 || (fixed && fixed[a] != JOB_FREE))
+            if (plan[a] < 0 || (fixed && fixed[a] != SURETY_JOB_FREE))
                 continue;
             double before = profit_of(s, plan);
             memcpy(s->hsave, plan, s->n * sizeof *plan);
             change(s, a, (size_t)plan[a], -1);
-            plan[a] = JOB_OUT;
+            plan[a] = SURETY_JOB_OUT;
             for (size_t tb = 0; tb < s->ncand; tb++) {
                 size_t b = s->hordp[tb];
-                if (b == a || plan[b] != JOB_OUT ||
-                    (fixed && fixed[b] != JOB_FREE))
+                if (b == a || plan[b] != SURETY_JOB_OUT ||
+                    (fixed && fixed[b] != SURETY_JOB_FREE))
                     continue;
                 long i = best_resource(s, b, 0);
                 if (i >= 0) {
@@ -305,7 +305,7 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters)
         size_t placed = 0;
         for (size_t t = 0; t < nc; t++) {
             size_t j = s->hordp[t];
-            placed += cur[j] >= 0 && !(fixed && fixed[j] != JOB_FREE);
+            placed += cur[j] >= 0 && !(fixed && fixed[j] != SURETY_JOB_FREE);
         }
         if (placed == 0)
             break;
@@ -314,11 +314,11 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters)
             size_t pick = next_rand(&seed) % placed, c = 0;
             for (size_t t = 0; t < nc; t++) {
                 size_t j = s->hordp[t];
-                if (cur[j] < 0 || (fixed && fixed[j] != JOB_FREE))
+                if (cur[j] < 0 || (fixed && fixed[j] != SURETY_JOB_FREE))
                     continue;
                 if (c++ == pick) {
                     change(s, j, (size_t)cur[j], -1);
-                    cur[j] = JOB_OUT;
+                    cur[j] = SURETY_JOB_OUT;
                     placed--;
                     break;
                 }
@@ -333,7 +333,7 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters)
         qsort_r(ord, nc, sizeof *ord, cmp_key_ext, key);
         for (size_t t = 0; t < nc; t++) {
             size_t j = ord[t];
-            if (cur[j] != JOB_OUT || (fixed && fixed[j] != JOB_FREE))
+            if (cur[j] != SURETY_JOB_OUT || (fixed && fixed[j] != SURETY_JOB_FREE))
                 continue;
             long i = best_resource(s, j, 0);
             if (i >= 0) {
@@ -448,7 +448,7 @@ int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
         memcpy(plan, fixed, s->n * sizeof *plan);
         long *start = s->hplan;
         for (size_t j = 0; j < s->n; j++)
-            start[j] = plan[j] >= 0 ? plan[j] : JOB_OUT;
+            start[j] = plan[j] >= 0 ? plan[j] : SURETY_JOB_OUT;
         reset(s, start);
         ok = greedy(s, plan, pass == 0 ? s->hord : s->hordp);
         if (ok && polish_it) {

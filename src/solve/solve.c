@@ -237,9 +237,9 @@ static int search_alloc(surety_solver *s)
         !s->tplan || !s->tfix)
         return -1;
     for (size_t j = 0; j < n; j++)
-        s->state[j] = JOB_OUT;
+        s->state[j] = SURETY_JOB_OUT;
     for (size_t t = 0; t < nb; t++)
-        s->state[s->order[t]] = JOB_FREE;
+        s->state[s->order[t]] = SURETY_JOB_FREE;
     for (size_t d = 0; d <= nb; d++)
         s->open_bound[d] = -INFINITY;
     s->req_left = 0;
@@ -335,7 +335,7 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
         /* the empty plan, a caller's plan, then the greedy + local search */
         if (s.req_left == 0) {
             for (size_t j = 0; j < s.n; j++)
-                s.tplan[j] = JOB_OUT;
+                s.tplan[j] = SURETY_JOB_OUT;
             surety_solve_offer(&s, s.tplan);
         }
         if (opt->start && opt->start->n == s.n &&

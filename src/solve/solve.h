@@ -20,11 +20,11 @@
 #define SURETY_SOLVE_LOAD_TOL 1e-9
 
 /* Job state during the search. */
-enum { JOB_FREE = -2, JOB_OUT = -1 };
+enum { SURETY_JOB_FREE = -2, SURETY_JOB_OUT = -1 };
 
 /* Dead flags of a (group, scenario): live, overloaded by the committed
  * load, or fixed as failed by the quantile bound (METHODS.md s.7 rule 4). */
-enum { LIVE = 0, DEAD_LOAD = 1, DEAD_BOUND = 2 };
+enum { SURETY_LIVE = 0, SURETY_DEAD_LOAD = 1, SURETY_DEAD_BOUND = 2 };
 
 typedef struct surety_solver surety_solver;
 
@@ -69,7 +69,7 @@ struct surety_solver {
     double pscale;       /* sum |p_j|, for absolute tolerances */
 
     /* ---- search state ---- */
-    long *state;         /* n: JOB_FREE, JOB_OUT or resource */
+    long *state;         /* n: SURETY_JOB_FREE, SURETY_JOB_OUT or resource */
     size_t *nin;         /* m: jobs placed in resource i */
     double *load;        /* m*N, resource-major: base hours placed */
     unsigned char *dead; /* G*N flags */
@@ -156,7 +156,7 @@ void surety_bound_free(surety_solver *s);
 
 /* heur.c: greedy insertion with a violation budget and local search
  * (METHODS.md s.8). Completes the partial assignment `fixed` (n entries,
- * JOB_FREE for open jobs) into plan (n entries); returns 1 when the plan
+ * SURETY_JOB_FREE for open jobs) into plan (n entries); returns 1 when the plan
  * satisfies the allowance by the heuristic's own count. */
 int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
                          int polish);

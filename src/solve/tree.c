@@ -22,7 +22,7 @@ static double cutoff_of(const surety_solver *s)
     return s->inc + (tol > noise ? tol : noise);
 }
 
-/* Decides job j at depth d: c >= 0 places it in resource c, JOB_OUT
+/* Decides job j at depth d: c >= 0 places it in resource c, SURETY_JOB_OUT
  * rejects it. Returns 0 when the node is already infeasible (more than k
  * scenarios clearly overloaded in a group). O(N) work. */
 static int apply(surety_solver *s, size_t d, size_t j, long c)
@@ -54,11 +54,11 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
     for (size_t l = 0; l < N; l++) {
         double x = ld[l] + wj[l];
         ld[l] = x;
-        if (x > hi && dead[l] != DEAD_LOAD) {
-            if (dead[l] == LIVE)
+        if (x > hi && dead[l] != SURETY_DEAD_LOAD) {
+            if (dead[l] == SURETY_LIVE)
                 s->dead_w[g] += s->cnt[l];
             s->trail[s->trail_len++] = (g * N + l) << 2 | dead[l];
-            dead[l] = DEAD_LOAD;
+            dead[l] = SURETY_DEAD_LOAD;
         }
     }
     return s->dead_w[g] <= s->k;
@@ -78,7 +78,7 @@ static void undo(surety_solver *s, size_t d)
                N * sizeof *s->load);
         s->nin[f->res]--;
     }
-    s->state[f->job] = JOB_FREE;
+    s->state[f->job] = SURETY_JOB_FREE;
     s->fixed_profit = f->fixed_profit;
     s->req_profit = f->req_profit;
     s->req_left = f->req_left;
@@ -94,14 +94,14 @@ static void try_partial(surety_solver *s)
     for (size_t g = 0; g < s->G; g++) {
         size_t w = 0;
         for (size_t l = 0; l < s->N; l++)
-            if (s->dead[g * s->N + l] == DEAD_LOAD)
+            if (s->dead[g * s->N + l] == SURETY_DEAD_LOAD)
                 w += s->cnt[l];
         if (w > s->k)
             return;
     }
     long *plan = s->tplan;
     for (size_t j = 0; j < s->n; j++)
-        plan[j] = s->state[j] >= 0 ? s->state[j] : JOB_OUT;
+        plan[j] = s->state[j] >= 0 ? s->state[j] : SURETY_JOB_OUT;
     if (surety_solve_offer(s, plan))
         surety_solve_log_progress(s, 1, '*');
 }
@@ -162,7 +162,7 @@ static void dive(surety_solver *s, size_t d, double node_bound)
             ch[nc++].c = (long)i;
     }
     if (!s->required[j])
-        ch[nc++].c = JOB_OUT;
+        ch[nc++].c = SURETY_JOB_OUT;
     /* children in the order of the greedy insertion (METHODS.md s.8): the
      * resource where j overloads the fewest live scenarios, then the least
      * loaded; rejecting j last. Each child is evaluated once, when
@@ -178,7 +178,7 @@ static void dive(surety_solver *s, size_t d, double node_bound)
         double hi = s->cap_hi[i], kill = 0, tot = 0;
         for (size_t l = 0; l < N; l++) {
             tot += ld[l];
-            if (dead[l] == LIVE && ld[l] + wj[l] > hi)
+            if (dead[l] == SURETY_LIVE && ld[l] + wj[l] > hi)
                 kill += s->cnt[l];
         }
         ch[t].b = -(kill * 1e6 * (double)N + tot / s->cap[i]);
