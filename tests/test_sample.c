@@ -207,7 +207,7 @@ static surety_dist make_dist(surety_dist_kind kind, double a, double b,
 /* Reference outputs of xoshiro256** from state {1, 2, 3, 4}: 11520, 0,
  * 1509978240, 1215971899390074240 (from memory of the reference C code's
  * output, as used in the rand_xoshiro test vectors; confirmed by an
- * independent Python transcription of Blackman & Vigna's algorithm). */
+ * independent Python re-implementation of Blackman & Vigna's algorithm). */
 Test(rng, xoshiro_reference)
 {
     surety_rng r = {{1, 2, 3, 4}};
@@ -219,7 +219,7 @@ Test(rng, xoshiro_reference)
 
 /* SplitMix64 from 1234567 gives 6457827717110365317, 3203168211198807973,
  * 9817491932198370423, 4593380528125082431 (from memory of the values
- * quoted for Vigna's splitmix64.c; confirmed by a Python transcription). */
+ * quoted for Vigna's splitmix64.c; confirmed by a Python re-implementation). */
 Test(rng, splitmix_seeding_reference)
 {
     surety_rng r = surety_rng_from(1234567);
