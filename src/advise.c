@@ -6,7 +6,7 @@
 
 #include "alloc.h"
 #include "model.h"
-#include "stats.h"
+#include "sizes.h"
 
 /* Each job goes to one of its allowed resources or, unless required, stays
  * out: |X| <= prod_j (a_j + [not required]) (Luedtke & Ahmed 2008 use

@@ -9,6 +9,7 @@
 #include "clock.h"
 #include "model.h"
 #include "plan.h"
+#include "sizes.h"
 #include "stats.h"
 
 void surety_bounds_options_init(surety_bounds_options *opt)

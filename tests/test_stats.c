@@ -13,6 +13,7 @@
 #include <string.h>
 
 #include "ref/stats_ref.h"
+#include "sizes.h"
 #include "stats.h"
 #include "surety.h"
 

@@ -4,6 +4,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "sizes.h"
 #include "stats.h"
 #include "surety.h"
 
