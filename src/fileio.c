@@ -44,8 +44,10 @@ surety_code surety_outfile_open(surety_outfile *f, const char *path,
     snprintf(f->tmp, len + 16, "%s.tmpXXXXXX", path);
     int fd = mkstemp(f->tmp);
     if (fd < 0) {
-        surety_error_set(err, path, 0, 0, NULL, "cannot create %s: %s",
-                         f->tmp, strerror(errno));
+        /* the temporary file's name means nothing to the user: the
+         * folder of `path` is what cannot be written */
+        surety_error_set(err, path, 0, 0, NULL, "cannot write here: %s",
+                         strerror(errno));
         surety_xfree(f->tmp);
         f->tmp = NULL;
         surety_outfile_abort(f);

@@ -31,6 +31,10 @@ int cli_parse_size(const char *s, size_t *out);
 int cli_parse_u64(const char *s, uint64_t *out);
 int cli_parse_double(const char *s, double *out);
 
+/* 1 when `path` can be written: it exists and is writable, or its folder
+ * is writable (errno tells why not). */
+int cli_writable(const char *path);
+
 /* JSON string literal of s (with quotes) to fp. */
 void cli_json_string(FILE *fp, const char *s);
 /* A JSON number: finite values with %.17g, others as null. */

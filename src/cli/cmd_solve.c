@@ -1,6 +1,7 @@
 /* cmd_solve.c - `surety solve MODEL`: the proven-optimal plan of the sample
  * approximation, a summary by resource, and the plan file for `check`.
  * SPDX-License-Identifier: MIT */
+#include <errno.h>
 #include <getopt.h>
 #include <math.h>
 #include <stdlib.h>
@@ -266,6 +267,11 @@ int cmd_solve(int argc, char **argv)
     }
     if (optind + 1 != argc)
         return cli_usage_error("solve", "expected one MODEL file");
+    if (out && !cli_writable(out)) {
+        /* refuse before a long solve rather than lose its plan after it */
+        fprintf(stderr, "%s: error: cannot write here: %s\n", out, strerror(errno));
+        return SURETY_EINPUT;
+    }
     surety_model *model;
     int rc = cli_load_model("solve", argv[optind], n_arg, seed_arg, risk_arg, &model);
     if (rc)

@@ -7,6 +7,7 @@
 #include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "cli.h"
 
@@ -93,6 +94,26 @@ int cli_parse_double(const char *s, double *out)
         return -1;
     *out = v;
     return 0;
+}
+
+int cli_writable(const char *path)
+{
+    if (access(path, F_OK) == 0)
+        return access(path, W_OK) == 0;
+    const char *slash = strrchr(path, '/');
+    if (!slash)
+        return access(".", W_OK) == 0;
+    if (slash == path)
+        return access("/", W_OK) == 0;
+    size_t len = (size_t)(slash - path);
+    char *dir = malloc(len + 1);
+    if (!dir)
+        return 0;
+    memcpy(dir, path, len);
+    dir[len] = '\0';
+    int ok = access(dir, W_OK) == 0;
+    free(dir);
+    return ok;
 }
 
 void cli_json_string(FILE *fp, const char *s)
