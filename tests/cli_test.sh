@@ -1,0 +1,72 @@
+#!/bin/sh
+# End-to-end checks of the surety program: exit codes, files written or left
+# alone, and a solve whose plan `check` reads back. Usage: cli_test.sh SURETY SRCDIR
+set -u
+surety=$1
+src=$2
+tmp=$(mktemp -d)
+trap 'rm -rf "$tmp"' EXIT
+passed=0
+failed=0
+expect() { # expect CODE DESCRIPTION -- COMMAND...
+    want=$1; what=$2; shift 3
+    "$@" >"$tmp/out" 2>"$tmp/err"
+    got=$?
+    if [ "$got" -eq "$want" ]; then
+        passed=$((passed + 1))
+    else
+        failed=$((failed + 1))
+        echo "FAIL: $what: exit $got, expected $want"; cat "$tmp/err"
+    fi
+}
+has() { # has FILE TEXT DESCRIPTION
+    if grep -qF -- "$2" "$1"; then passed=$((passed + 1)); else
+        failed=$((failed + 1)); echo "FAIL: $3: '$2' not in $1"; cat "$1"; fi
+}
+
+tut=$src/instances/tutorial.json
+expect 0 "help" -- "$surety" --help
+expect 1 "no command" -- "$surety"
+expect 1 "unknown command" -- "$surety" frobnicate
+expect 1 "unknown option" -- "$surety" solve "$tut" --frobnicate
+expect 1 "bad -n" -- "$surety" solve "$tut" -n -5
+expect 1 "risk outside (0,1)" -- "$surety" solve "$tut" --risk 1.5
+expect 2 "missing model file" -- "$surety" solve "$tmp/none.json"
+has "$tmp/err" "cannot open" "missing model file message"
+
+# a bad model names file, line, column and field
+sed 's/"allowed": \["bay-1"\]/"allowed": ["bay-3"]/' "$tut" >"$tmp/bad.json"
+expect 2 "unknown resource" -- "$surety" solve "$tmp/bad.json"
+has "$tmp/err" "bad.json:26:35: error: jobs[4].allowed[0]: unknown resource 'bay-3' (did you mean 'bay-1'?)" "error position"
+
+# a failed run leaves an existing output file untouched
+echo keep >"$tmp/keep.csv"
+expect 2 "sample of a bad model" -- "$surety" sample "$tmp/bad.json" -o "$tmp/keep.csv"
+has "$tmp/keep.csv" "keep" "output untouched"
+expect 2 "unwritable plan path" -- "$surety" solve "$tut" -o "$tmp/no/such/dir/p.json"
+
+# solve, then check the plan it wrote; the plan is re-read by check
+expect 0 "solve the tutorial" -- "$surety" solve "$tut" --quiet -o "$tmp/plan.json"
+has "$tmp/out" "status optimal" "tutorial proven optimal"
+has "$tmp/out" "Caution:" "solve carries the caution"
+expect 0 "check the plan" -- "$surety" check "$tut" "$tmp/plan.json" --samples 20000
+has "$tmp/out" "Clopper-Pearson" "check states its interval"
+has "$tmp/out" "Caution:" "check carries the caution"
+expect 0 "check --json" -- "$surety" check "$tut" "$tmp/plan.json" --samples 2000 --json
+has "$tmp/out" '"verdict"' "check JSON has a verdict"
+
+# a plan naming an unknown job is an input error
+printf '{"plan": {"nosuchjob": "bay-1"}}\n' >"$tmp/badplan.json"
+expect 2 "plan with an unknown job" -- "$surety" check "$tut" "$tmp/badplan.json"
+
+# a node limit stops the search with exit 4 and a verified plan
+expect 4 "node limit" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --node-limit 2000 --quiet --json
+has "$tmp/out" '"stop": "node_limit"' "node limit reported"
+
+# sample then export
+expect 0 "sample" -- "$surety" sample "$tut" -n 50 -o "$tmp/s.csv"
+expect 0 "export" -- "$surety" export "$tut" -n 50 --plain -o "$tmp/p.mps"
+has "$tmp/p.mps" "ENDATA" "MPS complete"
+
+echo "$passed passed, $failed failed"
+[ "$failed" -eq 0 ]
