@@ -572,16 +572,8 @@ Test(solve, early_stop_keeps_an_honest_bound)
     /* stopped by a node limit, the reported bound must still be at least
      * the optimum found by the unlimited run (on the same instance) */
     for (uint64_t t = 0; t < 6; t++) {
-        solve_gen_params p;
-        memset(&p, 0, sizeof p);
-        p.n = 16;
-        p.m = 3;
-        p.N = 120;
-        p.eps = 0.05;
-        p.tightness = 0.5;
-        p.dist = SOLVE_GEN_LOGNORMAL;
-        p.separate = t % 3 == 2;
-        p.seed = mix(11000 + t);
+        solve_gen_params p = {.n = 16, .m = 3, .N = 120, .eps = 0.05,
+                              .tightness = 0.5, .dist = SOLVE_GEN_LOGNORMAL, .separate = t % 3 == 2, .seed = mix(11000 + t)};
         surety_model *md = solve_gen_model(&p);
         surety_scenarios *sc = solve_gen_scenarios(md, &p);
         surety_result *full = solve_ok(md, sc, NULL);
@@ -613,14 +605,7 @@ Test(solve, early_stop_keeps_an_honest_bound)
 
 Test(solve, interrupt_flag_stops_the_search)
 {
-    solve_gen_params p;
-    memset(&p, 0, sizeof p);
-    p.n = 30;
-    p.m = 3;
-    p.N = 300;
-    p.eps = 0.05;
-    p.tightness = 0.5;
-    p.seed = 5;
+    solve_gen_params p = {.n = 30, .m = 3, .N = 300, .eps = 0.05, .tightness = 0.5, .seed = 5};
     surety_model *md = solve_gen_model(&p);
     surety_scenarios *sc = solve_gen_scenarios(md, &p);
     volatile sig_atomic_t flag = 1;
@@ -641,14 +626,7 @@ Test(solve, interrupt_flag_stops_the_search)
 
 Test(solve, infeasible_required_jobs_are_named)
 {
-    solve_gen_params p;
-    memset(&p, 0, sizeof p);
-    p.n = 6;
-    p.m = 2;
-    p.N = 100;
-    p.eps = 0.05;
-    p.tightness = 0.2;
-    p.seed = 3;
+    solve_gen_params p = {.n = 6, .m = 2, .N = 100, .eps = 0.05, .tightness = 0.2, .seed = 3};
     surety_model *md = solve_gen_model(&p);
     for (size_t j = 0; j < p.n; j++)
         md->jobs[j].required = 1;
@@ -666,14 +644,7 @@ Test(solve, infeasible_required_jobs_are_named)
 
 Test(solve, empty_model_is_an_input_error)
 {
-    solve_gen_params p;
-    memset(&p, 0, sizeof p);
-    p.n = 3;
-    p.m = 2;
-    p.N = 10;
-    p.eps = 0.1;
-    p.tightness = 0.5;
-    p.seed = 1;
+    solve_gen_params p = {.n = 3, .m = 2, .N = 10, .eps = 0.1, .tightness = 0.5, .seed = 1};
     surety_model *md = solve_gen_model(&p);
     surety_scenarios *sc = solve_gen_scenarios(md, &p);
     size_t m = md->m;
@@ -699,15 +670,8 @@ Test(solve, starting_plan_is_used_when_feasible)
     /* a caller's plan is re-counted like any other: the optimum of a full
      * run, given back as a start to a run of one node, is kept; an
      * infeasible start (every job in the first resource) is ignored */
-    solve_gen_params p;
-    memset(&p, 0, sizeof p);
-    p.n = 14;
-    p.m = 3;
-    p.N = 150;
-    p.eps = 0.05;
-    p.tightness = 0.5;
-    p.dist = SOLVE_GEN_NORMAL;
-    p.seed = 77;
+    solve_gen_params p = {.n = 14, .m = 3, .N = 150, .eps = 0.05,
+                          .tightness = 0.5, .dist = SOLVE_GEN_NORMAL, .seed = 77};
     surety_model *md = solve_gen_model(&p);
     for (size_t j = 0; j < p.n; j++)
         for (size_t i = 0; i < p.m; i++)
