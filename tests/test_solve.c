@@ -572,8 +572,9 @@ Test(solve, early_stop_keeps_an_honest_bound)
     /* stopped by a node limit, the reported bound must still be at least
      * the optimum found by the unlimited run (on the same instance) */
     for (uint64_t t = 0; t < 6; t++) {
-        solve_gen_params p = {.n = 16, .m = 3, .N = 120, .eps = 0.05,
-                              .tightness = 0.5, .dist = SOLVE_GEN_LOGNORMAL, .separate = t % 3 == 2, .seed = mix(11000 + t)};
+        solve_gen_params p = {.n = 16, .m = 3, .N = 120, .eps = 0.05, .tightness = 0.5,
+                              .dist = SOLVE_GEN_LOGNORMAL, .separate = t % 3 == 2,
+                              .seed = mix(11000 + t)};
         surety_model *md = solve_gen_model(&p);
         surety_scenarios *sc = solve_gen_scenarios(md, &p);
         surety_result *full = solve_ok(md, sc, NULL);
