@@ -74,11 +74,12 @@ static double knap_joint(const surety_solver *s, size_t l)
     /* a resource whose residual is below the lightest open job's hours
      * can take no more jobs in this scenario: its residual is not counted */
     double wmin = INFINITY;
-    for (size_t t = 0; t < s->nb; t++) {
-        size_t j = s->order[t];
-        if (s->state[j] == SURETY_JOB_FREE && row[j] < wmin)
-            wmin = row[j];
-    }
+    const uint32_t *lt = s->light + l * s->nb;
+    for (size_t t = 0; t < s->nb; t++)
+        if (s->state[lt[t]] == SURETY_JOB_FREE) {
+            wmin = row[lt[t]];
+            break;
+        }
     double agg = 0, rmax = -INFINITY;
     for (size_t i = 0; i < m; i++) {
         r[i] = s->cap_hi[i] - s->load[i * N + l];

@@ -117,6 +117,16 @@ static int cmp_eff(const void *a, const void *b, void *ctx)
     return (ja > jb) - (ja < jb);
 }
 
+/* lighter hours first, ties by job index */
+static int cmp_light(const void *a, const void *b, void *ctx)
+{
+    const double *row = ctx;
+    uint32_t ja = *(const uint32_t *)a, jb = *(const uint32_t *)b;
+    if (row[ja] != row[jb])
+        return row[ja] < row[jb] ? -1 : 1;
+    return (ja > jb) - (ja < jb);
+}
+
 static void name_list(const surety_solver *s, const unsigned char *mark,
                       char *buf, size_t len)
 {
@@ -349,6 +359,17 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
         eff_ctx ctx = {s->p, s->w + l * n};
         qsort_r(e, c, sizeof *e, cmp_eff, &ctx);
     }
+    /* per scenario, the jobs to decide by hours ascending: a node finds
+     * the lightest open job of a scenario in a few steps, not O(n) */
+    s->light = surety_xmalloc(s->N * (s->nb ? s->nb : 1), sizeof *s->light);
+    if (!s->light)
+        goto oom;
+    for (size_t l = 0; l < s->N; l++) {
+        uint32_t *e = s->light + l * s->nb;
+        for (size_t t = 0; t < s->nb; t++)
+            e[t] = (uint32_t)s->order[t];
+        qsort_r(e, s->nb, sizeof *e, cmp_light, (void *)(s->w + l * n));
+    }
 
     /* identical resources (same capacity, factor and allowed jobs) are
      * interchangeable: the search opens only the first empty one */
@@ -393,5 +414,6 @@ void surety_presolve_free(surety_solver *s)
     surety_xfree(s->order);
     surety_xfree(s->bkey);
     surety_xfree(s->eff);
+    surety_xfree(s->light);
     surety_xfree(s->rclass);
 }

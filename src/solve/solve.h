@@ -65,6 +65,7 @@ struct surety_solver {
     size_t nb;
     size_t ncand;        /* candidate jobs */
     uint32_t *eff;       /* N*ncand: per scenario, candidates by p/w desc */
+    uint32_t *light;     /* N*nb: per scenario, jobs to decide by hours asc */
     int *rclass;         /* m: identical-resource class (symmetry) */
     double pscale;       /* sum |p_j|, for absolute tolerances */
 
