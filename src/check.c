@@ -470,6 +470,10 @@ surety_code surety_check(const surety_model *model, const surety_plan *plan,
     for (size_t j = 0; j < n; j++)
         if (plan->resource[j] >= 0)
             a.accepted[a.naccepted++] = j;
+    /* Only the accepted jobs' hours and profits are read below: the
+     * sampler skips the marginal transforms of the others, which leaves
+     * every accepted job's values the bytes of a full fill. */
+    surety_sampler_restrict(smp, a.accepted, a.naccepted);
 
     /* Blocks start at opt->first + multiples of B; B is a multiple of the
      * sampler's alignment, so when `first` is aligned too every block is

@@ -33,6 +33,10 @@ struct surety_sampler {
     surety_marginal *marg;     /* n prepared marginals */
     unsigned char *in_copula;  /* n flags: correlated with some other job */
     unsigned char *normal;     /* n flags: draws a normal, not a uniform */
+    unsigned char *need;       /* n flags: job j is among cols */
+    size_t *cols;              /* ncols jobs ascending whose hours and
+                                  profits fills write (all n by default) */
+    size_t ncols;
     double *L;                 /* n*n Cholesky factor (copy), or NULL */
     double *u;                 /* B*n: draws of jobs outside the copula */
     double *z;                 /* B*n: correlated normals of copula jobs,
@@ -160,6 +164,32 @@ static size_t line_round(size_t count)
     return (count + 7) & ~(size_t)7;
 }
 
+int surety_sampler_restrict(surety_sampler *smp, const size_t *cols,
+                            size_t ncols)
+{
+    size_t n = smp->n;
+    if (!cols) {
+        for (size_t j = 0; j < n; j++) {
+            smp->cols[j] = j;
+            smp->need[j] = 1;
+        }
+        smp->ncols = n;
+        return 0;
+    }
+    if (ncols > n)
+        return -1;
+    for (size_t c = 0; c < ncols; c++)
+        if (cols[c] >= n || (c > 0 && cols[c] <= cols[c - 1]))
+            return -1;
+    memset(smp->need, 0, n);
+    for (size_t c = 0; c < ncols; c++) {
+        smp->cols[c] = cols[c];
+        smp->need[cols[c]] = 1;
+    }
+    smp->ncols = ncols;
+    return 0;
+}
+
 surety_sampler *surety_sampler_new(const surety_model *model)
 {
     if (surety_sampler_check(model, NULL) != SURETY_OK)
@@ -174,13 +204,15 @@ surety_sampler *surety_sampler_new(const surety_model *model)
     smp->marg = surety_xcalloc(n, sizeof *smp->marg);
     smp->in_copula = surety_xcalloc(n, 1);
     smp->normal = surety_xcalloc(n, 1);
+    smp->need = surety_xmalloc(n ? n : 1, 1);
+    smp->cols = surety_xmalloc(n ? n : 1, sizeof *smp->cols);
     /* One block holds L, u and z, each 64-byte aligned: the product's
      * arithmetic must not depend on where malloc happened to put them. */
     size_t nL = model->chol ? line_round(n * n) : 0;
     size_t nb = line_round(B * n);
     size_t total = nL + 2 * nb;
-    if (!smp->marg || !smp->in_copula || !smp->normal ||
-        surety_mul_overflows(B, n) ||
+    if (!smp->marg || !smp->in_copula || !smp->normal || !smp->need ||
+        !smp->cols || surety_mul_overflows(B, n) ||
         !(smp->mem = surety_xmalloc(total + 8, sizeof(double)))) {
         surety_sampler_free(smp);
         return NULL;
@@ -205,6 +237,7 @@ surety_sampler *surety_sampler_new(const surety_model *model)
     }
     for (size_t j = 0; j < n; j++)
         smp->normal[j] = smp->in_copula[j] || smp->marg[j].direct;
+    surety_sampler_restrict(smp, NULL, 0);
     surety_dense_single_thread();
     return smp;
 }
@@ -216,6 +249,8 @@ void surety_sampler_free(surety_sampler *smp)
     surety_xfree(smp->marg);
     surety_xfree(smp->in_copula);
     surety_xfree(smp->normal);
+    surety_xfree(smp->need);
+    surety_xfree(smp->cols);
     surety_xfree(smp->mem);
     surety_xfree(smp);
 }
@@ -229,18 +264,26 @@ static uint64_t aux_key(size_t j)
 
 /* Draws of scenarios l0 .. l0+rows-1, one row per scenario: copula
  * normals into z (when z is given; 0 in the other columns), every other
- * job's normal or uniform into u. */
+ * needed job's normal or uniform into u. A job outside the copula and
+ * outside cols still takes its one output of the generator, unconverted. */
 static void draw_rows(surety_sampler *smp, uint64_t stream, size_t l0,
                       size_t rows, double *z)
 {
     size_t n = smp->n;
     const unsigned char *cop = smp->in_copula, *nor = smp->normal;
+    const unsigned char *need = smp->need;
     for (size_t r = 0; r < rows; r++) {
         uint64_t h = surety_hash_stream(smp->seed, stream, (uint64_t)(l0 + r));
         surety_rng rng = surety_rng_from(h);
         double *urow = smp->u + r * n;
         double *zrow = z ? z + r * n : NULL;
         for (size_t j = 0; j < n; j++) {
+            if (!cop[j] && !need[j]) {
+                surety_rng_next(&rng);
+                if (zrow)
+                    zrow[j] = 0.0;
+                continue;
+            }
             /* One output of the scenario's generator per job; a normal's
              * rare extra numbers come from a generator keyed by (scenario,
              * job), so no job's numbers depend on another job's law. */
@@ -271,12 +314,16 @@ static void ensure_block(surety_sampler *smp, uint64_t stream, size_t b)
     smp->cache_block = b;
 }
 
-/* Rows r0 .. r0+rows-1 of the current u/z block to hours and profits. */
+/* Rows r0 .. r0+rows-1 of the current u/z block to hours and profits,
+ * in the columns of the jobs in cols only. Each value is computed by the
+ * same operations whichever other columns are wanted. */
 static void transform(const surety_sampler *smp, size_t r0, size_t rows,
                       double *hours, double *profit)
 {
-    size_t n = smp->n;
-    for (size_t j = 0; j < n; j++) {
+    size_t n = smp->n, nc = smp->ncols;
+    const size_t *cols = smp->cols;
+    for (size_t c = 0; c < nc; c++) {
+        size_t j = cols[c];
         if (smp->in_copula[j])
             surety_dist_apply_normal(&smp->marg[j], smp->z + r0 * n + j, n,
                                      rows, hours + j, n);
@@ -290,15 +337,18 @@ static void transform(const surety_sampler *smp, size_t r0, size_t rows,
     /* A negative duration is impossible: hours are clamped at 0 (this also
      * turns -0.0 into +0.0). Truncation (min/max) is the proper tool for
      * shaping the lower tail; the clamp only guards wide normals. */
-    for (size_t t = 0; t < rows * n; t++)
-        if (hours[t] <= 0.0)
-            hours[t] = 0.0;
+    for (size_t r = 0; r < rows; r++)
+        for (size_t c = 0; c < nc; c++)
+            if (hours[r * n + cols[c]] <= 0.0)
+                hours[r * n + cols[c]] = 0.0;
     if (!profit)
         return;
     for (size_t r = 0; r < rows; r++)
-        for (size_t j = 0; j < n; j++)
+        for (size_t c = 0; c < nc; c++) {
+            size_t j = cols[c];
             profit[r * n + j] = surety_profit_of(&smp->model->jobs[j].profit,
                                                  hours[r * n + j]);
+        }
 }
 
 void surety_sampler_fill(surety_sampler *smp, uint64_t stream, size_t first,

@@ -46,6 +46,17 @@ surety_sampler *surety_sampler_new(const surety_model *model);
 void surety_sampler_fill(surety_sampler *smp, uint64_t stream, size_t first,
                          size_t count, double *hours, double *profit);
 
+/* Limits the marginal transforms of later fills to the jobs cols[0 ..
+ * ncols-1] (ascending, each < n; the jobs a plan accepts, say): their
+ * columns of hours and profit get exactly the bytes a full fill gives,
+ * while the other columns are left unwritten. Every job's random numbers
+ * are still drawn and the copula still applied to all of them, so a
+ * scenario stays a function of (seed, stream, l) alone. cols = NULL
+ * restores all jobs. Returns 0, or -1 (nothing changed) when cols is not
+ * ascending or names a job out of range. */
+int surety_sampler_restrict(surety_sampler *smp, const size_t *cols,
+                            size_t ncols);
+
 void surety_sampler_free(surety_sampler *smp);
 
 #endif

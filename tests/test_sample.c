@@ -1074,6 +1074,108 @@ Test(repro, windows_equal_rows)
     }
 }
 
+/* A fill restricted to some jobs (as the checker restricts it to a plan's
+ * accepted jobs) writes those jobs' columns with the bytes of the full
+ * fill of `surety sample` and leaves the other columns alone. Reference:
+ * the full fill itself (the restriction must change no value). Laws: the
+ * five mixed jobs independent, all in the copula, and only A and B
+ * correlated (C, D, E outside the copula, so their draws are skipped);
+ * then the demo model, 18 jobs of four laws under a copula. */
+static const char *pair_corr =
+    "\"correlation\": {\"pairs\": [[\"A\", \"B\", 0.6]]}";
+
+static void check_restricted(const surety_model *model, const size_t *cols,
+                             size_t ncols, size_t first, size_t count)
+{
+    size_t n = surety_model_jobs(model);
+    surety_scenarios *ref = draw(model, 5, first, count);
+    surety_sampler *smp = surety_sampler_new(model);
+    cr_assert_not_null(smp);
+    cr_assert_eq(surety_sampler_restrict(smp, cols, ncols), 0);
+    double *h = surety_xmalloc(count * n, sizeof *h);
+    double *p = surety_xmalloc(count * n, sizeof *p);
+    /* a sentinel in every cell: unwanted columns must keep it */
+    for (size_t t = 0; t < count * n; t++)
+        h[t] = p[t] = -12345.0;
+    surety_sampler_fill(smp, 5, first, count, h, p);
+    unsigned char *want = surety_xcalloc(n, 1);
+    for (size_t c = 0; c < ncols; c++)
+        want[cols[c]] = 1;
+    for (size_t l = 0; l < count; l++)
+        for (size_t j = 0; j < n; j++) {
+            size_t t = l * n + j;
+            if (want[j]) {
+                cr_assert(memcmp(&h[t], &ref->hours[t], sizeof h[t]) == 0 &&
+                              memcmp(&p[t], &ref->profit[t], sizeof p[t]) == 0,
+                          "scenario %zu job %zu: %.17g vs %.17g", first + l, j,
+                          h[t], ref->hours[t]);
+            } else {
+                cr_assert(h[t] == -12345.0 && p[t] == -12345.0,
+                          "job %zu was not asked for but written", j);
+            }
+        }
+    /* back to every job: the full fill again */
+    cr_assert_eq(surety_sampler_restrict(smp, NULL, 0), 0);
+    surety_sampler_fill(smp, 5, first, count, h, p);
+    cr_assert(memcmp(h, ref->hours, count * n * sizeof *h) == 0);
+    cr_assert(memcmp(p, ref->profit, count * n * sizeof *p) == 0);
+    surety_xfree(want);
+    surety_xfree(h);
+    surety_xfree(p);
+    surety_sampler_free(smp);
+    surety_scenarios_free(ref);
+}
+
+Test(repro, restricted_fill_equals_full_fill)
+{
+    const char *corr[3] = {"", mixed_corr, pair_corr};
+    static const size_t sets[][5] = {{0, 1, 2, 3, 4}, {1, 3}, {4}, {2, 4},
+                                     {0, 2, 3}};
+    static const size_t sizes[] = {5, 2, 1, 2, 3};
+    for (int k = 0; k < 3; k++) {
+        surety_model *model = model_with(mixed_jobs, corr[k], 100, 11);
+        for (size_t s = 0; s < sizeof sizes / sizeof *sizes; s++) {
+            check_restricted(model, sets[s], sizes[s], 0, 1000);
+            check_restricted(model, sets[s], sizes[s], 37, 150);
+        }
+        /* no job at all: only the draws */
+        check_restricted(model, sets[0], 0, 10, 70);
+        surety_model_free(model);
+    }
+
+    surety_model *demo = NULL;
+    surety_error err;
+    cr_assert_eq(surety_model_read(SURETY_SOURCE_ROOT "/instances/demo.json",
+                                   &demo, &err),
+                 SURETY_OK, "%s", err.message);
+    static const size_t plan[7] = {1, 3, 7, 8, 11, 14, 17};
+    check_restricted(demo, plan, 7, 0, 2048);
+    check_restricted(demo, plan, 7, 100, 333);
+    static const size_t odd[3] = {0, 9, 16};
+    check_restricted(demo, odd, 3, 1000, 500);
+    surety_model_free(demo);
+}
+
+Test(repro, restrict_rejects_bad_columns)
+{
+    surety_model *model = model_with(mixed_jobs, mixed_corr, 100, 11);
+    surety_sampler *smp = surety_sampler_new(model);
+    static const size_t unsorted[2] = {3, 1}, twice[2] = {2, 2},
+                        beyond[2] = {1, 5};
+    cr_assert_eq(surety_sampler_restrict(smp, unsorted, 2), -1);
+    cr_assert_eq(surety_sampler_restrict(smp, twice, 2), -1);
+    cr_assert_eq(surety_sampler_restrict(smp, beyond, 2), -1);
+    /* a refused restriction changes nothing: still the full fill */
+    surety_scenarios *ref = draw(model, 2, 0, 64);
+    double h[64 * 5], p[64 * 5];
+    surety_sampler_fill(smp, 2, 0, 64, h, p);
+    cr_assert(memcmp(h, ref->hours, sizeof h) == 0);
+    cr_assert(memcmp(p, ref->profit, sizeof p) == 0);
+    surety_scenarios_free(ref);
+    surety_sampler_free(smp);
+    surety_model_free(model);
+}
+
 /* ------------------------------------------------------------------ */
 /* Scenario sets: allocation, tables, CSV                              */
 /* ------------------------------------------------------------------ */
