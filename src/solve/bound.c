@@ -71,8 +71,9 @@ static double knap_joint(const surety_solver *s, size_t l)
     const double *row = s->w + l * n;
     double res[64];
     double *r = m <= 64 ? res : s->kn;
-    /* a resource whose residual is below the lightest open job's hours
-     * can take no more jobs in this scenario: its residual is not counted */
+    /* a resource whose residual is below the lightest open job's hours,
+     * or that no open job can still enter (possible_pairs), takes no more
+     * jobs in this scenario: its residual is not counted */
     double wmin = INFINITY;
     const uint32_t *lt = s->light + l * s->nb;
     for (size_t t = 0; t < s->nb; t++)
@@ -80,13 +81,11 @@ static double knap_joint(const surety_solver *s, size_t l)
             wmin = row[lt[t]];
             break;
         }
-    double agg = 0, rmax = -INFINITY;
+    double agg = 0;
     for (size_t i = 0; i < m; i++) {
         r[i] = s->cap_hi[i] - s->load[i * N + l];
-        if (r[i] > 0 && r[i] >= wmin)
+        if (r[i] > 0 && r[i] >= wmin && s->ropen[i])
             agg += r[i];
-        if (r[i] > rmax)
-            rmax = r[i];
     }
     if (s->req_left) {
         for (size_t t = 0; t < s->nb; t++) {
@@ -95,7 +94,7 @@ static double knap_joint(const surety_solver *s, size_t l)
                 continue;
             double wj = row[j], best = -INFINITY;
             for (size_t i = 0; i < m; i++)
-                if (s->allowed[j * m + i] && r[i] > best)
+                if (s->pxcur[j * m + i] && r[i] > best)
                     best = r[i];
             if (wj > best)
                 return -INFINITY;
@@ -118,13 +117,11 @@ static double knap_joint(const surety_solver *s, size_t l)
         if (s->state[j] != SURETY_JOB_FREE)
             continue;
         double wj = row[j];
-        double fit = rmax;
-        if (!s->anyres[j]) {
-            fit = -INFINITY;
-            for (size_t i = 0; i < m; i++)
-                if (s->allowed[j * m + i] && r[i] > fit)
-                    fit = r[i];
-        }
+        const unsigned char *pj = s->pxcur + j * m;
+        double fit = -INFINITY;
+        for (size_t i = 0; i < m; i++)
+            if (pj[i] && r[i] > fit)
+                fit = r[i];
         if (wj > fit)
             continue; /* fits no resource on its own in this scenario */
         if (brk < 0) {
@@ -170,7 +167,7 @@ static double knap_lagr(const surety_solver *s, size_t i, size_t l, double *x)
     double v = 0, c = r;
     for (size_t t = 0; t < s->nl; t++) {
         uint32_t j = e[t];
-        if (s->state[j] != SURETY_JOB_FREE || !s->allowed[j * m + i])
+        if (s->state[j] != SURETY_JOB_FREE || !s->pxcur[j * m + i])
             continue;
         double wj = row[j];
         if (wj > r)
@@ -211,7 +208,7 @@ static double lagr_quantiles(surety_solver *s)
         double unc = 0;
         for (size_t t = 0; t < s->nb; t++) {
             size_t j = s->order[t];
-            if (s->state[j] == SURETY_JOB_FREE && s->allowed[j * m + i])
+            if (s->state[j] == SURETY_JOB_FREE && s->pxcur[j * m + i])
                 unc += s->rp[j];
         }
         size_t c = 0, livew = 0;
@@ -256,6 +253,75 @@ static double lam_free(const surety_solver *s)
  * A scenario in which either bound, evaluated as if the completion held
  * there, cannot beat the cutoff must be among the failed ones (rule 4): it
  * is fixed dead for the subtree. */
+/* Fills row `row` of pxs: pair (j, i) stays possible when job j is open,
+ * the pair was possible at the parent (row 0: allowed after presolve) and
+ * placing j in i overloads i, on top of the committed load, in at most b
+ * live scenarios of i's group (b = k - dead weight). Why: a completion
+ * that beats the cutoff fails every dead scenario and at most b live ones
+ * (METHODS.md s.7 rule 4), so a pair that alone breaks more is never part
+ * of it; the presolve's rule for single pairs, applied at every node.
+ * Down the tree loads only grow and live scenarios only die, so a pair
+ * out at the parent stays out, and for a resource whose load did not
+ * change the parent's overload count is an upper bound on the child's:
+ * only pairs of the resource just loaded, or whose count bound exceeds
+ * the new b, are recounted. Returns 0 when an open required job has no
+ * possible pair left (the node is infeasible). */
+static int possible_pairs(surety_solver *s, size_t row)
+{
+    size_t n = s->n, m = s->m, N = s->N, k = s->k, nm = n * m;
+    unsigned char *px = s->pxs + row * nm;
+    uint32_t *po = s->pxo + row * nm;
+    const unsigned char *pp = row > 0 ? px - nm : NULL;
+    const uint32_t *ppo = row > 0 ? po - nm : NULL;
+    long changed = row > 0 ? s->frames[row - 1].res : -1;
+    s->pxcur = px;
+    memset(s->ropen, 0, m);
+    int ok = 1;
+    for (size_t t = 0; t < s->nb; t++) {
+        size_t j = s->order[t];
+        unsigned char *pj = px + j * m;
+        if (s->state[j] != SURETY_JOB_FREE) {
+            memset(pj, 0, m);
+            continue;
+        }
+        const double *wj = s->wt + j * N;
+        int any = 0;
+        for (size_t i = 0; i < m; i++) {
+            size_t g = s->separate ? i : 0, b = k - s->dead_w[g], q = j * m + i;
+            int was = pp ? pp[q] : s->allowed[q];
+            pj[i] = 0;
+            if (!was)
+                continue;
+            if (pp && (long)i != changed && ppo[q] <= b) {
+                pj[i] = 1;
+                po[q] = ppo[q];
+                any = 1;
+                continue;
+            }
+            const double *ld = s->load + i * N;
+            const unsigned char *dead = s->dead + g * N;
+            double hi = s->cap_hi[i];
+            size_t over = 0;
+            for (size_t l0 = 0; l0 < N && over <= b; l0 += 64) {
+                size_t l1 = l0 + 64 < N ? l0 + 64 : N;
+                for (size_t l = l0; l < l1; l++)
+                    over += (size_t)(ld[l] + wj[l] > hi &&
+                                     dead[l] == SURETY_LIVE) * s->cnt[l];
+            }
+            if (over <= b) {
+                pj[i] = 1;
+                po[q] = (uint32_t)over;
+                any = 1;
+            }
+        }
+        for (size_t i = 0; i < m; i++)
+            s->ropen[i] |= pj[i];
+        if (!any && s->required[j])
+            ok = 0;
+    }
+    return ok;
+}
+
 double surety_bound_node(surety_solver *s, double cutoff, size_t row)
 {
     size_t N = s->N, G = s->G, k = s->k, m = s->m;
@@ -264,6 +330,8 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
     for (size_t g = 0; g < G; g++)
         if (s->dead_w[g] > k)
             return -INFINITY;
+    if (!possible_pairs(s, row))
+        return -INFINITY;
 
     double unc = 0;
     for (size_t t = 0; t < s->nb; t++) {
@@ -466,6 +534,7 @@ int surety_bound_init(surety_solver *s)
         surety_xfree(g);
         return -1;
     }
+    possible_pairs(s, 0);
     double bestL = INFINITY, theta = 1;
     int stall = 0;
     double base = s->fixed_profit + s->req_profit;

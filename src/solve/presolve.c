@@ -317,17 +317,11 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
         *infeasible = 1;
 
     s->wt = surety_xmalloc(n * s->N, sizeof *s->wt);
-    s->anyres = surety_xcalloc(n, 1);
-    if (!s->wt || !s->anyres)
+    if (!s->wt)
         goto oom;
     for (size_t l = 0; l < s->N; l++)
         for (size_t j = 0; j < n; j++)
             s->wt[j * s->N + l] = s->w[l * n + j];
-    for (size_t j = 0; j < n; j++) {
-        s->anyres[j] = 1;
-        for (size_t i = 0; i < m; i++)
-            s->anyres[j] &= s->allowed[j * m + i];
-    }
 
     /* branching order: every job that is not fixed out */
     s->nb = 0;
@@ -403,7 +397,6 @@ void surety_presolve_free(surety_solver *s)
 {
     surety_xfree(s->w);
     surety_xfree(s->wt);
-    surety_xfree(s->anyres);
     surety_xfree(s->cnt);
     surety_xfree(s->cap);
     surety_xfree(s->cap_hi);

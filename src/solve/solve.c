@@ -203,6 +203,9 @@ static void solver_free(surety_solver *s)
     surety_xfree(s->ubw);
     surety_xfree(s->kn);
     surety_xfree(s->ubst);
+    surety_xfree(s->pxs);
+    surety_xfree(s->pxo);
+    surety_xfree(s->ropen);
     surety_xfree(s->rix);
     surety_xfree(s->inc_plan);
     surety_xfree(s->open_bound);
@@ -227,13 +230,17 @@ static int search_alloc(surety_solver *s)
     s->ubw = surety_xmalloc(N, sizeof *s->ubw);
     s->kn = surety_xmalloc(m, sizeof *s->kn);
     s->ubst = surety_xmalloc((nb + 2) * N, sizeof *s->ubst);
+    s->pxs = surety_xmalloc((nb + 2) * n * m, 1);
+    s->pxo = surety_xmalloc((nb + 2) * n * m, sizeof *s->pxo);
+    s->ropen = surety_xmalloc(m, 1);
     s->rix = surety_xmalloc(N, sizeof *s->rix);
     s->open_bound = surety_xmalloc(nb + 1, sizeof *s->open_bound);
     s->tplan = surety_xmalloc(n, sizeof *s->tplan);
     s->tfix = surety_xmalloc(n, sizeof *s->tfix);
     if (!s->state || !s->nin || !s->load || !s->dead || !s->dead_w ||
         !s->trail || !s->saved_load || !s->saved_dead_w || !s->frames ||
-        !s->ub || !s->ubw || !s->kn || !s->ubst || !s->rix || !s->open_bound ||
+        !s->ub || !s->ubw || !s->kn || !s->ubst || !s->pxs || !s->pxo || !s->ropen ||
+        !s->rix || !s->open_bound ||
         !s->tplan || !s->tfix)
         return -1;
     for (size_t j = 0; j < n; j++)

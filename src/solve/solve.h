@@ -52,7 +52,6 @@ struct surety_solver {
     size_t G;            /* constraint groups: 1 (joint) or m (separate) */
     double *w;           /* N*n base hours, scenario-major, merged rows */
     double *wt;          /* n*N the same, job-major (load updates) */
-    unsigned char *anyres; /* n: allowed in every resource */
     unsigned *cnt;       /* N multiplicities (sum = N0) */
     double *cap;         /* m capacities in base hours, C_i / f_i */
     double *cap_hi;      /* m: above this a load is clearly overloaded */
@@ -65,6 +64,14 @@ struct surety_solver {
     size_t nb;
     size_t ncand;        /* candidate jobs */
     uint32_t *eff;       /* N*ncand: per scenario, candidates by p/w desc */
+    /* (job, resource) pairs still possible at a node: a pair that alone
+     * overloads more live scenarios than the node may still fail is out
+     * for the whole subtree (bound.c, possible_pairs) */
+    unsigned char *pxs;  /* (nb+2)*n*m per depth */
+    uint32_t *pxo;       /* (nb+2)*n*m: upper bound on the live weight a
+                          * possible pair overloads alone */
+    const unsigned char *pxcur; /* the current node's row of pxs */
+    unsigned char *ropen; /* m: some open job can still enter resource i */
     uint32_t *light;     /* N*nb: per scenario, jobs to decide by hours asc */
     int *rclass;         /* m: identical-resource class (symmetry) */
     double pscale;       /* sum |p_j|, for absolute tolerances */
