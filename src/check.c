@@ -142,37 +142,73 @@ void surety_check_report_free(surety_check_report *rep)
     memset(rep, 0, sizeof *rep);
 }
 
-/* The k-th smallest (0-based) of v[0..len-1] by quickselect (Hoare
- * partition, median-of-three pivot); v is reordered so that everything
- * after position k is >= the result. Expected O(len). */
-static double select_kth(double *v, size_t len, size_t k)
+static void swap_at(double *v, size_t a, size_t b)
 {
-    size_t lo = 0, hi = len - 1;
-    while (lo < hi) {
-        size_t mid = lo + (hi - lo) / 2;
-        double a = v[lo], b = v[mid], c = v[hi];
-        double pivot = a < b ? (b < c ? b : (a < c ? c : a))
-                             : (a < c ? a : (b < c ? c : b));
-        size_t i = lo, j = hi;
-        for (;;) {
-            while (v[i] < pivot)
-                i++;
-            while (v[j] > pivot)
-                j--;
-            if (i >= j)
-                break;
-            double t = v[i];
-            v[i] = v[j];
-            v[j] = t;
+    double t = v[a];
+    v[a] = v[b];
+    v[b] = t;
+}
+
+/* Rearranges v[left..right] so that v[k] holds its (k-left)-th smallest
+ * value, everything before it is <= and everything after it >= (no NaN).
+ * Floyd & Rivest (1975), "Algorithm 489: The algorithm SELECT", CACM
+ * 18(3):173: on a long range, first select within a sample window of
+ * about n^(2/3) elements placed around the expected rank, so the pivot
+ * v[k] lands within a few elements of its final place and the one
+ * partition pass over the range discards nearly all of it; about
+ * n + min(k, n-k) comparisons against 2n to 3n for median-of-three
+ * quickselect. The sentinels at both ends keep the scans in range. */
+static void select_range(double *v, size_t left, size_t right, size_t k)
+{
+    while (right > left) {
+        if (right - left > 600) {
+            double n = (double)(right - left + 1);
+            double i = (double)(k - left + 1);
+            double z = log(n);
+            double s = 0.5 * exp(2.0 * z / 3.0);
+            double sd = 0.5 * sqrt(z * s * (n - s) / n) *
+                        (i < 0.5 * n ? -1.0 : 1.0);
+            double nl = (double)k - i * s / n + sd;
+            double nr = (double)k + (n - i) * s / n + sd;
+            size_t lo = nl > (double)left ? (size_t)nl : left;
+            size_t hi = nr < (double)right ? (size_t)nr : right;
+            select_range(v, lo, hi, k);
+        }
+        double t = v[k];
+        size_t i = left, j = right;
+        swap_at(v, left, k);
+        if (v[right] > t)
+            swap_at(v, right, left);
+        while (i < j) {
+            swap_at(v, i, j);
             i++;
             j--;
+            while (v[i] < t)
+                i++;
+            while (v[j] > t)
+                j--;
         }
-        /* now v[lo..j] <= pivot <= v[j+1..hi] */
-        if (k <= j)
-            hi = j;
+        if (v[left] == t) {
+            swap_at(v, left, j);
+        } else {
+            j++;
+            swap_at(v, j, right);
+        }
+        /* now v[left..j-1] <= t = v[j] <= v[j+1..right] */
+        if (j == k)
+            return;
+        if (j < k)
+            left = j + 1;
         else
-            lo = j + 1;
+            right = j - 1;
     }
+}
+
+/* The k-th smallest (0-based) of v[0..len-1]; reorders v as
+ * select_range does. */
+static double select_kth(double *v, size_t len, size_t k)
+{
+    select_range(v, 0, len - 1, k);
     return v[k];
 }
 
@@ -186,10 +222,21 @@ static double min_from(const double *v, size_t from, size_t len)
     return x;
 }
 
+/* Largest of v[0..end-1], end >= 1. */
+static double max_to(const double *v, size_t end)
+{
+    double x = v[0];
+    for (size_t t = 1; t < end; t++)
+        if (v[t] > x)
+            x = v[t];
+    return x;
+}
+
 /* Percentile q of `zeros` implicit zeros followed by the values v[0..len-1]
  * (all >= 0 when zeros > 0): linear interpolation between the order
  * statistics at position h = (total-1) q, the rule of R's type 7 and of
- * numpy.percentile's default. */
+ * numpy.percentile's default. The neighbouring order statistic is the
+ * extreme of the shorter side left by the selection. */
 static double percentile(double *v, size_t len, size_t zeros, double q)
 {
     size_t total = len + zeros;
@@ -207,8 +254,16 @@ static double percentile(double *v, size_t len, size_t zeros, double q)
         x = 0;
         y = len ? min_from(v, 0, len) : 0;
     } else {
-        x = select_kth(v, len, k - zeros);
-        y = k - zeros + 1 < len ? min_from(v, k - zeros + 1, len) : x;
+        size_t kk = k - zeros;
+        if (!(frac > 0) || kk + 1 >= len) {
+            x = y = select_kth(v, len, kk);
+        } else if (kk < len / 2) {
+            y = select_kth(v, len, kk + 1);
+            x = max_to(v, kk + 1);
+        } else {
+            x = select_kth(v, len, kk);
+            y = min_from(v, kk + 1, len);
+        }
     }
     return frac > 0 ? x + frac * (y - x) : x;
 }

@@ -259,12 +259,12 @@ static void window_batch(const surety_marginal *mg, int from_normal,
     for (size_t at = 0; at < count; at += QBATCH) {
         size_t len = count - at < QBATCH ? count - at : QBATCH;
         const double *src = in + at * istride;
-        for (size_t r = 0; r < len; r++) {
-            double u = src[r * istride];
-            if (from_normal)
-                u = surety_norm_cdf(u);
-            p[r] = p0 + u * spw;
-        }
+        for (size_t r = 0; r < len; r++)
+            p[r] = src[r * istride];
+        if (from_normal)
+            surety_norm_cdf_batch(p, len);
+        for (size_t r = 0; r < len; r++)
+            p[r] = p0 + p[r] * spw;
         surety_norm_quantile_batch(p, len);
         double *dst = out + at * ostride;
         for (size_t r = 0; r < len; r++) {
@@ -339,7 +339,8 @@ void surety_dist_apply_normal(const surety_marginal *mg, const double *in,
     for (size_t at = 0; at < count; at += QBATCH) {
         size_t len = count - at < QBATCH ? count - at : QBATCH;
         for (r = 0; r < len; r++)
-            u[r] = surety_norm_cdf(in[(at + r) * istride]);
+            u[r] = in[(at + r) * istride];
+        surety_norm_cdf_batch(u, len);
         surety_dist_apply_uniform(mg, u, 1, len, out + at * ostride, ostride);
     }
 }

@@ -315,8 +315,9 @@ static void ensure_block(surety_sampler *smp, uint64_t stream, size_t b)
 }
 
 /* Rows r0 .. r0+rows-1 of the current u/z block to hours and profits,
- * in the columns of the jobs in cols only. Each value is computed by the
- * same operations whichever other columns are wanted. */
+ * in the columns of the jobs in cols only, one column at a time while it
+ * is in cache. Each value is computed by the same operations whichever
+ * other columns are wanted. */
 static void transform(const surety_sampler *smp, size_t r0, size_t rows,
                       double *hours, double *profit)
 {
@@ -324,31 +325,29 @@ static void transform(const surety_sampler *smp, size_t r0, size_t rows,
     const size_t *cols = smp->cols;
     for (size_t c = 0; c < nc; c++) {
         size_t j = cols[c];
+        double *h = hours + j;
         if (smp->in_copula[j])
             surety_dist_apply_normal(&smp->marg[j], smp->z + r0 * n + j, n,
-                                     rows, hours + j, n);
+                                     rows, h, n);
         else if (smp->normal[j])
             surety_dist_apply_normal(&smp->marg[j], smp->u + r0 * n + j, n,
-                                     rows, hours + j, n);
+                                     rows, h, n);
         else
             surety_dist_apply_uniform(&smp->marg[j], smp->u + r0 * n + j, n,
-                                      rows, hours + j, n);
+                                      rows, h, n);
+        /* A negative duration is impossible: hours are clamped at 0 (this
+         * also turns -0.0 into +0.0). Truncation (min/max) is the proper
+         * tool for shaping the lower tail; the clamp only guards wide
+         * normals. */
+        for (size_t r = 0; r < rows; r++)
+            if (h[r * n] <= 0.0)
+                h[r * n] = 0.0;
+        if (!profit)
+            continue;
+        const surety_profit *rule = &smp->model->jobs[j].profit;
+        for (size_t r = 0; r < rows; r++)
+            profit[r * n + j] = surety_profit_of(rule, h[r * n]);
     }
-    /* A negative duration is impossible: hours are clamped at 0 (this also
-     * turns -0.0 into +0.0). Truncation (min/max) is the proper tool for
-     * shaping the lower tail; the clamp only guards wide normals. */
-    for (size_t r = 0; r < rows; r++)
-        for (size_t c = 0; c < nc; c++)
-            if (hours[r * n + cols[c]] <= 0.0)
-                hours[r * n + cols[c]] = 0.0;
-    if (!profit)
-        return;
-    for (size_t r = 0; r < rows; r++)
-        for (size_t c = 0; c < nc; c++) {
-            size_t j = cols[c];
-            profit[r * n + j] = surety_profit_of(&smp->model->jobs[j].profit,
-                                                 hours[r * n + j]);
-        }
 }
 
 void surety_sampler_fill(surety_sampler *smp, uint64_t stream, size_t first,

@@ -24,6 +24,10 @@
  * for NaN. */
 double surety_norm_cdf(double x);
 
+/* Phi of x[0..count-1] in place, the same bits as surety_norm_cdf on each
+ * element; for the sampler's inner loops. */
+void surety_norm_cdf_batch(double *x, size_t count);
+
 /* Standard normal quantile Phi^{-1}(p) for p in (0,1), by Wichura's
  * algorithm AS 241 (PPND16), relative error about 1e-16.
  * p = 0 gives -INFINITY, p = 1 gives +INFINITY, p outside [0,1] or NaN
