@@ -149,8 +149,11 @@ static void dive(surety_solver *s, size_t d, double node_bound)
     size_t j = s->order[d], m = s->m;
     child ch[m + 1];
     size_t nc = 0;
+    /* pairs ruled out at this node (bound.c, possible_pairs: row d is
+     * this node's) lead to no improving plan */
+    const unsigned char *px = s->pxs + d * s->n * m;
     for (size_t i = 0; i < m; i++) {
-        if (!s->allowed[j * m + i])
+        if (!px[j * m + i])
             continue;
         /* symmetry: among identical empty resources only the first */
         int skip = 0;
