@@ -272,9 +272,18 @@ static void draw_rows(surety_sampler *smp, uint64_t stream, size_t l0,
     size_t n = smp->n;
     const unsigned char *cop = smp->in_copula, *nor = smp->normal;
     const unsigned char *need = smp->need;
+    /* The rows' seeds first: their hash and SplitMix chains are
+     * independent, so the CPU overlaps them instead of waiting for each
+     * at the start of its row. */
+    uint64_t hs[B];
+    surety_rng gen[B];
     for (size_t r = 0; r < rows; r++) {
-        uint64_t h = surety_hash_stream(smp->seed, stream, (uint64_t)(l0 + r));
-        surety_rng rng = surety_rng_from(h);
+        hs[r] = surety_hash_stream(smp->seed, stream, (uint64_t)(l0 + r));
+        gen[r] = surety_rng_from(hs[r]);
+    }
+    for (size_t r = 0; r < rows; r++) {
+        uint64_t h = hs[r];
+        surety_rng rng = gen[r];
         double *urow = smp->u + r * n;
         double *zrow = z ? z + r * n : NULL;
         for (size_t j = 0; j < n; j++) {

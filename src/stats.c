@@ -143,9 +143,16 @@ void surety_norm_quantile_batch(double *p, size_t count)
         for (size_t t = len; t < QPASS; t++)
             in[t] = 0.5;
         central_pass(in, w);
-        for (size_t t = 0; t < len; t++)
-            x[t] = fabs(x[t] - 0.5) <= 0.425 ? w[t]
-                                              : surety_norm_quantile(x[t]);
+        /* the tail elements listed without a branch, then redone, so a
+         * random mix of regions costs no mispredicted jumps */
+        size_t tail[QPASS], nt = 0;
+        for (size_t t = 0; t < len; t++) {
+            tail[nt] = t;
+            nt += !(fabs(x[t] - 0.5) <= 0.425);
+            x[t] = w[t];
+        }
+        for (size_t k = 0; k < nt; k++)
+            x[tail[k]] = surety_norm_quantile(in[tail[k]]);
     }
 }
 
