@@ -527,7 +527,8 @@ surety_code surety_check(const surety_model *model, const surety_plan *plan,
             a.accepted[a.naccepted++] = j;
     /* Only the accepted jobs' hours and profits are read below: the
      * sampler skips the marginal transforms of the others, which leaves
-     * every accepted job's values the bytes of a full fill. */
+     * every accepted job's values the bytes of a full fill. (The list is
+     * ascending and in range, so the restriction cannot be refused.) */
     surety_sampler_restrict(smp, a.accepted, a.naccepted);
 
     /* Blocks start at opt->first + multiples of B; B is a multiple of the

@@ -611,3 +611,58 @@ Test(check, in_sample_and_blocks_equal_direct_recount)
     surety_plan_free(plan);
     surety_model_free(model);
 }
+
+/* The checker transforms only the accepted jobs' hours; on the demo model
+ * (18 jobs of four laws under a Gaussian copula, half of them rejected)
+ * its counts and profit mean must equal a recount on the full sample of
+ * the same stream and window (reference: the full sampler, `surety
+ * sample`, and the recount above). */
+Test(check, restricted_sampling_equals_full_sample)
+{
+    surety_model *model = NULL;
+    surety_error err;
+    cr_assert_eq(surety_model_read(SURETY_SOURCE_ROOT "/instances/demo.json",
+                                   &model, &err),
+                 SURETY_OK, "%s", err.message);
+    size_t n = model->n, m = model->m;
+    cr_assert_eq(m, 3);
+    /* a plan of the demo: 9 of 18 jobs accepted */
+    static const long place[18] = {2, 1, 0, 1, -1, -1, -1, -1, -1,
+                                   1, -1, 0, 2, -1, -1, 0, 2, -1};
+    surety_plan *plan = surety_plan_new(model);
+    for (size_t j = 0; j < n; j++)
+        surety_plan_set(plan, j, place[j]);
+    surety_check_options opt;
+    surety_check_options_init(&opt);
+    opt.samples = 20011;
+    opt.first = 130;
+    opt.in_sample = 0;
+    surety_check_report rep;
+    cr_assert_eq(surety_check(model, plan, &opt, &rep, &err), SURETY_OK,
+                 "%s", err.message);
+
+    surety_scenarios *sc = NULL;
+    cr_assert_eq(surety_sample(model, SURETY_STREAM_CHECK, 130, 20011, &sc,
+                               NULL),
+                 SURETY_OK);
+    size_t per[3];
+    size_t fit = recount(model, plan, sc, per);
+    cr_assert_eq(rep.fit, fit);
+    for (size_t i = 0; i < m; i++)
+        cr_assert_eq(rep.resource[i].overload_prob,
+                     (double)(20011 - per[i]) / 20011.0);
+    double s = 0;
+    for (size_t l = 0; l < sc->N; l++) {
+        double p = 0;
+        for (size_t j = 0; j < n; j++)
+            if (place[j] >= 0)
+                p += sc->profit[l * n + j];
+        s += p;
+    }
+    cr_assert(rep.profit_mean == s / 20011.0, "%.17g vs %.17g",
+              rep.profit_mean, s / 20011.0);
+    surety_scenarios_free(sc);
+    surety_check_report_free(&rep);
+    surety_plan_free(plan);
+    surety_model_free(model);
+}
