@@ -280,13 +280,32 @@ static uint64_t next_rand(uint64_t *x)
     return z ^ (z >> 31);
 }
 
-/* Iterated local search: drop a few placed jobs at random, re-insert the
- * outside jobs greedily in a randomly perturbed key order, keep the result
- * when it is more profitable (METHODS.md s.8 rules 1-2 as the repair). The
- * iteration count, not the clock, bounds the work, so runs repeat. */
-static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters)
+/* A random allowed resource that keeps job j's group within the
+ * allowance, tried from a random first one (the greedy's best_resource
+ * always picks the same, which leaves the search few ways out). */
+static long random_fit(surety_solver *s, size_t j, uint64_t *seed)
 {
-    size_t n = s->n, nc = s->ncand;
+    size_t m = s->m, start = (size_t)(next_rand(seed) % m);
+    for (size_t t = 0; t < m; t++) {
+        size_t i = (start + t) % m;
+        if (s->allowed[j * m + i] && fail_after(s, i, j, SIZE_MAX) <= s->k)
+            return (long)i;
+    }
+    return -1;
+}
+
+/* Iterated local search (a large-neighbourhood search in the sense of
+ * Shaw 1998): empty one resource, or drop a few placed jobs at random;
+ * re-insert the outside jobs in a randomly perturbed key order, each into
+ * its best resource or, half of the time, a random one that fits (METHODS.md
+ * s.8 rules 1-2 as the repair); keep the result when it is more
+ * profitable. Iteration counts, not the clock, bound the work, so runs
+ * repeat; the caller's seed carries the random sequence across calls.
+ * Stops after `patience` iterations without improvement. */
+static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters,
+                size_t patience, uint64_t *seed)
+{
+    size_t n = s->n, nc = s->ncand, m = s->m;
     long *cur = surety_xmalloc(n, sizeof *cur);
     size_t *ord = surety_xmalloc(nc ? nc : 1, sizeof *ord);
     double *key = surety_xmalloc(n, sizeof *key);
@@ -296,10 +315,9 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters)
         surety_xfree(key);
         return;
     }
-    uint64_t seed = 0x5eed ^ (uint64_t)n * 1000003u ^ (uint64_t)s->N;
     double best = profit_of(s, plan);
     size_t since = 0; /* iterations since the last improvement */
-    for (size_t it = 0; it < iters && since < 150; it++, since++) {
+    for (size_t it = 0; it < iters && since < patience; it++, since++) {
         memcpy(cur, plan, n * sizeof *cur);
         reset(s, cur);
         size_t placed = 0;
@@ -309,33 +327,45 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters)
         }
         if (placed == 0)
             break;
-        size_t drop = 1 + next_rand(&seed) % 3;
-        for (size_t d = 0; d < drop && placed > 0; d++) {
-            size_t pick = next_rand(&seed) % placed, c = 0;
+        if (m > 1 && next_rand(seed) % 10 < 3) {
+            size_t i = (size_t)(next_rand(seed) % m);
             for (size_t t = 0; t < nc; t++) {
                 size_t j = s->hordp[t];
-                if (cur[j] < 0 || (fixed && fixed[j] != SURETY_JOB_FREE))
-                    continue;
-                if (c++ == pick) {
-                    change(s, j, (size_t)cur[j], -1);
+                if (cur[j] == (long)i && !(fixed && fixed[j] != SURETY_JOB_FREE)) {
+                    change(s, j, i, -1);
                     cur[j] = SURETY_JOB_OUT;
-                    placed--;
-                    break;
+                }
+            }
+        } else {
+            size_t drop = 1 + next_rand(seed) % 5;
+            for (size_t d = 0; d < drop && placed > 0; d++) {
+                size_t pick = next_rand(seed) % placed, c = 0;
+                for (size_t t = 0; t < nc; t++) {
+                    size_t j = s->hordp[t];
+                    if (cur[j] < 0 || (fixed && fixed[j] != SURETY_JOB_FREE))
+                        continue;
+                    if (c++ == pick) {
+                        change(s, j, (size_t)cur[j], -1);
+                        cur[j] = SURETY_JOB_OUT;
+                        placed--;
+                        break;
+                    }
                 }
             }
         }
         for (size_t t = 0; t < nc; t++) {
             size_t j = s->hord[t];
-            double u = (double)(next_rand(&seed) >> 11) * 0x1.0p-53;
+            double u = (double)(next_rand(seed) >> 11) * 0x1.0p-53;
             key[j] = s->hkey[j] * (0.7 + 0.6 * u);
             ord[t] = j;
         }
         qsort_r(ord, nc, sizeof *ord, cmp_key_ext, key);
+        int rnd = next_rand(seed) & 1;
         for (size_t t = 0; t < nc; t++) {
             size_t j = ord[t];
             if (cur[j] != SURETY_JOB_OUT || (fixed && fixed[j] != SURETY_JOB_FREE))
                 continue;
-            long i = best_resource(s, j, 0);
+            long i = rnd ? random_fit(s, j, seed) : best_resource(s, j, 0);
             if (i >= 0) {
                 change(s, j, (size_t)i, 1);
                 cur[j] = i;
@@ -456,7 +486,9 @@ int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
             /* about 1e7 elementary steps in all */
             double per = (double)s->n * (double)s->m * (double)s->N + 1;
             double it = 1e7 / per;
-            ils(s, plan, fixed, it < 20 ? 20 : it > 1000 ? 1000 : (size_t)it);
+            uint64_t seed = 0x5eed ^ (uint64_t)s->n * 1000003u ^ (uint64_t)s->N;
+            ils(s, plan, fixed, it < 20 ? 20 : it > 1000 ? 1000 : (size_t)it,
+                150, &seed);
             polish(s, plan, fixed);
         }
         if (ok)
@@ -465,6 +497,21 @@ int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
             surety_solve_offer(s, plan);
     }
     return ok;
+}
+
+int surety_heur_improve(surety_solver *s, long *plan, size_t iters)
+{
+    if (!s->hkey)
+        return 0;
+    double before = profit_of(s, plan), tol = 1e-12 * (s->pscale + 1);
+    reset(s, plan);
+    if (!within(s))
+        return 0;
+    ils(s, plan, NULL, iters, iters, &s->hseed);
+    if (!(profit_of(s, plan) > before + tol))
+        return 0;
+    polish(s, plan, NULL);
+    return within(s);
 }
 
 void surety_heur_free(surety_solver *s)

@@ -122,6 +122,8 @@ struct surety_solver {
     long *hplan;         /* n */
     long *hsave;         /* n */
     long *tplan, *tfix;  /* n each: plans built by the tree */
+    uint64_t hseed;      /* random sequence of the search's improvement runs */
+    size_t hiters;       /* improvement iterations per run in the tree */
 
     /* ---- incumbent ---- */
     int have_inc;
@@ -168,6 +170,12 @@ void surety_bound_free(surety_solver *s);
  * satisfies the allowance by the heuristic's own count. */
 int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
                          int polish);
+
+/* heur.c: the iterated local search from a complete plan (the
+ * incumbent), `iters` iterations continuing the solver's own random
+ * sequence, then local search; returns 1 when plan became more profitable
+ * and stays within the allowance by the heuristic's count. */
+int surety_heur_improve(surety_solver *s, long *plan, size_t iters);
 
 void surety_heur_free(surety_solver *s);
 

@@ -145,6 +145,18 @@ static void dive(surety_solver *s, size_t d, double node_bound)
         if (surety_heur_complete(s, s->tfix, s->tplan, 0) &&
             surety_solve_offer(s, s->tplan))
             surety_solve_log_progress(s, 1, 'H');
+        /* and a few iterations of the local search from the incumbent,
+         * sized in solve.c to a small share of the search's work; a search
+         * that runs long is unlikely to close soon, so its plan matters
+         * more: the share grows with the node count, up to 8 times */
+        if (s->have_inc && s->hiters > 0) {
+            size_t grow = 1 + (size_t)s->nodes / 131072;
+            memcpy(s->tplan, s->inc_plan, s->n * sizeof *s->tplan);
+            if (surety_heur_improve(s, s->tplan,
+                                    s->hiters * (grow < 8 ? grow : 8)) &&
+                surety_solve_offer(s, s->tplan))
+                surety_solve_log_progress(s, 1, 'L');
+        }
     }
     size_t j = s->order[d], m = s->m;
     child ch[m + 1];
