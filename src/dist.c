@@ -293,10 +293,17 @@ void surety_dist_apply_uniform(const surety_marginal *mg, const double *in,
         return;
     }
     case SURETY_DIST_TRIANGULAR: {
+        /* tri_quantile with both sides computed and one chosen: the side
+         * of a random p is a coin toss the branch predictor loses, and
+         * each side is the scalar expression, so the same bits */
         double p0 = mg->p0, pw = mg->pw, lo = mg->lo, hi = mg->hi;
-        for (r = 0; r < count; r++)
-            out[r * ostride] =
-                clamp(tri_quantile(mg, p0 + in[r * istride] * pw), lo, hi);
+        double a = mg->a, b = mg->b, c = mg->c, fc = mg->fc;
+        for (r = 0; r < count; r++) {
+            double p = p0 + in[r * istride] * pw;
+            double left = a + sqrt(p * (c - a) * (b - a));
+            double right = c - sqrt((1.0 - p) * (c - a) * (c - b));
+            out[r * ostride] = clamp(p <= fc ? left : right, lo, hi);
+        }
         return;
     }
     case SURETY_DIST_NORMAL:
