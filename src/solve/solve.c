@@ -95,7 +95,7 @@ static double rel_gap(double obj, double bound)
 }
 
 /* One progress line: a mark ('*' new incumbent from the tree, 'H' from a
- * heuristic, ' ' timed), elapsed seconds, nodes, open subtrees on the
+ * heuristic, 'L' from the local search run from the incumbent, ' ' timed), elapsed seconds, nodes, open subtrees on the
  * dive path, incumbent, bound, gap. Header every 20 lines. */
 void surety_solve_log_progress(surety_solver *s, int force, char mark)
 {
