@@ -323,6 +323,9 @@ typedef struct surety_solve_options {
      * with SURETY_STOP_INTERRUPT (set it from a signal handler) */
     volatile sig_atomic_t *interrupt;
     const surety_plan *start; /* optional starting plan (a hint) */
+    /* nodes of one depth-first dive before the search returns to the open
+     * node of best bound; 0: the default (4096); < 0: depth first only */
+    long dive_nodes;
 } surety_solve_options;
 
 void surety_solve_options_init(surety_solve_options *opt);

@@ -322,6 +322,86 @@ Test(solve, brute_force_many_scenarios)
     }
 }
 
+/* The best-bound pool: dives of 1 or 3 nodes send almost every open
+ * child through the pool (restored from the root, bounds recomputed
+ * without parent rows), and depth-first only (< 0) never does; all must
+ * find the enumerated optimum. */
+Test(solve, short_dives_and_depth_first_agree_with_enumeration)
+{
+    static const long dives[] = {1, 3, -1};
+    for (uint64_t t = 0; t < 120; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(5000 + t), 8, 3, t % 4 == 0 ? 200 : 30);
+        if (p.n == 8 && p.m == 3)
+            p.n = 7;
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        for (size_t v = 0; v < sizeof dives / sizeof *dives; v++) {
+            surety_solve_options o;
+            surety_solve_options_init(&o);
+            o.dive_nodes = dives[v];
+            surety_result *res = solve_ok(md, sc, &o);
+            check_result(md, sc, res);
+            cr_assert_eq(surety_result_status(res),
+                         feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE,
+                         "instance %lu, dives of %ld: status %s",
+                         (unsigned long)t, dives[v],
+                         surety_status_name(surety_result_status(res)));
+            if (feas)
+                cr_assert(fabs(surety_result_objective(res) - bf) <=
+                              1e-9 * (1 + fabs(bf)),
+                          "instance %lu (n=%zu m=%zu N=%zu %s), dives of "
+                          "%ld: solver %.12g, enumeration %.12g",
+                          (unsigned long)t, p.n, p.m, p.N,
+                          p.separate ? "separate" : "joint", dives[v],
+                          surety_result_objective(res), bf);
+            surety_result_free(res);
+        }
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+}
+
+/* Larger trees (the greedy plans rarely are optimal here, so the search
+ * itself must find the optimum): every dive length reaches the optimum of
+ * the depth-first search, which the tests above check against enumeration
+ * and CBC. */
+Test(solve, best_bound_pool_keeps_the_optimum_on_larger_trees)
+{
+    static const long dives[] = {1, 7, 100};
+    for (uint64_t t = 0; t < 8; t++) {
+        solve_gen_params p = {.n = 14 + t % 3, .m = 2 + t % 2, .N = 60 + 20 * (t % 3),
+                              .eps = t % 2 ? 0.05 : 0.1, .tightness = 0.5,
+                              .dist = SOLVE_GEN_LOGNORMAL, .separate = t % 4 == 3,
+                              .seed = mix(13000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = -1;
+        surety_result *dfs = solve_ok(md, sc, &o);
+        cr_assert_eq(surety_result_status(dfs), SURETY_OPTIMAL);
+        double opt = surety_result_objective(dfs);
+        for (size_t v = 0; v < sizeof dives / sizeof *dives; v++) {
+            o.dive_nodes = dives[v];
+            surety_result *res = solve_ok(md, sc, &o);
+            check_result(md, sc, res);
+            cr_assert_eq(surety_result_status(res), SURETY_OPTIMAL);
+            cr_assert(fabs(surety_result_objective(res) - opt) <=
+                          1e-9 * (1 + fabs(opt)),
+                      "instance %lu, dives of %ld: %.12g, depth first %.12g",
+                      (unsigned long)t, dives[v], surety_result_objective(res),
+                      opt);
+            surety_result_free(res);
+        }
+        surety_result_free(dfs);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+}
+
 /* ---- random small instances against CBC ---- */
 
 #include <time.h>
@@ -580,10 +660,12 @@ Test(solve, early_stop_keeps_an_honest_bound)
         surety_result *full = solve_ok(md, sc, NULL);
         cr_assert_eq(surety_result_status(full), SURETY_OPTIMAL);
         double opt = surety_result_objective(full);
-        for (long lim = 1; lim <= 64; lim *= 4) {
+        for (long lim = 1; lim <= 1024; lim *= 4) {
             surety_solve_options o;
             surety_solve_options_init(&o);
             o.node_limit = lim;
+            /* stopped with nodes waiting in the best-bound pool too */
+            o.dive_nodes = (lim / 4) % 2 ? 5 : 0;
             surety_result *res = solve_ok(md, sc, &o);
             check_result(md, sc, res);
             if (surety_result_stop(res) == SURETY_STOP_NODES) {

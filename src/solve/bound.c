@@ -271,8 +271,9 @@ static int possible_pairs(surety_solver *s, size_t row)
     size_t n = s->n, m = s->m, N = s->N, k = s->k, nm = n * m;
     unsigned char *px = s->pxs + row * nm;
     uint32_t *po = s->pxo + row * nm;
-    const unsigned char *pp = row > 0 ? px - nm : NULL;
-    const uint32_t *ppo = row > 0 ? po - nm : NULL;
+    int parent = row > 0 && row != s->restart_row;
+    const unsigned char *pp = parent ? px - nm : NULL;
+    const uint32_t *ppo = parent ? po - nm : NULL;
     long changed = row > 0 ? s->frames[row - 1].res : -1;
     s->pxcur = px;
     memset(s->ropen, 0, m);
@@ -355,7 +356,8 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
          * in for a fresh knapsack; only the scenarios that can decide the
          * quantile are recomputed, and every so often all of them. */
         double *cur = s->ubst + row * N;
-        const double *prev = row > 0 ? s->ubst + (row - 1) * N : NULL;
+        const double *prev = row > 0 && row != s->restart_row
+                                 ? s->ubst + (row - 1) * N : NULL;
         double slack = 1e-12 * (s->pscale + 1), cap = base + unc;
         size_t b = k - s->dead_w[0];
         double tau = INFINITY;

@@ -40,6 +40,7 @@ void surety_solve_options_init(surety_solve_options *opt)
     opt->log_ctx = NULL;
     opt->interrupt = NULL;
     opt->start = NULL;
+    opt->dive_nodes = 0;
 }
 
 double surety_solve_now(void)
@@ -80,6 +81,8 @@ static double global_bound(const surety_solver *s)
     for (size_t d = 0; d <= s->depth && d <= s->nb; d++)
         if (s->open_bound[d] > b)
             b = s->open_bound[d];
+    if (s->npool > 0 && s->pool[0].bound > b)
+        b = s->pool[0].bound;
     return b;
 }
 
@@ -95,8 +98,9 @@ static double rel_gap(double obj, double bound)
 }
 
 /* One progress line: a mark ('*' new incumbent from the tree, 'H' from a
- * heuristic, 'L' from the local search run from the incumbent, ' ' timed), elapsed seconds, nodes, open subtrees on the
- * dive path, incumbent, bound, gap. Header every 20 lines. */
+ * heuristic, 'L' from the local search run from the incumbent, ' '
+ * timed), elapsed seconds, nodes, open subtrees (waiting in the pool and
+ * on the dive path), incumbent, bound, gap. Header every 20 lines. */
 void surety_solve_log_progress(surety_solver *s, int force, char mark)
 {
     const surety_solve_options *o = s->opt;
@@ -111,7 +115,7 @@ void surety_solve_log_progress(surety_solver *s, int force, char mark)
         "       gap";
     if (s->log_lines++ % 20 == 0)
         o->log(o->log_ctx, SURETY_LOG_PROGRESS, head);
-    size_t open = 0;
+    size_t open = s->npool;
     if (s->open_bound)
         for (size_t d = 0; d <= s->depth && d <= s->nb; d++)
             open += s->open_bound[d] > -INFINITY;

@@ -28,6 +28,15 @@ enum { SURETY_LIVE = 0, SURETY_DEAD_LOAD = 1, SURETY_DEAD_BOUND = 2 };
 
 typedef struct surety_solver surety_solver;
 
+/* An open node waiting in the best-bound pool (tree.c): the resources
+ * (or SURETY_JOB_OUT) of the first `depth` jobs of the branching order,
+ * and a bound on every completion of it (its parent's). */
+typedef struct solve_open {
+    double bound;
+    size_t depth;
+    long *dec;
+} solve_open;
+
 /* One search depth's undo record (the trail keeps the rest). */
 typedef struct solve_frame {
     size_t trail_mark;   /* trail length before this depth's changes */
@@ -139,6 +148,12 @@ struct surety_solver {
     int stop;            /* 0 running, else a surety_stop + 1 */
     double root_bound;
     double *open_bound;  /* nb+1: best bound of unvisited children per depth */
+    solve_open *pool;    /* max-heap on bound of the open nodes not on the path */
+    size_t npool, cpool;
+    long spill_at;       /* node count at which the dive hands its open
+                          * children to the pool; 0: never */
+    size_t restart_row;  /* depth of the node restored from the pool: its
+                          * row has no valid parent row (bound.c) */
     size_t depth;
 };
 

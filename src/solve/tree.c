@@ -4,6 +4,7 @@
 #include <math.h>
 #include <string.h>
 
+#include "alloc.h"
 #include "solve/solve.h"
 
 static size_t group_of(const surety_solver *s, size_t i)
@@ -121,6 +122,72 @@ static int out_of_limits(surety_solver *s)
     return s->stop != 0;
 }
 
+/* ---- the pool of open nodes: a max-heap on bound ---- */
+
+static int pool_before(const solve_open *a, const solve_open *b)
+{
+    /* larger bound first; among equal bounds the deeper node */
+    if (a->bound != b->bound)
+        return a->bound > b->bound;
+    return a->depth > b->depth;
+}
+
+/* Adds the node "decisions of depths 0..d-1 as on the path, then c at
+ * depth d" with the given bound. Returns 0 when out of memory (the caller
+ * then keeps searching depth first). */
+static int pool_push(surety_solver *s, size_t d, long c, double bound)
+{
+    if (s->npool == s->cpool) {
+        size_t cap = s->cpool ? 2 * s->cpool : 256;
+        solve_open *np = surety_xrealloc(s->pool, cap, sizeof *np);
+        if (!np)
+            return 0;
+        s->pool = np;
+        s->cpool = cap;
+    }
+    long *dec = surety_xmalloc(d + 1, sizeof *dec);
+    if (!dec)
+        return 0;
+    for (size_t t = 0; t < d; t++)
+        dec[t] = s->state[s->order[t]];
+    dec[d] = c;
+    size_t at = s->npool++;
+    solve_open e = {bound, d + 1, dec};
+    while (at > 0 && pool_before(&e, &s->pool[(at - 1) / 2])) {
+        s->pool[at] = s->pool[(at - 1) / 2];
+        at = (at - 1) / 2;
+    }
+    s->pool[at] = e;
+    return 1;
+}
+
+static solve_open pool_pop(surety_solver *s)
+{
+    solve_open top = s->pool[0], last = s->pool[--s->npool];
+    size_t at = 0, n = s->npool;
+    for (;;) {
+        size_t c = 2 * at + 1;
+        if (c >= n)
+            break;
+        if (c + 1 < n && pool_before(&s->pool[c + 1], &s->pool[c]))
+            c++;
+        if (!pool_before(&s->pool[c], &last))
+            break;
+        s->pool[at] = s->pool[c];
+        at = c;
+    }
+    if (n > 0)
+        s->pool[at] = last;
+    return top;
+}
+
+/* The pool holds at most about 256 MB of open nodes; beyond it the dives
+ * run to the end (depth first), which needs no more memory. */
+static size_t pool_max(const surety_solver *s)
+{
+    return ((size_t)256 << 20) / (sizeof(solve_open) + (s->nb + 1) * sizeof(long));
+}
+
 typedef struct child {
     long c;
     double b;
@@ -211,6 +278,17 @@ static void dive(surety_solver *s, size_t d, double node_bound)
         double cut = cutoff_of(s);
         if (!(node_bound > cut))
             break;
+        if (s->spill_at > 0 && s->nodes >= s->spill_at &&
+            s->npool < pool_max(s)) {
+            /* the dive has had its share: the children not yet visited
+             * wait in the pool, and the search moves to the best bound */
+            size_t u = t;
+            while (u < nc && pool_push(s, d, ch[u].c, node_bound))
+                u++;
+            if (u == nc)
+                break;
+            t = u; /* out of memory: go on depth first */
+        }
         s->open_bound[d] = t + 1 < nc ? node_bound : -INFINITY;
         if (apply(s, d, j, ch[t].c)) {
             double b = surety_bound_node(s, cut, d + 1);
@@ -227,20 +305,82 @@ static void dive(surety_solver *s, size_t d, double node_bound)
     s->open_bound[d] = -INFINITY;
 }
 
+/* Best bound with depth-first dives: the open node of best bound is
+ * restored (its decisions applied from the root: loads and overloads are
+ * exact, the scenarios its ancestors fixed are recomputed by its own
+ * bound, whose row then has no parent row) and searched depth first for
+ * `dive_nodes` nodes; the children its dive has not visited by then go
+ * back to the pool. The root is the first such node. */
 double surety_tree_search(surety_solver *s)
 {
+    long budget = s->opt->dive_nodes == 0 ? 4096 : s->opt->dive_nodes;
+    double lost = -INFINITY; /* bound of a node that found no place */
     double cut = cutoff_of(s);
     double b = surety_bound_node(s, cut, 0);
     s->root_bound = b;
     if (b > cut) {
         try_partial(s);
+        s->spill_at = budget > 0 ? s->nodes + budget : 0;
         dive(s, 0, b);
+    }
+    while (!s->stop && s->npool > 0) {
+        solve_open e = pool_pop(s);
+        cut = cutoff_of(s);
+        if (!(e.bound > cut)) {
+            /* the best waiting bound cannot win: neither can the rest */
+            surety_xfree(e.dec);
+            while (s->npool > 0)
+                surety_xfree(pool_pop(s).dec);
+            break;
+        }
+        size_t d = 0;
+        int ok = 1;
+        for (; d < e.depth && ok; d++)
+            ok = apply(s, d, s->order[d], e.dec[d]);
+        /* d decisions applied (the last one may have failed) */
+        if (ok) {
+            s->restart_row = d;
+            s->open_bound[d] = e.bound; /* reported while it is evaluated */
+            s->depth = d;
+            double nb = surety_bound_node(s, cut, d);
+            s->restart_row = 0;
+            if (nb > cut) {
+                try_partial(s);
+                if (nb > cutoff_of(s)) {
+                    s->spill_at = s->nodes + budget;
+                    dive(s, d, nb);
+                }
+            }
+            s->open_bound[d] = -INFINITY;
+        }
+        if (s->stop) {
+            /* keep the node's bound for the report: back into the pool */
+            int kept = 0;
+            if (d > 0) {
+                /* the path is still applied: push the node itself */
+                long last = e.dec[d - 1];
+                undo(s, d - 1);
+                kept = pool_push(s, d - 1, last, e.bound);
+                d--;
+            }
+            while (d > 0)
+                undo(s, --d);
+            surety_xfree(e.dec);
+            if (!kept)
+                lost = e.bound;
+            break;
+        }
+        while (d > 0)
+            undo(s, --d);
+        surety_xfree(e.dec);
     }
     if (!s->stop)
         return -INFINITY;
-    double open = -INFINITY;
+    double open = lost;
     for (size_t d = 0; d <= s->nb; d++)
         if (s->open_bound[d] > open)
             open = s->open_bound[d];
+    if (s->npool > 0 && s->pool[0].bound > open)
+        open = s->pool[0].bound;
     return open;
 }
