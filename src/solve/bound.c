@@ -254,7 +254,8 @@ static double lam_free(const surety_solver *s)
  * there, cannot beat the cutoff must be among the failed ones (rule 4): it
  * is fixed dead for the subtree. */
 /* Fills row `row` of pxs: pair (j, i) stays possible when job j is open,
- * the pair was possible at the parent (row 0: allowed after presolve) and
+ * the pair was possible at the parent (row 0, or a node restored from
+ * the best-bound pool: allowed after presolve) and
  * placing j in i overloads i, on top of the committed load, in at most b
  * live scenarios of i's group (b = k - dead weight). Why: a completion
  * that beats the cutoff fails every dead scenario and at most b live ones
