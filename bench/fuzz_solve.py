@@ -5,7 +5,7 @@
 
 usage (from the repository root, with the Python that has numpy and scipy):
     nice -n 15 /usr/bin/python3 bench/fuzz_solve.py --surety build-fuzz/surety \\
-        --count 500 --seed 1 [--minutes 40] [--keep DIR] [--regress DIR] [--verbose]
+        --count 500 --seed 1 [--minutes 40] [--large] [--keep DIR] [--regress DIR] [--verbose]
 
 Every instance is a pure function of (--seed, instance index): rerun one with
 `--seed S --first I --count 1 --keep DIR` to get its model file and the commands' files.
@@ -140,14 +140,20 @@ def profit_spec(rng, kind, mu):
     return p
 
 
-def make_model(seed, index):
+def make_model(seed, index, large=False):
     """A random model dict plus a description (kind and features) and, for the 'table'
-    kind, the rows of its scenario table (the caller writes it beside the model)."""
-    rng = random.Random("%d/%d" % (seed, index))
-    kind = rng.choice(KINDS + ("mixed", "mixed", "discrete", "linked"))
+    kind, the rows of its scenario table (the caller writes it beside the model). large:
+    only the largest sizes and the kinds that give the search a real tree."""
+    rng = random.Random("%d/%d%s" % (seed, index, "/large" if large else ""))
+    if large:
+        kind = rng.choice(("mixed", "discrete", "linked", "loose", "table"))
+    else:
+        kind = rng.choice(KINDS + ("mixed", "mixed", "discrete", "linked"))
     # Mostly small models, where every reference finishes in a second; now and then the
     # largest sizes of the campaign (n up to 14, N up to 80).
-    if rng.random() < 0.85:
+    if large:
+        n, m, N = rng.randint(10, 14), rng.randint(2, 4), rng.randint(20, 80)
+    elif rng.random() < 0.85:
         n, m, N = rng.randint(3, 9), rng.randint(1, 3), rng.randint(5, 40)
     else:
         n, m, N = rng.randint(6, 14), rng.randint(1, 4), rng.randint(5, 80)
@@ -197,7 +203,8 @@ def make_model(seed, index):
                     job["allowed"] = allowed
                     restricted = True
     required = 0
-    p_req = 0.6 if kind == "infeasible" else (0.0 if kind == "empty" else 0.12)
+    p_req = 0.6 if kind == "infeasible" else (0.0 if kind == "empty" else
+                                               0.03 if large else 0.12)
     for job in jobs:
         if rng.random() < p_req:
             job["required"] = True
@@ -642,7 +649,7 @@ def compare(inst, res, plan_path, ref, surety, path):
     return problems, vst
 
 
-def limited_checks(inst, res_opt, ref, surety, path, rng):
+def limited_checks(inst, res_opt, ref, surety, path, rng, stats):
     """Solves again under a tiny time or node limit: whatever comes back must be consistent
     with the reference optimum (plan feasible and no better; bound not below it)."""
     problems = []
@@ -657,6 +664,7 @@ def limited_checks(inst, res_opt, ref, surety, path, rng):
         runs += 1
         st = res["status"]
         tag = " ".join(extra)
+        stats["limited_%s_%s" % (extra[0][2:6], st)] += 1
         if vst == "infeasible":
             if st in ("optimal", "feasible"):
                 problems.append("%s: status %s on an infeasible model" % (tag, st))
@@ -689,7 +697,7 @@ def run_one(model, table, features, surety, work, limit, stats, rng, do_limits):
     problems, vst = compare(inst, res, plan_path, ref, surety, path)
     nlim = 0
     if do_limits and vst in ("optimal", "infeasible"):
-        p2, nlim = limited_checks(inst, res, ref, surety, path, rng)
+        p2, nlim = limited_checks(inst, res, ref, surety, path, rng, stats)
         problems += p2
     return inst, res, ref, problems, vst, nlim
 
@@ -802,6 +810,8 @@ def main(argv):
                     help="share of instances also solved under tiny time/node limits")
     ap.add_argument("--cbc-limit", type=float, default=CBC_LIMIT_S,
                     help="seconds per reference solve (default %d)" % CBC_LIMIT_S)
+    ap.add_argument("--large", action="store_true",
+                    help="only n 10-14, m 2-4, N 20-80 and kinds with deeper search trees")
     ap.add_argument("--keep", metavar="DIR", help="keep every instance's files under DIR")
     ap.add_argument("--regress", default=os.path.join(ROOT, "instances", "regress"),
                     help="where minimised disagreements are written")
@@ -817,11 +827,12 @@ def main(argv):
     stats = collections.Counter()
     by = collections.defaultdict(collections.Counter)
     bad = []
+    nodes = []
     done = 0
     for idx in range(a.first, a.first + a.count):
         if a.minutes and time.time() - t_start > a.minutes * 60:
             break
-        model, table, features = make_model(a.seed, idx)
+        model, table, features = make_model(a.seed, idx, a.large)
         work = os.path.join(a.keep, "i%05d" % idx) if a.keep else \
             tempfile.mkdtemp(prefix="surety-fuzz-")
         os.makedirs(work, exist_ok=True)
@@ -840,6 +851,7 @@ def main(argv):
         done += 1
         stats["limited_runs"] += nlim
         stats["status_" + res["status"]] += 1
+        nodes.append(int(res.get("nodes") or 0))
         stats["ref_" + str(vst)] += 1
         for src, (st, _) in ref["sources"].items():
             stats["src_%s_%s" % (src, st)] += 1
@@ -915,6 +927,15 @@ def main(argv):
     print("instances with two finished references: %d; empty plan optimal: %d; every job "
           "accepted: %d; limited runs: %d" % (stats["two_refs"], stats["empty_optimal"],
                                              stats["full_plan"], stats["limited_runs"]))
+    print("limited runs by status: %s" % ", ".join(
+        "%s %d" % (k[8:], v) for k, v in sorted(stats.items()) if k.startswith("limited_")
+        and k != "limited_runs"))
+    if nodes:
+        nodes.sort()
+        print("surety nodes per instance: median %d, 90th percentile %d, max %d; %d instances "
+              "over 100 nodes, %d over 1000" % (
+                  nodes[len(nodes) // 2], nodes[int(0.9 * (len(nodes) - 1))], nodes[-1],
+                  sum(1 for v in nodes if v > 100), sum(1 for v in nodes if v > 1000)))
     print("seconds: surety %.1f, cbc %.1f, enumeration %.1f, highs %.1f" % (
         stats["surety_s"], stats["cbc_s"], stats["enum_s"], stats["highs_s"]))
     print("\n| feature | value | runs | optimal | infeasible | no reference | disagree |")
