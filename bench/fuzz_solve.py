@@ -649,7 +649,7 @@ def compare(inst, res, plan_path, ref, surety, path):
     return problems, vst
 
 
-def limited_checks(inst, res_opt, ref, surety, path, rng, stats):
+def limited_checks(inst, ref, surety, path, rng, stats):
     """Solves again under a tiny time or node limit: whatever comes back must be consistent
     with the reference optimum (plan feasible and no better; bound not below it)."""
     problems = []
@@ -697,7 +697,7 @@ def run_one(model, table, features, surety, work, limit, stats, rng, do_limits):
     problems, vst = compare(inst, res, plan_path, ref, surety, path)
     nlim = 0
     if do_limits and vst in ("optimal", "infeasible"):
-        p2, nlim = limited_checks(inst, res, ref, surety, path, rng, stats)
+        p2, nlim = limited_checks(inst, ref, surety, path, rng, stats)
         problems += p2
     return inst, res, ref, problems, vst, nlim
 
