@@ -213,6 +213,12 @@ static void solver_free(surety_solver *s)
     surety_xfree(s->rix);
     surety_xfree(s->inc_plan);
     surety_xfree(s->open_bound);
+    /* nodes still waiting when a limit stopped the search */
+    for (size_t e = 0; e < s->npool; e++)
+        surety_xfree(s->pool[e].dec);
+    surety_xfree(s->pool);
+    s->pool = NULL;
+    s->npool = s->cpool = 0;
     surety_xfree(s->tplan);
     surety_xfree(s->tfix);
 }
