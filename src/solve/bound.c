@@ -243,16 +243,6 @@ static double lam_free(const surety_solver *s)
     return v;
 }
 
-/* The node bound is the smaller of two valid bounds:
- *  - aggregated (joint only; METHODS.md s.7 rule 3): a completion that
- *    beats the cutoff fits all but at most b = k - dead of the live
- *    scenarios; in each one it fits, its extra profit is at most the
- *    knapsack value kn_l over the summed residual capacity, so it is at
- *    most the (b+1)-th smallest kn_l (weighted by multiplicity);
- *  - per resource with Lagrangian prices (lagr_quantiles above).
- * A scenario in which either bound, evaluated as if the completion held
- * there, cannot beat the cutoff must be among the failed ones (rule 4): it
- * is fixed dead for the subtree. */
 /* Fills row `row` of pxs: pair (j, i) stays possible when job j is open,
  * the pair was possible at the parent (row 0, or a node restored from
  * the best-bound pool: allowed after presolve) and
@@ -324,6 +314,16 @@ static int possible_pairs(surety_solver *s, size_t row)
     return ok;
 }
 
+/* The node bound is the smaller of two valid bounds:
+ *  - aggregated (joint only; METHODS.md s.7 rule 3): a completion that
+ *    beats the cutoff fits all but at most b = k - dead of the live
+ *    scenarios; in each one it fits, its extra profit is at most the
+ *    knapsack value kn_l over the summed residual capacity, so it is at
+ *    most the (b+1)-th smallest kn_l (weighted by multiplicity);
+ *  - per resource with Lagrangian prices (lagr_quantiles above).
+ * A scenario in which either bound, evaluated as if the completion held
+ * there, cannot beat the cutoff must be among the failed ones (rule 4): it
+ * is fixed dead for the subtree. */
 double surety_bound_node(surety_solver *s, double cutoff, size_t row)
 {
     size_t N = s->N, G = s->G, k = s->k, m = s->m;

@@ -20,6 +20,13 @@ static size_t group_of(const surety_solver *s, size_t i)
     return s->separate ? i : 0;
 }
 
+/* A job the caller left open (fixed[j] == SURETY_JOB_FREE), or any job
+ * when nothing is fixed: the moves below may place, move or drop it. */
+static int movable(const long *fixed, size_t j)
+{
+    return !fixed || fixed[j] == SURETY_JOB_FREE;
+}
+
 /* Loads recomputed from scratch, jobs added in ascending order as the
  * canonical recount does, so the heuristic's counts start exact. */
 static void reset(surety_solver *s, const long *plan)
@@ -199,7 +206,7 @@ static void polish(surety_solver *s, long *plan, const long *fixed)
         /* add */
         for (size_t t = 0; t < s->ncand; t++) {
             size_t j = s->hordp[t];
-            if (plan[j] != SURETY_JOB_OUT || (fixed && fixed[j] != SURETY_JOB_FREE))
+            if (plan[j] != SURETY_JOB_OUT || !movable(fixed, j))
                 continue;
             long i = best_resource(s, j, 0);
             if (i >= 0) {
@@ -211,14 +218,14 @@ static void polish(surety_solver *s, long *plan, const long *fixed)
         /* swap in resource i: a out, b in, p_b > p_a */
         for (size_t ta = 0; ta < s->ncand; ta++) {
             size_t a = s->hordp[s->ncand - 1 - ta]; /* least profitable first */
-            if (plan[a] < 0 || (fixed && fixed[a] != SURETY_JOB_FREE))
+            if (plan[a] < 0 || !movable(fixed, a))
                 continue;
             size_t i = (size_t)plan[a];
             for (size_t tb = 0; tb < s->ncand; tb++) {
                 size_t b = s->hordp[tb];
                 if (!(s->p[b] > s->p[a]))
                     break;
-                if (plan[b] != SURETY_JOB_OUT || (fixed && fixed[b] != SURETY_JOB_FREE) ||
+                if (plan[b] != SURETY_JOB_OUT || !movable(fixed, b) ||
                     !s->allowed[b * m + i])
                     continue;
                 if (fail_after(s, i, b, a) <= s->k) {
@@ -234,7 +241,7 @@ static void polish(surety_solver *s, long *plan, const long *fixed)
         /* drop one job, re-insert greedily */
         for (size_t ta = 0; ta < s->ncand; ta++) {
             size_t a = s->hordp[ta];
-            if (plan[a] < 0 || (fixed && fixed[a] != SURETY_JOB_FREE))
+            if (plan[a] < 0 || !movable(fixed, a))
                 continue;
             double before = profit_of(s, plan);
             memcpy(s->hsave, plan, s->n * sizeof *plan);
@@ -243,7 +250,7 @@ static void polish(surety_solver *s, long *plan, const long *fixed)
             for (size_t tb = 0; tb < s->ncand; tb++) {
                 size_t b = s->hordp[tb];
                 if (b == a || plan[b] != SURETY_JOB_OUT ||
-                    (fixed && fixed[b] != SURETY_JOB_FREE))
+                    !movable(fixed, b))
                     continue;
                 long i = best_resource(s, b, 0);
                 if (i >= 0) {
@@ -323,7 +330,7 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters,
         size_t placed = 0;
         for (size_t t = 0; t < nc; t++) {
             size_t j = s->hordp[t];
-            placed += cur[j] >= 0 && !(fixed && fixed[j] != SURETY_JOB_FREE);
+            placed += cur[j] >= 0 && movable(fixed, j);
         }
         if (placed == 0)
             break;
@@ -331,7 +338,7 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters,
             size_t i = (size_t)(next_rand(seed) % m);
             for (size_t t = 0; t < nc; t++) {
                 size_t j = s->hordp[t];
-                if (cur[j] == (long)i && !(fixed && fixed[j] != SURETY_JOB_FREE)) {
+                if (cur[j] == (long)i && movable(fixed, j)) {
                     change(s, j, i, -1);
                     cur[j] = SURETY_JOB_OUT;
                 }
@@ -342,7 +349,7 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters,
                 size_t pick = next_rand(seed) % placed, c = 0;
                 for (size_t t = 0; t < nc; t++) {
                     size_t j = s->hordp[t];
-                    if (cur[j] < 0 || (fixed && fixed[j] != SURETY_JOB_FREE))
+                    if (cur[j] < 0 || !movable(fixed, j))
                         continue;
                     if (c++ == pick) {
                         change(s, j, (size_t)cur[j], -1);
@@ -363,7 +370,7 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters,
         int rnd = next_rand(seed) & 1;
         for (size_t t = 0; t < nc; t++) {
             size_t j = ord[t];
-            if (cur[j] != SURETY_JOB_OUT || (fixed && fixed[j] != SURETY_JOB_FREE))
+            if (cur[j] != SURETY_JOB_OUT || !movable(fixed, j))
                 continue;
             long i = rnd ? random_fit(s, j, seed) : best_resource(s, j, 0);
             if (i >= 0) {

@@ -314,7 +314,7 @@ static void dive(surety_solver *s, size_t d, double node_bound)
 double surety_tree_search(surety_solver *s)
 {
     long budget = s->opt->dive_nodes == 0 ? 4096 : s->opt->dive_nodes;
-    double lost = -INFINITY; /* bound of a node that found no place */
+    double stopped_at = -INFINITY; /* bound of the node a limit stopped */
     double cut = cutoff_of(s);
     double b = surety_bound_node(s, cut, 0);
     s->root_bound = b;
@@ -353,30 +353,18 @@ double surety_tree_search(surety_solver *s)
             }
             s->open_bound[d] = -INFINITY;
         }
-        if (s->stop) {
-            /* keep the node's bound for the report: back into the pool */
-            int kept = 0;
-            if (d > 0) {
-                /* the path is still applied: push the node itself */
-                long last = e.dec[d - 1];
-                undo(s, d - 1);
-                kept = pool_push(s, d - 1, last, e.bound);
-                d--;
-            }
-            while (d > 0)
-                undo(s, --d);
-            surety_xfree(e.dec);
-            if (!kept)
-                lost = e.bound;
-            break;
-        }
         while (d > 0)
             undo(s, --d);
         surety_xfree(e.dec);
+        if (s->stop) {
+            /* the node's bound covers whatever its dive left open */
+            stopped_at = e.bound;
+            break;
+        }
     }
     if (!s->stop)
         return -INFINITY;
-    double open = lost;
+    double open = stopped_at;
     for (size_t d = 0; d <= s->nb; d++)
         if (s->open_bound[d] > open)
             open = s->open_bound[d];
