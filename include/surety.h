@@ -326,6 +326,15 @@ typedef struct surety_solve_options {
     /* nodes of one depth-first dive before the search returns to the open
      * node of best bound; 0: the default (4096); < 0: depth first only */
     long dive_nodes;
+    /* nodes searched before the LP relaxation of the strengthened big-M
+     * formulation is solved at the root, to cap every bound from then on
+     * and rule out pairs by reduced cost (an instance that closes sooner
+     * never pays for it); 0: the default (65536); < 0: never. Needs the
+     * best-bound pool (dive_nodes >= 0). */
+    long lp_after;
+    /* non-zero: also bound every node restored from the pool by its LP
+     * (a few rounds of scenario rows); default 0 */
+    int lp_restored;
 } surety_solve_options;
 
 void surety_solve_options_init(surety_solve_options *opt);

@@ -181,4 +181,34 @@ static int glpk_solve_mps(const char *mps, const char *dir, double *objective)
     return optimal && have ? 0 : -1;
 }
 
+/* The LP relaxation of an MPS file by GLPK (glpsol --nomip): 0 and its
+ * objective (the file's sense) when GLPK reports it optimal. */
+static inline int glpk_relaxation_mps(const char *mps, const char *dir,
+                               double *objective)
+{
+    char out[1100], cmd[4096], line[1024];
+    snprintf(out, sizeof out, "%s/glpk_lp.out", dir);
+    unlink(out);
+    snprintf(cmd, sizeof cmd,
+             "glpsol --freemps '%s' --nomip -o '%s' >'%s/glpk_lp.log' 2>&1",
+             mps, out, dir);
+    if (system(cmd) != 0)
+        return -1;
+    FILE *fp = fopen(out, "r");
+    if (!fp)
+        return -1;
+    int optimal = 0, have = 0;
+    while (fgets(line, sizeof line, fp)) {
+        if (strncmp(line, "Status:", 7) == 0 && strstr(line, "OPTIMAL"))
+            optimal = 1;
+        const char *p = strstr(line, "Objective:");
+        if (p && (p = strchr(p, '='))) {
+            *objective = strtod(p + 1, NULL);
+            have = 1;
+        }
+    }
+    fclose(fp);
+    return optimal && have ? 0 : -1;
+}
+
 #endif

@@ -402,6 +402,117 @@ Test(solve, best_bound_pool_keeps_the_optimum_on_larger_trees)
     }
 }
 
+/* ---- the LP bound (lpbound.c) ---- */
+
+/* Reads the root LP value from the solver's log line. */
+typedef struct lp_log {
+    double root;
+    int seen;
+} lp_log;
+
+static void catch_lp_line(void *ctx, surety_log_level level, const char *line)
+{
+    (void)level;
+    lp_log *g = ctx;
+    if (sscanf(line, "LP bound: root %lf", &g->root) == 1)
+        g->seen = 1;
+}
+
+/* The LP bound at the root after one node and at every node restored
+ * from the pool (dives of 1 and 3 nodes send nearly every node there),
+ * with reduced-cost fixing: the optimum must still be the enumerated
+ * one, joint and separate. */
+Test(solve, lp_bound_keeps_the_enumerated_optimum)
+{
+    static const long dives[] = {1, 3};
+    int lp_runs = 0;
+    for (uint64_t t = 0; t < 120; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(17000 + t), 8, 3, t % 4 == 0 ? 120 : 30);
+        if (p.n == 8 && p.m == 3)
+            p.n = 7;
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        for (size_t v = 0; v < sizeof dives / sizeof *dives; v++) {
+            surety_solve_options o;
+            surety_solve_options_init(&o);
+            o.dive_nodes = dives[v];
+            o.lp_after = 1;
+            o.lp_restored = 1;
+            lp_log g = {0, 0};
+            o.log = catch_lp_line;
+            o.log_ctx = &g;
+            surety_result *res = solve_ok(md, sc, &o);
+            check_result(md, sc, res);
+            lp_runs += g.seen;
+            cr_assert_eq(surety_result_status(res),
+                         feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE,
+                         "instance %lu, dives of %ld: status %s",
+                         (unsigned long)t, dives[v],
+                         surety_status_name(surety_result_status(res)));
+            if (feas)
+                cr_assert(fabs(surety_result_objective(res) - bf) <=
+                              1e-9 * (1 + fabs(bf)),
+                          "instance %lu (n=%zu m=%zu N=%zu %s), LP bound, "
+                          "dives of %ld: solver %.12g, enumeration %.12g",
+                          (unsigned long)t, p.n, p.m, p.N,
+                          p.separate ? "separate" : "joint", dives[v],
+                          surety_result_objective(res), bf);
+            surety_result_free(res);
+        }
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    /* most instances close at the root; enough must reach the LP */
+    cr_assert(lp_runs >= 40, "the LP bound ran in only %d solves", lp_runs);
+}
+
+/* Larger trees with the LP at every restored node, against the search
+ * without it; the node limit keeps the slow LP variant short, and a
+ * stopped run must still report a bound at least the optimum. */
+Test(solve, lp_bound_on_larger_trees)
+{
+    for (uint64_t t = 0; t < 8; t++) {
+        solve_gen_params p = {.n = 14 + t % 3, .m = 2 + t % 2, .N = 60 + 20 * (t % 3),
+                              .eps = t % 2 ? 0.05 : 0.1, .tightness = 0.5,
+                              .dist = SOLVE_GEN_LOGNORMAL, .separate = t % 4 == 3,
+                              .seed = mix(19000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_result *plain = solve_ok(md, sc, NULL);
+        cr_assert_eq(surety_result_status(plain), SURETY_OPTIMAL);
+        double opt = surety_result_objective(plain);
+        for (long lim = 0; lim <= 64; lim += 16) {
+            surety_solve_options o;
+            surety_solve_options_init(&o);
+            o.dive_nodes = 7;
+            o.lp_after = 1;
+            o.lp_restored = 1;
+            o.node_limit = lim;
+            surety_result *res = solve_ok(md, sc, &o);
+            check_result(md, sc, res);
+            cr_assert(surety_result_bound(res) >= opt - 1e-9 * (1 + fabs(opt)),
+                      "instance %lu, node limit %ld: bound %.10g below the "
+                      "optimum %.10g", (unsigned long)t, lim,
+                      surety_result_bound(res), opt);
+            if (surety_result_status(res) == SURETY_OPTIMAL)
+                cr_assert(fabs(surety_result_objective(res) - opt) <=
+                              1e-9 * (1 + fabs(opt)),
+                          "instance %lu: LP bound %.12g, without %.12g",
+                          (unsigned long)t, surety_result_objective(res), opt);
+            else
+                cr_assert(lim > 0 && surety_result_objective(res) <=
+                                         opt + 1e-9 * (1 + fabs(opt)));
+            surety_result_free(res);
+        }
+        surety_result_free(plain);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+}
+
 /* ---- random small instances against CBC ---- */
 
 #include <time.h>
@@ -828,4 +939,72 @@ Test(solve, agrees_with_cbc_on_exported_mps)
     }
     cbc_rmdir(dir);
     free(dir);
+}
+
+/* The root LP bound against GLPK's LP relaxation of the project's export
+ * with quantile big-M (glpsol --nomip, Debian glpk-utils): surety's LP is
+ * that relaxation restricted (pairs and jobs presolve rules out, scenario
+ * rows whose big-M is negative tightened, dead scenarios fixed), so its
+ * value may be lower, never higher; and the optimum with the LP bound is
+ * still CBC's. */
+Test(solve, root_lp_is_at_least_as_tight_as_glpk_relaxation)
+{
+    char *dir = cbc_tempdir();
+    cr_assert_not_null(dir);
+    char mps[1200];
+    snprintf(mps, sizeof mps, "%s/model.mps", dir);
+    int compared = 0;
+    for (uint64_t t = 0; t < 40; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(23000 + t), 9, 3, 40);
+        p.N += 20;
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_error err;
+        cr_assert_eq(surety_export_mps(md, sc, SURETY_BIGM_STRENGTHENED, mps,
+                                       &err),
+                     SURETY_OK, "%s", err.message);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = 1;
+        o.lp_after = 1;
+        lp_log g = {0, 0};
+        o.log = catch_lp_line;
+        o.log_ctx = &g;
+        o.verbosity = SURETY_LOG_INFO;
+        surety_result *res = solve_ok(md, sc, &o);
+        check_result(md, sc, res);
+        cbc_solution cs;
+        cbc_status st = cbc_solve_mps(mps, dir, 0, &cs);
+        cr_assert(st == CBC_OPTIMAL || st == CBC_INFEASIBLE,
+                  "instance %lu: cbc status %d", (unsigned long)t, (int)st);
+        if (st == CBC_OPTIMAL) {
+            double want = -cs.objective;
+            cr_assert_eq(surety_result_status(res), SURETY_OPTIMAL);
+            cr_assert(fabs(surety_result_objective(res) - want) <=
+                          1e-6 * (1 + fabs(want)),
+                      "instance %lu: solver %.10g, CBC %.10g",
+                      (unsigned long)t, surety_result_objective(res), want);
+            double relax = 0;
+            if (g.seen) {
+                cr_assert_eq(glpk_relaxation_mps(mps, dir, &relax), 0,
+                             "instance %lu: glpsol --nomip failed",
+                             (unsigned long)t);
+                cr_assert(g.root <= -relax + 1e-6 * (1 + fabs(relax)),
+                          "instance %lu: root LP %.10g above GLPK's "
+                          "relaxation %.10g", (unsigned long)t, g.root,
+                          -relax);
+                compared++;
+            }
+        } else {
+            cr_assert_eq(surety_result_status(res), SURETY_INFEASIBLE);
+        }
+        cbc_solution_free(&cs);
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cbc_rmdir(dir);
+    free(dir);
+    cr_assert(compared >= 10, "only %d root LPs compared", compared);
 }

@@ -3,6 +3,7 @@
  * SPDX-License-Identifier: MIT */
 #include <errno.h>
 #include <getopt.h>
+#include <limits.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -13,7 +14,8 @@
 static const char solve_help[] =
     "usage: surety solve MODEL [-n N] [--seed S] [--risk EPS] [-o PLAN.json]\n"
     "                    [--time-limit SEC] [--gap G] [--node-limit K]\n"
-    "                    [--threads T] [--progress] [--quiet] [--json]\n"
+    "                    [--lp-after K|never] [--threads T] [--progress]\n"
+    "                    [--quiet] [--json]\n"
     "\n"
     "Finds the most profitable plan that fits all but at most floor(eps*N) of\n"
     "the model's N scenarios (joint, or per resource when the model says\n"
@@ -26,6 +28,8 @@ static const char solve_help[] =
     "  --time-limit SEC  stop after SEC seconds with the best plan so far\n"
     "  --gap G           stop when (bound-best)/|best| <= G (default 1e-9)\n"
     "  --node-limit K    stop after K nodes\n"
+    "  --lp-after K      solve the root LP bound once K nodes have not closed\n"
+    "                    the search (default 65536; 'never' turns it off)\n"
     "  --threads T       worker threads (default 1)\n"
     "  --progress        progress lines on stderr (default: on a terminal)\n"
     "  --quiet           no progress lines\n"
@@ -221,6 +225,7 @@ int cmd_solve(int argc, char **argv)
         {"gap", required_argument, 0, 'g'},
         {"node-limit", required_argument, 0, 'k'},
         {"threads", required_argument, 0, 'T'},
+        {"lp-after", required_argument, 0, 'L'},
         {"progress", no_argument, 0, 'p'},
         {"quiet", no_argument, 0, 'q'},
         {"json", no_argument, 0, 'j'},
@@ -255,6 +260,14 @@ int cmd_solve(int argc, char **argv)
             if (cli_parse_size(optarg, &v) || v == 0)
                 return cli_usage_error("solve", "--node-limit needs a positive whole number");
             sopt.node_limit = (long)v;
+            break;
+        case 'L':
+            if (strcmp(optarg, "never") == 0)
+                sopt.lp_after = -1;
+            else if (cli_parse_size(optarg, &v) || v == 0 || v > (size_t)LONG_MAX)
+                return cli_usage_error("solve", "--lp-after needs a positive whole number or 'never'");
+            else
+                sopt.lp_after = (long)v;
             break;
         case 'T':
             if (cli_parse_size(optarg, &v) || v == 0 || v > 1024)

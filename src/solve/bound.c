@@ -244,8 +244,8 @@ static double lam_free(const surety_solver *s)
 }
 
 /* Fills row `row` of pxs: pair (j, i) stays possible when job j is open,
- * the pair was possible at the parent (row 0, or a node restored from
- * the best-bound pool: allowed after presolve) and
+ * the pair was possible at the parent (the root: allowed after presolve;
+ * a node restored from the best-bound pool: possible at the root) and
  * placing j in i overloads i, on top of the committed load, in at most b
  * live scenarios of i's group (b = k - dead weight). Why: a completion
  * that beats the cutoff fails every dead scenario and at most b live ones
@@ -280,7 +280,9 @@ static int possible_pairs(surety_solver *s, size_t row)
         int any = 0;
         for (size_t i = 0; i < m; i++) {
             size_t g = s->separate ? i : 0, b = k - s->dead_w[g], q = j * m + i;
-            int was = pp ? pp[q] : s->allowed[q];
+            /* a restored node starts from the root's row (row 0, which
+             * the LP bound may have thinned), the root from presolve */
+            int was = pp ? pp[q] : row > 0 ? s->pxs[q] : s->allowed[q];
             pj[i] = 0;
             if (!was)
                 continue;

@@ -41,6 +41,8 @@ void surety_solve_options_init(surety_solve_options *opt)
     opt->interrupt = NULL;
     opt->start = NULL;
     opt->dive_nodes = 0;
+    opt->lp_after = 0;
+    opt->lp_restored = 0;
 }
 
 double surety_solve_now(void)
@@ -83,6 +85,8 @@ static double global_bound(const surety_solver *s)
             b = s->open_bound[d];
     if (s->npool > 0 && s->pool[0].bound > b)
         b = s->pool[0].bound;
+    if (b > s->lp_root) /* the root LP caps every open node */
+        b = s->have_inc && s->inc > s->lp_root ? s->inc : s->lp_root;
     return b;
 }
 
@@ -194,6 +198,7 @@ static void solver_free(surety_solver *s)
     surety_presolve_free(s);
     surety_heur_free(s);
     surety_bound_free(s);
+    surety_lpb_free(s);
     surety_xfree(s->state);
     surety_xfree(s->nin);
     surety_xfree(s->load);
@@ -323,6 +328,7 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
     s.t0 = surety_solve_now();
     s.last_log = s.t0;
     s.root_bound = INFINITY;
+    s.lp_root = INFINITY;
 
     surety_result *res = result_new();
     if (!res) {
@@ -379,6 +385,20 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
                              "scenarios)", s.n, s.N);
             rc = SURETY_EINTERNAL;
             goto fail;
+        }
+        {
+            s.lp_after = opt->lp_after == 0 ? 65536 : opt->lp_after;
+            int lr = s.lp_after > 0 && opt->dive_nodes >= 0
+                         ? surety_lpb_init(&s)
+                         : 1;
+            if (lr != 0)
+                surety_lpb_free(&s);
+            if (lr < 0) {
+                surety_error_set(err, NULL, 0, 0, NULL,
+                                 "out of memory for the LP bound");
+                rc = SURETY_EINTERNAL;
+                goto fail;
+            }
         }
         logf_(&s, SURETY_LOG_INFO,
               "root bounds: aggregated %.6f, per resource %.6f%s",
@@ -468,6 +488,11 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
     }
     res->nodes = s.nodes;
     res->seconds = surety_solve_now() - s.t0;
+    if (s.lp_solves)
+        logf_(&s, SURETY_LOG_INFO,
+              "LP bound: root %.6f, %ld solves, %ld iterations, %ld nodes "
+              "pruned, %ld pairs ruled out",
+              s.lp_root, s.lp_solves, s.lp_iters, s.lp_prunes, s.lp_fixed);
     logf_(&s, SURETY_LOG_INFO,
           "solve: %s (%s), objective %.6f, bound %.6f, %ld nodes, %.2f s",
           surety_status_name(res->status), surety_stop_name(res->stop),

@@ -27,6 +27,7 @@ enum { SURETY_JOB_FREE = -2, SURETY_JOB_OUT = -1 };
 enum { SURETY_LIVE = 0, SURETY_DEAD_LOAD = 1, SURETY_DEAD_BOUND = 2 };
 
 typedef struct surety_solver surety_solver;
+typedef struct solve_lp solve_lp; /* lpbound.c */
 
 /* An open node waiting in the best-bound pool (tree.c): the resources
  * (or SURETY_JOB_OUT) of the first `depth` jobs of the branching order,
@@ -155,6 +156,13 @@ struct surety_solver {
     size_t restart_row;  /* depth of the node restored from the pool: its
                           * row has no valid parent row (bound.c) */
     size_t depth;
+
+    /* ---- LP bound (lpbound.c) ---- */
+    solve_lp *lpb;       /* NULL: not used */
+    long lp_after;       /* nodes after which the root LP is solved */
+    int lp_on;           /* the root LP has been solved */
+    long lp_solves, lp_iters, lp_prunes, lp_fixed;
+    double lp_root;      /* the LP bound at the root, or INFINITY */
 };
 
 /* presolve.c: fills the problem part of the state from model and sc.
@@ -200,6 +208,23 @@ void surety_heur_free(surety_solver *s);
 int surety_solve_offer(surety_solver *s, const long *plan);
 double surety_solve_now(void);
 void surety_solve_log_progress(surety_solver *s, int force, char mark);
+
+/* lpbound.c: the LP relaxation of the strengthened formulation as a
+ * second node bound. init returns 0, 1 when there is nothing to decide
+ * (no LP), -1 when out of memory. node is called after
+ * surety_bound_node(s, cutoff, row) found qbound > cutoff; it returns the
+ * smaller of qbound and the LP's safe bound, solving with up to `rounds`
+ * rounds of added scenario rows, and rules out of row `row` of pxs the
+ * pairs whose reduced cost shows they lead to no plan above cutoff
+ * (their count in *fixed). */
+int surety_lpb_init(surety_solver *s);
+double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
+                       double qbound, int rounds, size_t *fixed);
+void surety_lpb_free(surety_solver *s);
+
+/* tree.c: 1 when a limit (time, nodes, interrupt) has stopped the search;
+ * sets s->stop. */
+int surety_tree_stopped(surety_solver *s);
 
 /* tree.c: the depth-first branch and bound. Returns the best bound of the
  * open part of the tree when stopped early, or -INFINITY when finished. */

@@ -107,7 +107,7 @@ static void try_partial(surety_solver *s)
         surety_solve_log_progress(s, 1, '*');
 }
 
-static int out_of_limits(surety_solver *s)
+int surety_tree_stopped(surety_solver *s)
 {
     const surety_solve_options *o = s->opt;
     if (s->stop)
@@ -188,6 +188,37 @@ static size_t pool_max(const surety_solver *s)
     return ((size_t)256 << 20) / (sizeof(solve_open) + (s->nb + 1) * sizeof(long));
 }
 
+/* The LP bound (lpbound.c) of a node restored from the pool at depth
+ * `row`, whose quantile bound b beat the cutoff, with a few rounds of
+ * scenario rows, when the caller asked for it (lp_restored: measured not
+ * to pay on the instances of bench/README.md, "LP bound"). Returns the
+ * node's bound. */
+static double lp_bound(surety_solver *s, size_t row, double cut, double b)
+{
+    if (!s->opt->lp_restored)
+        return b;
+    size_t fixed = 0;
+    double lb = surety_lpb_node(s, cut, row, b, 3, &fixed);
+    s->lp_fixed += (long)fixed;
+    if (!(lb > cut))
+        s->lp_prunes++;
+    return lb;
+}
+
+/* The root LP, once the search has run lp_after nodes without closing
+ * (the search state is the root's: between dives): solved to the end of
+ * its rows, it caps every bound from then on, and its reduced costs rule
+ * pairs out of the root's row, which every restored node starts from. */
+static void root_lp(surety_solver *s)
+{
+    size_t fixed = 0;
+    double cut = cutoff_of(s);
+    s->lp_root = surety_lpb_node(s, cut, 0, INFINITY, 1000, &fixed);
+    s->lp_fixed += (long)fixed;
+    s->lp_on = 1;
+    surety_solve_log_progress(s, 1, 'R');
+}
+
 typedef struct child {
     long c;
     double b;
@@ -197,7 +228,7 @@ typedef struct child {
 static void dive(surety_solver *s, size_t d, double node_bound)
 {
     s->open_bound[d] = node_bound;
-    if (out_of_limits(s))
+    if (surety_tree_stopped(s))
         return;
     s->nodes++;
     s->depth = d;
@@ -292,6 +323,8 @@ static void dive(surety_solver *s, size_t d, double node_bound)
         s->open_bound[d] = t + 1 < nc ? node_bound : -INFINITY;
         if (apply(s, d, j, ch[t].c)) {
             double b = surety_bound_node(s, cut, d + 1);
+            if (b > node_bound)
+                b = node_bound; /* the parent's bound covers the child */
             if (b > cut) {
                 try_partial(s);
                 if (b > cutoff_of(s))
@@ -324,7 +357,11 @@ double surety_tree_search(surety_solver *s)
         dive(s, 0, b);
     }
     while (!s->stop && s->npool > 0) {
+        if (s->lpb && !s->lp_on && s->nodes >= s->lp_after)
+            root_lp(s);
         solve_open e = pool_pop(s);
+        if (e.bound > s->lp_root)
+            e.bound = s->lp_root;
         cut = cutoff_of(s);
         if (!(e.bound > cut)) {
             /* the best waiting bound cannot win: neither can the rest */
@@ -343,6 +380,10 @@ double surety_tree_search(surety_solver *s)
             s->open_bound[d] = e.bound; /* reported while it is evaluated */
             s->depth = d;
             double nb = surety_bound_node(s, cut, d);
+            if (nb > e.bound)
+                nb = e.bound;
+            if (nb > cut && s->lp_on)
+                nb = lp_bound(s, d, cut, nb);
             s->restart_row = 0;
             if (nb > cut) {
                 try_partial(s);
@@ -370,5 +411,5 @@ double surety_tree_search(surety_solver *s)
             open = s->open_bound[d];
     if (s->npool > 0 && s->pool[0].bound > open)
         open = s->pool[0].bound;
-    return open;
+    return open < s->lp_root ? open : s->lp_root;
 }
