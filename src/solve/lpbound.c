@@ -152,9 +152,13 @@ int surety_lpb_init(surety_solver *s)
     }
     if (q->nx == 0)
         return 1; /* nothing to decide: no LP */
-    /* z columns: about as many as the scenario rows that a root solve
-     * needs on the instances measured, at most one per (group, scenario) */
-    size_t per = N < 1024 ? N : 1024;
+    /* z columns: one per (group, scenario), since the root LPs measured
+     * give most scenarios a row (n=40, N=1000: 919 rows, 600-900 with a
+     * z); the dense simplex's work per iteration grows with the columns,
+     * so beyond 4096 of them there is no LP */
+    if (G * N > 4096)
+        return 1;
+    size_t per = N;
     q->slots_per_g = per;
     q->nslot = per * G;
     q->ncol = q->nx + q->nslot;
@@ -478,7 +482,8 @@ static size_t separate(surety_solver *s, size_t most)
 }
 
 double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
-                       double qbound, int rounds, size_t *fixed)
+                       double qbound, int rounds, double work,
+                       size_t *fixed)
 {
     solve_lp *q = s->lpb;
     *fixed = 0;
@@ -495,18 +500,21 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
     surety_lp_set_cutoff(q->lp, cutoff - margin);
     /* L: the best bound of the rounds; Lq: the last solve's, whose
      * reduced costs q->d hold. A solve is cut into pieces of 256
-     * iterations so that limits are seen; any piece's duals give a valid
+     * iterations so that limits and the work cap (iterations times the
+     * LP's rows and columns) are seen; any piece's duals give a valid
      * bound. */
-    double L = INFINITY, Lq = INFINITY;
+    double L = INFINITY, Lq = INFINITY, spent = 0;
     surety_lp_set_iter_limit(q->lp, 256);
-    for (int r = 0, pieces = 0; r <= rounds && pieces < 400; pieces++) {
+    for (int r = 0; r <= rounds;) {
         surety_lp_status st = surety_lp_solve(q->lp);
-        s->lp_iters += surety_lp_iterations(q->lp);
+        long it = surety_lp_iterations(q->lp);
+        s->lp_iters += it;
         s->lp_solves++;
+        spent += (double)it * (double)q->nrow * (double)q->ncol;
         Lq = lagrangian(s) + margin;
         if (Lq < L)
             L = Lq;
-        if (L <= cutoff || surety_tree_stopped(s))
+        if (L <= cutoff || spent > work || surety_tree_stopped(s))
             break;
         if (st == SURETY_LP_ITER_LIMIT)
             continue;
@@ -530,3 +538,4 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
     }
     return L < qbound ? L : qbound;
 }
+

@@ -214,12 +214,14 @@ void surety_solve_log_progress(surety_solver *s, int force, char mark);
  * (no LP), -1 when out of memory. node is called after
  * surety_bound_node(s, cutoff, row) found qbound > cutoff; it returns the
  * smaller of qbound and the LP's safe bound, solving with up to `rounds`
- * rounds of added scenario rows, and rules out of row `row` of pxs the
+ * rounds of added scenario rows and about `work` simplex work (dual
+ * iterations times rows times columns), and rules out of row `row` of pxs the
  * pairs whose reduced cost shows they lead to no plan above cutoff
  * (their count in *fixed). */
 int surety_lpb_init(surety_solver *s);
 double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
-                       double qbound, int rounds, size_t *fixed);
+                       double qbound, int rounds, double work,
+                       size_t *fixed);
 void surety_lpb_free(surety_solver *s);
 
 /* tree.c: 1 when a limit (time, nodes, interrupt) has stopped the search;
