@@ -29,7 +29,10 @@
 #define FEAS_TOL 1e-9       /* primal feasibility, relative to 1+|bound| */
 #define OPT_TOL 1e-9        /* dual feasibility of reduced costs */
 #define PIVOT_TOL 1e-9      /* smallest acceptable |pivot| */
-#define REFACTOR_EVERY 64   /* updates of K^-1 between LU rebuilds */
+/* Updates of K^-1 between LU rebuilds: an update costs O(k^2) and a
+ * rebuild O(k^3), so with a large basis rebuilds are spaced k/2 updates
+ * apart (never fewer than 64) to keep them a fixed share of the work. */
+#define REFACTOR_EVERY(lp) ((lp)->k / 2 > 64 ? (lp)->k / 2 : 64)
 #define ARTIFICIAL_BOX 1e6  /* first artificial bound distance */
 #define ARTIFICIAL_MAX 1e13 /* give up enlarging the box beyond this */
 #define STALL_PERTURB 25    /* degenerate dual steps before perturbing */
@@ -357,7 +360,7 @@ static surety_lp_status dual_phase(surety_lp *lp, int allow_perturb)
     }
     for (;;) {
         size_t nv = n + lp->m;
-        if (lp->nupd >= REFACTOR_EVERY) {
+        if (lp->nupd >= (int)REFACTOR_EVERY(lp)) {
             if (rebuild(lp) < 0)
                 return SURETY_LP_NUMERIC;
         }
@@ -504,7 +507,7 @@ static surety_lp_status primal_phase(surety_lp *lp)
     surety_basis_dual(lp);
     for (;;) {
         size_t nv = n + lp->m;
-        if (lp->nupd >= REFACTOR_EVERY) {
+        if (lp->nupd >= (int)REFACTOR_EVERY(lp)) {
             int rc = surety_basis_refactor(lp);
             if (rc < -1)
                 return SURETY_LP_NUMERIC;
@@ -649,7 +652,7 @@ surety_lp_status surety_lp_solve(surety_lp *lp)
     }
     restore_cost(lp);
     surety_lp_status st = SURETY_LP_NUMERIC;
-    if (!lp->factored || lp->nupd >= REFACTOR_EVERY)
+    if (!lp->factored || lp->nupd >= (int)REFACTOR_EVERY(lp))
         if (surety_basis_refactor(lp) < -1)
             goto done;
     surety_basis_dual(lp);
