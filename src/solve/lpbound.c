@@ -75,8 +75,6 @@ struct solve_lp {
     size_t *cand;        /* N*m */
     size_t *jobs;        /* n scratch */
     const unsigned char *px; /* the node's possible pairs */
-    signed char *bas;    /* (nb+2) * (ncol + maxrow) saved bases */
-    size_t *bas_rows;    /* nb+2: rows of each saved basis, 0 = none */
     double work;         /* simplex work units of this node so far */
 };
 
@@ -115,8 +113,6 @@ void surety_lpb_free(surety_solver *s)
     surety_xfree(q->viol);
     surety_xfree(q->cand);
     surety_xfree(q->jobs);
-    surety_xfree(q->bas);
-    surety_xfree(q->bas_rows);
     surety_xfree(q);
     s->lpb = NULL;
 }
@@ -184,12 +180,9 @@ int surety_lpb_init(surety_solver *s)
     q->viol = surety_xmalloc(N * m, sizeof *q->viol);
     q->cand = surety_xmalloc(N * m, sizeof *q->cand);
     q->jobs = surety_xmalloc(n, sizeof *q->jobs);
-    q->bas = surety_xmalloc((s->nb + 2) * (q->ncol + q->maxrow), 1);
-    q->bas_rows = surety_xcalloc(s->nb + 2, sizeof *q->bas_rows);
     if (!q->xj || !q->xi || !q->zslot || !q->slot_gl || !q->slot_next ||
         !q->rows || !q->inrow || !q->M || !q->bm || !q->bm_ok || !q->buf ||
-        !q->x || !q->d || !q->y || !q->ld || !q->viol || !q->cand || !q->jobs ||
-        !q->bas || !q->bas_rows)
+        !q->x || !q->d || !q->y || !q->ld || !q->viol || !q->cand || !q->jobs)
         return -1;
     for (size_t j = 0; j < n; j++)
         for (size_t i = 0; i < m; i++)
@@ -489,13 +482,14 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
     *fixed = 0;
     if (!q || !q->lp)
         return qbound;
-    size_t m = s->m, ncm = q->ncol + q->maxrow;
+    size_t m = s->m;
     unsigned char *px = s->pxs + row * s->n * m;
     q->px = px;
+    /* the basis left by the previous solve is the warm start: the nodes
+     * solved are the root and nodes restored from the pool, whose parent
+     * was solved long before if at all; the dual simplex keeps any basis
+     * dual feasible under the new column bounds */
     node_bounds(s, px);
-    if (row > 0 && row != s->restart_row && q->bas_rows[row - 1] > 0)
-        surety_lp_set_basis(q->lp, q->bas + (row - 1) * ncm,
-                            q->bas_rows[row - 1]);
     double margin = 1e-9 * (s->pscale + 1);
     surety_lp_set_cutoff(q->lp, cutoff - margin);
     /* L: the best bound of the rounds; Lq: the last solve's, whose
@@ -521,8 +515,6 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
         if (st != SURETY_LP_OPTIMAL || r++ == rounds || separate(s, 64) == 0)
             break;
     }
-    surety_lp_get_basis(q->lp, q->bas + row * ncm);
-    q->bas_rows[row] = q->nrow;
     if (L > cutoff && Lq < INFINITY) {
         /* reduced-cost fixing: x_ji = 1 would cost -d_ji */
         for (size_t v = 0; v < q->nx; v++) {
