@@ -330,7 +330,10 @@ typedef struct surety_solve_options {
      * formulation is solved at the root, to cap every bound from then on
      * and rule out pairs by reduced cost (an instance that closes sooner
      * never pays for it); 0: the default (65536); < 0: never. Needs the
-     * best-bound pool (dive_nodes >= 0). */
+     * best-bound pool (dive_nodes >= 0) and at most 4096 scenario columns
+     * (N, or m*N for separate constraints); under a time limit the root LP
+     * stops after a quarter of the time left, with a bound that is still
+     * valid. */
     long lp_after;
     /* non-zero: also bound every node restored from the pool by its LP
      * (a few rounds of scenario rows); default 0 */

@@ -508,7 +508,8 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
         Lq = lagrangian(s) + margin;
         if (Lq < L)
             L = Lq;
-        if (L <= cutoff || spent > work || surety_tree_stopped(s))
+        if (L <= cutoff || spent > work || surety_tree_stopped(s) ||
+            surety_solve_now() > s->lp_deadline)
             break;
         if (st == SURETY_LP_ITER_LIMIT)
             continue;

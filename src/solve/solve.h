@@ -163,6 +163,7 @@ struct surety_solver {
     int lp_on;           /* the root LP has been solved */
     long lp_solves, lp_iters, lp_prunes, lp_fixed;
     double lp_root;      /* the LP bound at the root, or INFINITY */
+    double lp_deadline;  /* monotonic seconds after which an LP call stops */
 };
 
 /* presolve.c: fills the problem part of the state from model and sc.

@@ -198,6 +198,7 @@ static double lp_bound(surety_solver *s, size_t row, double cut, double b)
     if (!s->opt->lp_restored)
         return b;
     size_t fixed = 0;
+    s->lp_deadline = INFINITY;
     double lb = surety_lpb_node(s, cut, row, b, 3, 1e9, &fixed);
     s->lp_fixed += (long)fixed;
     if (!(lb > cut))
@@ -213,6 +214,9 @@ static void root_lp(surety_solver *s)
 {
     size_t fixed = 0;
     double cut = cutoff_of(s);
+    /* under a time limit, at most a quarter of the time left */
+    double now = surety_solve_now(), tl = s->opt->time_limit_s;
+    s->lp_deadline = tl > 0 ? now + 0.25 * (s->t0 + tl - now) : INFINITY;
     /* about 15 s of this machine's dense simplex (bench/README.md) */
     s->lp_root = surety_lpb_node(s, cut, 0, INFINITY, 1000, 3e10, &fixed);
     s->lp_fixed += (long)fixed;
