@@ -63,6 +63,12 @@ expect 2 "plan with an unknown job" -- "$surety" check "$tut" "$tmp/badplan.json
 expect 4 "node limit" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --node-limit 2000 --quiet --json
 has "$tmp/out" '"stop": "node_limit"' "node limit reported"
 
+# the root LP bound: on after a given node count, off with 'never'
+expect 4 "root LP after 1 node" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --lp-after 1 --node-limit 6000 --progress
+has "$tmp/err" "LP bound: root" "root LP reported on the progress stream"
+expect 0 "root LP never" -- "$surety" solve "$tut" --lp-after never --quiet
+expect 1 "bad --lp-after" -- "$surety" solve "$tut" --lp-after 0
+
 # sample then export
 expect 0 "sample" -- "$surety" sample "$tut" -n 50 -o "$tmp/s.csv"
 expect 0 "export" -- "$surety" export "$tut" -n 50 --plain -o "$tmp/p.mps"
