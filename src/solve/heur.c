@@ -360,10 +360,15 @@ static void ils(surety_solver *s, long *plan, const long *fixed, size_t iters,
                 }
             }
         }
+        /* refill order: the greedy key with noise, the profit alone, or
+         * at random (a third each) */
+        unsigned kind = (unsigned)(next_rand(seed) % 3);
         for (size_t t = 0; t < nc; t++) {
             size_t j = s->hord[t];
             double u = (double)(next_rand(seed) >> 11) * 0x1.0p-53;
-            key[j] = s->hkey[j] * (0.7 + 0.6 * u);
+            key[j] = kind == 0 ? s->hkey[j] * (0.7 + 0.6 * u)
+                     : kind == 1 ? s->p[j]
+                                 : u;
             ord[t] = j;
         }
         qsort_r(ord, nc, sizeof *ord, cmp_key_ext, key);
