@@ -56,6 +56,22 @@ static void axpy(size_t len, double f, const double *src, double *dst)
 }
 
 /* y += f * column j of A (m entries). */
+/* al += f * row i of A: by index when the row is sparse (a quarter or
+ * less of its entries nonzero; the scenario rows of the solver's LP
+ * bound have a few percent), else one BLAS axpy. */
+static void row_axpy(const surety_lp *lp, size_t i, double f, double *al)
+{
+    size_t n = lp->n, nz = lp->rnz[i];
+    const double *a = lp->A + i * n;
+    if (4 * nz > n) {
+        axpy(n, f, a, al);
+        return;
+    }
+    const uint32_t *ix = lp->ridx + i * n;
+    for (size_t t = 0; t < nz; t++)
+        al[ix[t]] += f * a[ix[t]];
+}
+
 static void col_axpy(const surety_lp *lp, size_t j, double f, double *y)
 {
     if (f != 0.0)
@@ -226,10 +242,10 @@ void surety_basis_btran_row(surety_lp *lp, size_t r)
     for (size_t p = 0; p < k; p++) {
         double f = rho[lp->rowN[p]];
         if (f != 0.0)
-            axpy(n, f, lp->A + lp->rowN[p] * n, al);
+            row_axpy(lp, lp->rowN[p], f, al);
     }
     if (r >= n)
-        axpy(n, -1.0, lp->A + (r - n) * n, al);
+        row_axpy(lp, r - n, -1.0, al);
     for (size_t i = 0; i < m; i++)
         al[n + i] = -rho[i];
 }

@@ -22,6 +22,10 @@ static int grow_rows(surety_lp *lp, size_t need)
     if (!A)
         return -1;
     lp->A = A;
+    uint32_t *ridx = surety_xrealloc(lp->ridx, cap * n, sizeof *ridx);
+    if (!ridx)
+        return -1;
+    lp->ridx = ridx;
 #define GROW(field, count)                                                                         \
     do {                                                                                           \
         void *p_ = surety_xrealloc(lp->field, (count), sizeof *lp->field);                         \
@@ -38,6 +42,7 @@ static int grow_rows(surety_lp *lp, size_t need)
     GROW(d, nv);
     GROW(stat, nv);
     GROW(posN, cap);
+    GROW(rnz, cap);
     GROW(rho, cap);
     GROW(alpha, nv);
     GROW(dv, nv);
@@ -116,6 +121,8 @@ void surety_lp_free(surety_lp *lp)
     if (!lp)
         return;
     surety_xfree(lp->A);
+    surety_xfree(lp->ridx);
+    surety_xfree(lp->rnz);
     surety_xfree(lp->AT);
     surety_xfree(lp->slot);
     surety_xfree(lp->atcol);
@@ -172,6 +179,11 @@ long surety_lp_add_row(surety_lp *lp, const double *a, double rlo, double rhi)
     if (grow_rows(lp, i + 1) < 0)
         return -1;
     memcpy(lp->A + i * n, a, n * sizeof *a);
+    size_t nz = 0;
+    for (size_t j = 0; j < n; j++)
+        if (a[j] != 0.0)
+            lp->ridx[i * n + nz++] = (uint32_t)j;
+    lp->rnz[i] = nz;
     for (size_t j = 0; j < n; j++)
         lp->AT[lp->slot[j] * lp->mcap + i] = a[j];
     size_t v = n + i;
@@ -262,6 +274,8 @@ int surety_lp_del_rows(surety_lp *lp, const size_t *rows, size_t count)
         if (w != i) {
             size_t a = n + i, b = n + w;
             memmove(lp->A + w * n, lp->A + i * n, n * sizeof *lp->A);
+            memmove(lp->ridx + w * n, lp->ridx + i * n, lp->rnz[i] * sizeof *lp->ridx);
+            lp->rnz[w] = lp->rnz[i];
             lp->cost[b] = lp->cost[a];
             lp->lb[b] = lp->lb[a];
             lp->ub[b] = lp->ub[a];

@@ -19,6 +19,10 @@ struct surety_lp {
     size_t m;          /* rows */
     size_t mcap;       /* rows allocated */
     double *A;         /* mcap x n row-major coefficients */
+    uint32_t *ridx;    /* mcap x n: the nonzero columns of each row, first
+                          rnz[i] of row i's n entries (sparse rows are
+                          summed by index in the pivot row) */
+    size_t *rnz;       /* mcap: nonzeros of each row */
     double *AT;        /* n x mcap: the same, column-major, columns stored
                           in slots: slot c < k holds the column at position
                           c of S, so A times a vector living on S is one
