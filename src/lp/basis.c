@@ -55,7 +55,6 @@ static void axpy(size_t len, double f, const double *src, double *dst)
     surety_dense_axpy(len, f, src, dst);
 }
 
-/* y += f * column j of A (m entries). */
 /* al += f * row i of A: by index when the row is sparse (a quarter or
  * less of its entries nonzero; the scenario rows of the solver's LP
  * bound have a few percent), else one BLAS axpy. */
@@ -72,6 +71,24 @@ static void row_axpy(const surety_lp *lp, size_t i, double f, double *al)
         al[ix[t]] += f * a[ix[t]];
 }
 
+/* Row i of A times v (n entries), by index when the row is sparse. */
+static double row_dot(const surety_lp *lp, size_t i, const double *v)
+{
+    size_t n = lp->n, nz = lp->rnz[i];
+    const double *a = lp->A + i * n;
+    double sum = 0.0;
+    if (4 * nz > n) {
+        for (size_t j = 0; j < n; j++)
+            sum += a[j] * v[j];
+        return sum;
+    }
+    const uint32_t *ix = lp->ridx + i * n;
+    for (size_t t = 0; t < nz; t++)
+        sum += a[ix[t]] * v[ix[t]];
+    return sum;
+}
+
+/* y += f * column j of A (m entries). */
 static void col_axpy(const surety_lp *lp, size_t j, double f, double *y)
 {
     if (f != 0.0)
@@ -471,13 +488,8 @@ void surety_basis_dual_columns(surety_lp *lp, size_t q, size_t flips)
             else
                 w[lp->posN[j - n]] += lp->fl[j];
         }
-        for (size_t p = 0; p < k; p++) {
-            const double *a = lp->A + lp->rowN[p] * n;
-            double sum = 0.0;
-            for (size_t j = 0; j < n; j++)
-                sum += a[j] * X[2 * n + j];
-            w[p] -= sum;
-        }
+        for (size_t p = 0; p < k; p++)
+            w[p] -= row_dot(lp, lp->rowN[p], X + 2 * n);
         surety_dense_gemv(0, k, k, 1.0, lp->Kinv, n, w, 0.0, wk);
         for (size_t c = 0; c < k; c++)
             X[2 * n + lp->colS[c]] = wk[c];
