@@ -64,7 +64,8 @@ struct solve_lp {
     size_t slots_per_g;
     lp_row *rows;
     size_t nrow, maxrow;
-    unsigned char *inrow; /* N*m: scenario row present */
+    unsigned char *inrow; /* N*m: scenario row present (1), or only its
+                           * form without z for a dead scenario (2) */
     double *M;           /* N*m: quantile big-M, NAN until needed */
     surety_bigm_res *bm; /* m */
     unsigned char *bm_ok; /* m: 1 ready, 2 failed */
@@ -266,8 +267,11 @@ static int add_scen_row(surety_solver *s, size_t l, size_t i)
     solve_lp *q = s->lpb;
     size_t m = s->m, N = s->N, g = s->separate ? i : 0;
     double M = row_bigm(s, l, i);
+    /* a dead scenario's row without z: load <= cap + M holds for every
+     * plan of the sample (bigm.c), here and at every other node */
+    int dead = s->dead[g * N + l] != SURETY_LIVE && M > 0;
     long slot = -1;
-    if (M > 0) {
+    if (M > 0 && !dead) {
         slot = q->zslot[g * N + l];
         if (slot < 0) {
             if (q->slot_next[g] == q->slots_per_g)
@@ -289,11 +293,11 @@ static int add_scen_row(surety_solver *s, size_t l, size_t i)
         coef = -M / (double)s->cnt[l];
         a[q->nx + (size_t)slot] = coef;
     }
-    double rhs = scen_rhs(s, i, M);
+    double rhs = dead ? s->cap[i] * (1 + 1e-9) + M : scen_rhs(s, i, M);
     if (add_lp_row(q, a, -INFINITY, rhs,
                    (lp_row){ROW_SCEN, l * m + i, slot, coef, rhs}) != 0)
         return -1;
-    q->inrow[l * m + i] = 1;
+    q->inrow[l * m + i] = dead ? 2 : 1;
     return 0;
 }
 
@@ -441,8 +445,9 @@ static size_t separate(surety_solver *s, size_t most)
         double cap = s->cap[i];
         const double *ld = q->ld + i * N;
         for (size_t l = 0; l < N; l++) {
-            if (!(ld[l] > cap * (1 + 1e-7)) || q->inrow[l * m + i] ||
-                s->dead[g * N + l] != SURETY_LIVE)
+            int dead = s->dead[g * N + l] != SURETY_LIVE;
+            if (!(ld[l] > cap * (1 + 1e-9)) || q->inrow[l * m + i] == 1 ||
+                (dead && q->inrow[l * m + i]))
                 continue;
             q->viol[nc] = (ld[l] - cap) / cap;
             q->cand[nc++] = l * m + i;
@@ -457,10 +462,12 @@ static size_t separate(surety_solver *s, size_t most)
         size_t g = s->separate ? i : 0;
         double cap = s->cap[i], M = row_bigm(s, l, i), z = 0;
         long slot = q->zslot[g * N + l];
-        if (slot >= 0)
+        if (s->dead[g * N + l] != SURETY_LIVE)
+            z = 1; /* at its full weight: only load <= cap + M binds */
+        else if (slot >= 0)
             z = q->x[q->nx + (size_t)slot] / (double)s->cnt[l];
         double v = q->ld[i * N + l] - scen_rhs(s, i, M) - (M > 0 ? M * z : 0);
-        if (v > 1e-7 * cap) {
+        if (v > 1e-9 * cap) {
             q->viol[nv] = v / cap;
             q->cand[nv++] = q->cand[t];
         }
