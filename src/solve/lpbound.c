@@ -17,7 +17,8 @@
  * the quantile big-M of bigm.c, computed when row (l, i) is first needed.
  * Nodes fix columns: decided jobs, pairs the node has ruled out, and the
  * z of every dead scenario at its full weight (a completion that can beat
- * the incumbent fails it; METHODS.md s.7 rule 4).
+ * the incumbent fails it; METHODS.md s.7 rule 4); a dead scenario's row
+ * still bounds its load by cap_i + M_li, which every plan respects.
  *
  * Why next to the quantile bound: the quantile bound asks, scenario by
  * scenario, what a plan fitting that one scenario could earn; the LP has
@@ -76,7 +77,6 @@ struct solve_lp {
     size_t *cand;        /* N*m */
     size_t *jobs;        /* n scratch */
     const unsigned char *px; /* the node's possible pairs */
-    double work;         /* simplex work units of this node so far */
 };
 
 static double scen_rhs(const surety_solver *s, size_t i, double M)
