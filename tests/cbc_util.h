@@ -152,16 +152,18 @@ static double cbc_value(const cbc_solution *s, const char *name)
     return 0;
 }
 
-/* Solves `mps` with GLPK (glpsol --freemps, printable output in `dir`);
- * returns 0 and the objective when glpsol reports an optimal integer
- * solution, -1 otherwise. */
-static int glpk_solve_mps(const char *mps, const char *dir, double *objective)
+/* Runs glpsol on `mps` (printable output in `dir`), the MIP or, with
+ * relax, only its LP relaxation (--nomip); returns 0 and the objective
+ * (the file's sense) when glpsol reports it optimal, -1 otherwise. */
+static inline int glpk_run(const char *mps, const char *dir, int relax,
+                           double *objective)
 {
     char out[1100], cmd[4096], line[1024];
-    snprintf(out, sizeof out, "%s/glpk.out", dir);
+    const char *tag = relax ? "glpk_lp" : "glpk";
+    snprintf(out, sizeof out, "%s/%s.out", dir, tag);
     unlink(out);
-    snprintf(cmd, sizeof cmd, "glpsol --freemps '%s' -o '%s' >'%s/glpk.log' 2>&1",
-             mps, out, dir);
+    snprintf(cmd, sizeof cmd, "glpsol --freemps '%s'%s -o '%s' >'%s/%s.log' 2>&1",
+             mps, relax ? " --nomip" : "", out, dir, tag);
     if (system(cmd) != 0)
         return -1;
     FILE *fp = fopen(out, "r");
@@ -169,7 +171,8 @@ static int glpk_solve_mps(const char *mps, const char *dir, double *objective)
         return -1;
     int optimal = 0, have = 0;
     while (fgets(line, sizeof line, fp)) {
-        if (strncmp(line, "Status:", 7) == 0 && strstr(line, "INTEGER OPTIMAL"))
+        if (strncmp(line, "Status:", 7) == 0 &&
+            strstr(line, relax ? "OPTIMAL" : "INTEGER OPTIMAL"))
             optimal = 1;
         const char *p = strstr(line, "Objective:");
         if (p && (p = strchr(p, '='))) {
@@ -181,34 +184,20 @@ static int glpk_solve_mps(const char *mps, const char *dir, double *objective)
     return optimal && have ? 0 : -1;
 }
 
+/* Solves `mps` with GLPK: 0 and the objective of an optimal integer
+ * solution, -1 otherwise. */
+static inline int glpk_solve_mps(const char *mps, const char *dir,
+                                 double *objective)
+{
+    return glpk_run(mps, dir, 0, objective);
+}
+
 /* The LP relaxation of an MPS file by GLPK (glpsol --nomip): 0 and its
  * objective (the file's sense) when GLPK reports it optimal. */
 static inline int glpk_relaxation_mps(const char *mps, const char *dir,
-                               double *objective)
+                                      double *objective)
 {
-    char out[1100], cmd[4096], line[1024];
-    snprintf(out, sizeof out, "%s/glpk_lp.out", dir);
-    unlink(out);
-    snprintf(cmd, sizeof cmd,
-             "glpsol --freemps '%s' --nomip -o '%s' >'%s/glpk_lp.log' 2>&1",
-             mps, out, dir);
-    if (system(cmd) != 0)
-        return -1;
-    FILE *fp = fopen(out, "r");
-    if (!fp)
-        return -1;
-    int optimal = 0, have = 0;
-    while (fgets(line, sizeof line, fp)) {
-        if (strncmp(line, "Status:", 7) == 0 && strstr(line, "OPTIMAL"))
-            optimal = 1;
-        const char *p = strstr(line, "Objective:");
-        if (p && (p = strchr(p, '='))) {
-            *objective = strtod(p + 1, NULL);
-            have = 1;
-        }
-    }
-    fclose(fp);
-    return optimal && have ? 0 : -1;
+    return glpk_run(mps, dir, 1, objective);
 }
 
 #endif

@@ -322,6 +322,32 @@ Test(solve, brute_force_many_scenarios)
     }
 }
 
+/* Solves with `o` and asserts the outcome enumeration found: optimal
+ * with the enumerated value (feas), or infeasible. */
+static void expect_enumerated(const surety_model *md,
+                              const surety_scenarios *sc,
+                              const surety_solve_options *o,
+                              const solve_gen_params *p, uint64_t t, int feas,
+                              double bf, const char *what)
+{
+    surety_result *res = solve_ok(md, sc, o);
+    check_result(md, sc, res);
+    cr_assert_eq(surety_result_status(res),
+                 feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE,
+                 "instance %lu, %sdives of %ld: status %s", (unsigned long)t,
+                 what, o->dive_nodes,
+                 surety_status_name(surety_result_status(res)));
+    if (feas)
+        cr_assert(fabs(surety_result_objective(res) - bf) <=
+                      1e-9 * (1 + fabs(bf)),
+                  "instance %lu (n=%zu m=%zu N=%zu %s), %sdives of %ld: "
+                  "solver %.12g, enumeration %.12g",
+                  (unsigned long)t, p->n, p->m, p->N,
+                  p->separate ? "separate" : "joint", what, o->dive_nodes,
+                  surety_result_objective(res), bf);
+    surety_result_free(res);
+}
+
 /* The best-bound pool: dives of 1 or 3 nodes send almost every open
  * child through the pool (restored from the root, bounds recomputed
  * without parent rows), and depth-first only (< 0) never does; all must
@@ -342,22 +368,7 @@ Test(solve, short_dives_and_depth_first_agree_with_enumeration)
             surety_solve_options o;
             surety_solve_options_init(&o);
             o.dive_nodes = dives[v];
-            surety_result *res = solve_ok(md, sc, &o);
-            check_result(md, sc, res);
-            cr_assert_eq(surety_result_status(res),
-                         feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE,
-                         "instance %lu, dives of %ld: status %s",
-                         (unsigned long)t, dives[v],
-                         surety_status_name(surety_result_status(res)));
-            if (feas)
-                cr_assert(fabs(surety_result_objective(res) - bf) <=
-                              1e-9 * (1 + fabs(bf)),
-                          "instance %lu (n=%zu m=%zu N=%zu %s), dives of "
-                          "%ld: solver %.12g, enumeration %.12g",
-                          (unsigned long)t, p.n, p.m, p.N,
-                          p.separate ? "separate" : "joint", dives[v],
-                          surety_result_objective(res), bf);
-            surety_result_free(res);
+            expect_enumerated(md, sc, &o, &p, t, feas, bf, "");
         }
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);
@@ -444,23 +455,8 @@ Test(solve, lp_bound_keeps_the_enumerated_optimum)
             lp_log g = {0, 0};
             o.log = catch_lp_line;
             o.log_ctx = &g;
-            surety_result *res = solve_ok(md, sc, &o);
-            check_result(md, sc, res);
+            expect_enumerated(md, sc, &o, &p, t, feas, bf, "LP bound, ");
             lp_runs += g.seen;
-            cr_assert_eq(surety_result_status(res),
-                         feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE,
-                         "instance %lu, dives of %ld: status %s",
-                         (unsigned long)t, dives[v],
-                         surety_status_name(surety_result_status(res)));
-            if (feas)
-                cr_assert(fabs(surety_result_objective(res) - bf) <=
-                              1e-9 * (1 + fabs(bf)),
-                          "instance %lu (n=%zu m=%zu N=%zu %s), LP bound, "
-                          "dives of %ld: solver %.12g, enumeration %.12g",
-                          (unsigned long)t, p.n, p.m, p.N,
-                          p.separate ? "separate" : "joint", dives[v],
-                          surety_result_objective(res), bf);
-            surety_result_free(res);
         }
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);

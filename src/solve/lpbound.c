@@ -65,6 +65,7 @@ struct solve_lp {
     size_t slots_per_g;
     lp_row *rows;
     size_t nrow, maxrow;
+    size_t card0;        /* row of group 0's allowance row */
     unsigned char *inrow; /* N*m: scenario row present (1), or only its
                            * form without z for a dead scenario (2) */
     double *M;           /* N*m: quantile big-M, NAN until needed */
@@ -217,6 +218,7 @@ int surety_lpb_init(surety_solver *s)
                        (lp_row){ROW_JOB, j, -1, 0, 1}) != 0)
             return -1;
     }
+    q->card0 = q->nrow; /* rows are never deleted: group g's is card0 + g */
     for (size_t g = 0; g < G; g++) {
         memset(c, 0, q->ncol * sizeof *c);
         for (size_t u = 0; u < per; u++)
@@ -328,9 +330,7 @@ static void node_bounds(surety_solver *s, const unsigned char *px)
                 surety_lp_set_col_bounds(q->lp, q->nx + slot, 0, c);
             }
         }
-        size_t r = 0;
-        while (q->rows[r].kind != ROW_CARD || q->rows[r].a != g)
-            r++;
+        size_t r = q->card0 + g;
         q->rows[r].rhs = rhs;
         surety_lp_set_row_bounds(q->lp, r, -INFINITY, rhs);
     }
