@@ -8,6 +8,7 @@
 
 #include "check.h"
 #include "model.h"
+#include "rng.h"
 #include "sample.h"
 #include "surety.h"
 
@@ -62,6 +63,62 @@ static double fill_cpu(const surety_model *model, size_t M,
     free(p);
     surety_sampler_free(smp);
     return t;
+}
+
+/* Memory bandwidth of one core, STREAM's triad a = b + s c on three
+ * arrays of 2^22 doubles (32 MiB each, far beyond the caches): bytes moved
+ * per CPU second (24 per element: two read, one written), best of 5. */
+static double triad_bytes_per_s(void)
+{
+    size_t len = (size_t)1 << 22;
+    double *a = malloc(len * sizeof *a), *b = malloc(len * sizeof *b),
+           *c = malloc(len * sizeof *c);
+    if (!a || !b || !c) {
+        fprintf(stderr, "error: out of memory\n");
+        exit(3);
+    }
+    for (size_t e = 0; e < len; e++) {
+        a[e] = 0;
+        b[e] = (double)e;
+        c[e] = 1.0 / (double)(e + 1);
+    }
+    double best = 0, sink = 0;
+    for (int rep = 0; rep < 5; rep++) {
+        double c0 = cpu_s();
+        for (size_t e = 0; e < len; e++)
+            a[e] = b[e] + 3.0 * c[e];
+        double t = cpu_s() - c0;
+        sink += a[rep];
+        if (t > 0 && 24.0 * (double)len / t > best)
+            best = 24.0 * (double)len / t;
+    }
+    if (sink == 42.4242)
+        printf("%g\n", sink); /* keeps the stores */
+    free(a);
+    free(b);
+    free(c);
+    return best;
+}
+
+/* Draws per CPU second of the sampler's generator alone: one uniform per
+ * job-sample (the least any sampling does with it), and one standard normal
+ * by its ziggurat (the copula's draw), summed so none is optimised away. */
+static void rng_rates(double *uniform_per_s, double *normal_per_s)
+{
+    size_t cnt = 50000000;
+    surety_rng r = surety_rng_from(0x5eedULL);
+    double acc = 0, c0 = cpu_s();
+    for (size_t e = 0; e < cnt; e++)
+        acc += surety_rng_uniform(&r);
+    double t = cpu_s() - c0;
+    *uniform_per_s = (double)cnt / t;
+    c0 = cpu_s();
+    for (size_t e = 0; e < cnt; e++)
+        acc += surety_rng_normal_keyed(&r, e);
+    t = cpu_s() - c0;
+    *normal_per_s = (double)cnt / t;
+    if (acc == 42.4242)
+        printf("%g\n", acc);
 }
 
 /* A plan near the reliability boundary, as a solver would return: jobs in
@@ -177,6 +234,18 @@ int main(int argc, char **argv)
            "%.3f s CPU\n", s);
     printf("full sampling of all jobs (surety sample): %.3f s CPU, %.3g "
            "job-samples/s\n", f, all / f);
+
+    /* where the check stands against two limits of this machine */
+    double bw = triad_bytes_per_s(), ru, rn;
+    rng_rates(&ru, &rn);
+    printf("limits measured on this machine (one core, CPU time):\n");
+    printf("  memory bandwidth (triad, 3 x 32 MiB): %.3g GB/s; a check that "
+           "read stored hours\n    (8 bytes a job-sample) could reach at most "
+           "%.3g job-samples/s;\n    this one, drawing on the fly, reaches "
+           "%.1f%% of that\n", bw / 1e9, bw / 8, 100 * (all / c) / (bw / 8));
+    printf("  the generator alone: %.3g uniforms/s, %.3g normals/s; the check "
+           "reaches\n    %.1f%% of one uniform per job-sample and %.1f%% of one "
+           "normal\n", ru, rn, 100 * (all / c) / ru, 100 * (all / c) / rn);
 
     /* the early-exit count alone on the in-sample set, repeated */
     surety_plan_eval ev;
