@@ -68,6 +68,8 @@ expect 4 "root LP after 1 node" -- "$surety" solve "$src/instances/workshops-30.
 has "$tmp/err" "LP bound: root" "root LP reported on the progress stream"
 expect 0 "root LP never" -- "$surety" solve "$tut" --lp-after never --quiet
 expect 1 "bad --lp-after" -- "$surety" solve "$tut" --lp-after 0
+expect 0 "two threads asked for" -- "$surety" solve "$tut" --threads 2 --quiet
+has "$tmp/err" "runs on one thread" "the unused --threads is said, not hidden"
 
 # sample then export
 expect 0 "sample" -- "$surety" sample "$tut" -n 50 -o "$tmp/s.csv"

@@ -353,6 +353,10 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
           "solve: %zu jobs (%zu to decide), %zu resources, %zu scenarios "
           "(%zu distinct), allowance %zu, %s",
           s.n, s.nb, s.m, s.N0, s.N, s.k, s.separate ? "separate" : "joint");
+    if (opt->threads > 1)
+        logf_(&s, SURETY_LOG_WARN,
+              "threads: %d asked for, but the search runs on one thread "
+              "(a parallel search is not built yet)", opt->threads);
 
     if (!infeasible) {
         /* the empty plan, a caller's plan, then the greedy + local search */
