@@ -316,6 +316,37 @@ static int possible_pairs(surety_solver *s, size_t row)
     return ok;
 }
 
+/* What the children of the node at depth `row` recompute (any choice is
+ * valid, see surety_bound_node; this one is about work): the scenarios
+ * below the (want+1)-th smallest of the values in ub[0..c) (weight w),
+ * and as many at it as make up want; when w <= want, the same ones again
+ * (those up to their largest value). */
+static void set_tau(surety_solver *s, size_t row, size_t c, size_t w,
+                    size_t want)
+{
+    if (w <= want) {
+        /* no more than want: the children recompute the same ones */
+        double mx = -INFINITY;
+        for (size_t t = 0; t < c; t++)
+            if (s->ub[t] > mx)
+                mx = s->ub[t];
+        size_t at = 0;
+        for (size_t t = 0; t < c; t++)
+            if (s->ub[t] == mx)
+                at += s->ubw[t];
+        s->ubtau[row] = c ? mx : INFINITY;
+        s->ubtie[row] = at;
+        return;
+    }
+    double tau = select_weighted(s->ub, s->ubw, c, want);
+    size_t below = 0;
+    for (size_t t = 0; t < c; t++)
+        if (s->ub[t] < tau)
+            below += s->ubw[t];
+    s->ubtau[row] = tau;
+    s->ubtie[row] = want > below ? want - below : 0;
+}
+
 /* The node bound is the smaller of two valid bounds:
  *  - aggregated (joint only; METHODS.md s.7 rule 3): a completion that
  *    beats the cutoff fits all but at most b = k - dead of the live
@@ -363,27 +394,14 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
                                  ? s->ubst + (row - 1) * N : NULL;
         double slack = 1e-12 * (s->pscale + 1), cap = base + unc;
         size_t b = k - s->dead_w[0];
+        /* the parent left the value up to which its children recompute
+         * (about the 2(b+1)+16 smallest of its values: the ones that can
+         * decide a quantile); every 32nd evaluation recomputes them all */
         double tau = INFINITY;
-        size_t ties = 0; /* scenarios at exactly tau still recomputed */
+        size_t want = 2 * (b + 1) + 16, ties = 0;
         if (prev && (s->evals++ & 31) != 0) {
-            size_t c = 0, livew = 0;
-            for (size_t l = 0; l < N; l++) {
-                if (s->dead[l] != SURETY_LIVE)
-                    continue;
-                s->ub[c] = prev[l];
-                s->ubw[c] = s->cnt[l];
-                livew += s->cnt[l];
-                c++;
-            }
-            size_t want = 2 * (b + 1) + 16;
-            if (livew > want) {
-                tau = select_weighted(s->ub, s->ubw, c, want);
-                size_t below = 0;
-                for (size_t l = 0; l < N; l++)
-                    if (s->dead[l] == SURETY_LIVE && prev[l] < tau)
-                        below++;
-                ties = want > below ? want - below : 0;
-            }
+            tau = s->ubtau[row - 1];
+            ties = s->ubtie[row - 1];
         }
         /* recomputed scenarios go first in ub/ubw (their ids in rix),
          * stale ones after; when the recomputed weight exceeds b, their
@@ -419,6 +437,8 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         s->rix_all = nr == 0 || livew == rw;
         if (rw > b) {
             qa = select_weighted(s->ub, s->ubw, c, b);
+            /* for the children: about the want smallest recomputed */
+            set_tau(s, row, c, rw, want);
         } else if (livew > b) {
             /* too few recomputed: select over every live value */
             c = 0;
@@ -428,9 +448,12 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
                     s->ubw[c++] = s->cnt[l];
                 }
             qa = select_weighted(s->ub, s->ubw, c, b);
+            set_tau(s, row, c, livew, want);
             s->rix_all = 1;
         } else {
             qa = cap;
+            s->ubtau[row] = INFINITY;
+            s->ubtie[row] = 0;
             s->rix_all = 1;
         }
         if (qa < bound)

@@ -212,6 +212,8 @@ static void solver_free(surety_solver *s)
     surety_xfree(s->ubw);
     surety_xfree(s->kn);
     surety_xfree(s->ubst);
+    surety_xfree(s->ubtau);
+    surety_xfree(s->ubtie);
     surety_xfree(s->pxs);
     surety_xfree(s->pxo);
     surety_xfree(s->ropen);
@@ -245,6 +247,8 @@ static int search_alloc(surety_solver *s)
     s->ubw = surety_xmalloc(N, sizeof *s->ubw);
     s->kn = surety_xmalloc(m, sizeof *s->kn);
     s->ubst = surety_xmalloc((nb + 2) * N, sizeof *s->ubst);
+    s->ubtau = surety_xmalloc(nb + 2, sizeof *s->ubtau);
+    s->ubtie = surety_xmalloc(nb + 2, sizeof *s->ubtie);
     s->pxs = surety_xmalloc((nb + 2) * n * m, 1);
     s->pxo = surety_xmalloc((nb + 2) * n * m, sizeof *s->pxo);
     s->ropen = surety_xmalloc(m, 1);
@@ -254,7 +258,7 @@ static int search_alloc(surety_solver *s)
     s->tfix = surety_xmalloc(n, sizeof *s->tfix);
     if (!s->state || !s->nin || !s->load || !s->dead || !s->dead_w ||
         !s->trail || !s->saved_load || !s->saved_dead_w || !s->frames ||
-        !s->ub || !s->ubw || !s->kn || !s->ubst || !s->pxs || !s->pxo || !s->ropen ||
+        !s->ub || !s->ubw || !s->kn || !s->ubst || !s->ubtau || !s->ubtie || !s->pxs || !s->pxo || !s->ropen ||
         !s->rix || !s->open_bound ||
         !s->tplan || !s->tfix)
         return -1;

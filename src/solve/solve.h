@@ -105,6 +105,9 @@ struct surety_solver {
     unsigned *ubw;       /* N weights */
     double *kn;          /* m scratch: residuals when m > 64 */
     double *ubst;        /* (nb+2)*N per-depth scenario bounds (absolute) */
+    double *ubtau;       /* nb+2: per depth, the value up to which a child
+                          * recomputes its scenarios' knapsacks */
+    size_t *ubtie;       /* nb+2: how many at exactly that value */
     unsigned long evals; /* bound evaluations (refresh schedule) */
     size_t *rix;         /* N: scenarios recomputed by the last evaluation */
     size_t nrix;
