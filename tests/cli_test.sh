@@ -68,6 +68,8 @@ expect 4 "root LP after 1 node" -- "$surety" solve "$src/instances/workshops-30.
 has "$tmp/err" "LP bound: root" "root LP reported on the progress stream"
 expect 0 "root LP never" -- "$surety" solve "$tut" --lp-after never --quiet
 expect 1 "bad --lp-after" -- "$surety" solve "$tut" --lp-after 0
+expect 0 "gap tolerance" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --gap 0.3 --quiet
+has "$tmp/out" "optimal within the --gap asked for" "a tolerated gap is spelled out next to the status"
 expect 0 "two threads asked for" -- "$surety" solve "$tut" --threads 2 --quiet
 has "$tmp/err" "runs on one thread" "the unused --threads is said, not hidden"
 

@@ -111,6 +111,9 @@ static void print_text(const surety_model *model, const surety_scenarios *sc,
     }
     fprintf(fp, "  mean profit %.2f, upper bound %.2f, gap %.4f%%\n", surety_result_objective(res),
             surety_result_bound(res), 100.0 * surety_result_gap(res));
+    if (st == SURETY_OPTIMAL && surety_result_gap(res) > 1e-6)
+        fprintf(fp, "  optimal within the --gap asked for: a better plan may exist, by at "
+                    "most the gap\n");
     fprintf(fp, "  in sample: %zu of %zu scenarios fit (at most %zu may overload)\n\n",
             surety_result_fit(res), N, surety_result_allowance(res));
     double *mean = calloc(m + 2 * n, sizeof *mean);

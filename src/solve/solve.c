@@ -70,7 +70,15 @@ static void logf_(const surety_solver *s, surety_log_level level,
 
 static double global_bound(const surety_solver *s)
 {
-    double b = s->have_inc ? s->inc : -INFINITY;
+    /* nodes pruned against the cutoff (the incumbent plus the gap
+     * tolerance) may hold plans up to it, as in the final bound */
+    double cut = -INFINITY;
+    if (s->have_inc) {
+        double tol = s->opt->gap * fabs(s->inc);
+        double noise = 1e-12 * (s->pscale + 1);
+        cut = s->inc + (tol > noise ? tol : noise);
+    }
+    double b = cut;
     if (s->nodes == 0 && s->depth == 0 && s->open_bound &&
         s->open_bound[0] == -INFINITY) {
         /* before the search: the root bounds when known */
@@ -86,7 +94,7 @@ static double global_bound(const surety_solver *s)
     if (s->npool > 0 && s->pool[0].bound > b)
         b = s->pool[0].bound;
     if (b > s->lp_root) /* the root LP caps every open node */
-        b = s->have_inc && s->inc > s->lp_root ? s->inc : s->lp_root;
+        b = cut > s->lp_root ? cut : s->lp_root;
     return b;
 }
 
