@@ -337,15 +337,23 @@ static void node_bounds(surety_solver *s, const unsigned char *px)
 }
 
 /* L(y) of the file comment, with d = c - A^T y left in q->d; clips the
- * duals of the wrong sign. The column bounds are the node's. */
-static double lagrangian(surety_solver *s)
+ * duals of the wrong sign. The column bounds are the node's. *mag gets
+ * the sum of the magnitudes of every product and term that enters L
+ * (|y_r rhs_r|, |y_r a_rc| times the column's largest bound, |c_c| times
+ * it): the rounding error of L in double precision is below
+ * (terms summed) x 2^-53 x mag, which the caller's margin covers. */
+static double lagrangian(surety_solver *s, double *mag)
 {
     solve_lp *q = s->lpb;
     size_t m = s->m, N = s->N;
     double *y = q->y, *d = q->d;
     surety_lp_get_row_duals(q->lp, y);
-    for (size_t v = 0; v < q->ncol; v++)
+    *mag = INFINITY; /* until known */
+    double M = 0;
+    for (size_t v = 0; v < q->ncol; v++) {
         d[v] = v < q->nx ? s->p[q->xj[v]] : 0;
+        M += fabs(d[v]);
+    }
     double L = 0;
     for (size_t r = 0; r < q->nrow; r++) {
         const lp_row *w = &q->rows[r];
@@ -360,25 +368,38 @@ static double lagrangian(surety_solver *s)
         if (yr == 0)
             continue;
         L += yr * w->rhs;
+        double ay = fabs(yr), rowmag = 0;
+        M += fabs(yr * w->rhs);
         if (w->kind == ROW_JOB) {
             for (size_t i = 0; i < m; i++) {
                 long v = q->xcol[w->a * m + i];
-                if (v >= 0)
+                if (v >= 0) {
                     d[v] -= yr;
+                    rowmag += 1;
+                }
             }
         } else if (w->kind == ROW_CARD) {
-            for (size_t u = 0; u < q->slot_next[w->a]; u++)
-                d[q->nx + w->a * q->slots_per_g + u] -= yr;
+            for (size_t u = 0; u < q->slot_next[w->a]; u++) {
+                size_t slot = w->a * q->slots_per_g + u;
+                d[q->nx + slot] -= yr;
+                rowmag += s->cnt[q->slot_gl[slot] - w->a * N];
+            }
         } else {
             size_t l = w->a / m, i = w->a % m;
             const double *wl = s->w + l * s->n;
             for (size_t v = 0; v < q->nx; v++)
-                if (q->xi[v] == i)
+                if (q->xi[v] == i) {
                     d[v] -= yr * wl[q->xj[v]];
-            if (w->slot >= 0)
+                    rowmag += fabs(wl[q->xj[v]]);
+                }
+            if (w->slot >= 0) {
                 d[q->nx + (size_t)w->slot] -= yr * w->coef;
+                rowmag += fabs(w->coef) * s->cnt[l];
+            }
         }
+        M += ay * rowmag;
     }
+    *mag = M;
     (void)N;
     /* the columns at the node's bounds */
     for (size_t v = 0; v < q->nx; v++) {
@@ -512,7 +533,11 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
         s->lp_iters += it;
         s->lp_solves++;
         spent += (double)it * (double)q->nrow * (double)q->ncol;
-        Lq = lagrangian(s) + margin;
+        double mag = INFINITY;
+        Lq = lagrangian(s, &mag);
+        /* rounding: at most (rows + columns + 2) x 2^-53 x mag, far below
+         * 1e-11 x mag for any LP this solver builds */
+        Lq += margin > 1e-11 * mag ? margin : 1e-11 * mag;
         if (Lq < L)
             L = Lq;
         if (L <= cutoff || spent > work || surety_tree_stopped(s) ||
