@@ -327,13 +327,15 @@ static void set_tau(surety_solver *s, size_t row, size_t c, size_t w,
     if (w <= want) {
         /* no more than want: the children recompute the same ones */
         double mx = -INFINITY;
-        for (size_t t = 0; t < c; t++)
-            if (s->ub[t] > mx)
-                mx = s->ub[t];
         size_t at = 0;
-        for (size_t t = 0; t < c; t++)
+        for (size_t t = 0; t < c; t++) {
+            if (s->ub[t] > mx) {
+                mx = s->ub[t];
+                at = 0;
+            }
             if (s->ub[t] == mx)
                 at += s->ubw[t];
+        }
         s->ubtau[row] = c ? mx : INFINITY;
         s->ubtie[row] = at;
         return;

@@ -400,7 +400,6 @@ static double lagrangian(surety_solver *s, double *mag)
         M += ay * rowmag;
     }
     *mag = M;
-    (void)N;
     /* the columns at the node's bounds */
     for (size_t v = 0; v < q->nx; v++) {
         size_t j = q->xj[v], i = q->xi[v];
@@ -533,7 +532,7 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
         s->lp_iters += it;
         s->lp_solves++;
         spent += (double)it * (double)q->nrow * (double)q->ncol;
-        double mag = INFINITY;
+        double mag;
         Lq = lagrangian(s, &mag);
         /* rounding: at most (rows + columns + 2) x 2^-53 x mag, far below
          * 1e-11 x mag for any LP this solver builds */

@@ -72,12 +72,7 @@ static double global_bound(const surety_solver *s)
 {
     /* nodes pruned against the cutoff (the incumbent plus the gap
      * tolerance) may hold plans up to it, as in the final bound */
-    double cut = -INFINITY;
-    if (s->have_inc) {
-        double tol = s->opt->gap * fabs(s->inc);
-        double noise = 1e-12 * (s->pscale + 1);
-        cut = s->inc + (tol > noise ? tol : noise);
-    }
+    double cut = surety_cutoff(s);
     double b = cut;
     if (s->nodes == 0 && s->depth == 0 && s->open_bound &&
         s->open_bound[0] == -INFINITY) {
@@ -427,23 +422,12 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
             /* open subtrees, and plans within the pruning tolerance of
              * the incumbent (fixings may have cut those) */
             res->stop = (surety_stop)(s.stop - 1);
-            double b = -INFINITY;
-            if (s.have_inc) {
-                double tol = opt->gap * fabs(s.inc);
-                double noise = 1e-12 * (s.pscale + 1);
-                b = s.inc + (tol > noise ? tol : noise);
-            }
+            double b = surety_cutoff(&s);
             res->bound = open > b ? open : b;
         } else {
             res->stop = SURETY_STOP_FINISHED;
             /* every pruned node had a bound at most the final cutoff */
-            if (s.have_inc) {
-                double tol = opt->gap * fabs(s.inc);
-                double noise = 1e-12 * (s.pscale + 1);
-                res->bound = s.inc + (tol > noise ? tol : noise);
-            } else {
-                res->bound = -INFINITY;
-            }
+            res->bound = surety_cutoff(&s);
         }
     } else {
         res->stop = SURETY_STOP_FINISHED;

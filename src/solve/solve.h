@@ -228,6 +228,10 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
                        size_t *fixed);
 void surety_lpb_free(surety_solver *s);
 
+/* tree.c: the value a bound must beat: the incumbent plus the user's gap
+ * tolerance (never below rounding noise), -INFINITY before any plan. */
+double surety_cutoff(const surety_solver *s);
+
 /* tree.c: 1 when a limit (time, nodes, interrupt) has stopped the search;
  * sets s->stop. */
 int surety_tree_stopped(surety_solver *s);

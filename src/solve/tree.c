@@ -14,7 +14,7 @@ static size_t group_of(const surety_solver *s, size_t i)
 
 /* Absolute slack under which a bound counts as not beating the incumbent:
  * the user's relative gap, and never below rounding noise of the sums. */
-static double cutoff_of(const surety_solver *s)
+double surety_cutoff(const surety_solver *s)
 {
     if (!s->have_inc)
         return -INFINITY;
@@ -90,7 +90,7 @@ static void undo(surety_solver *s, size_t d)
  * the search's own count keeps every group within the allowance. */
 static void try_partial(surety_solver *s)
 {
-    if (s->req_left || !(s->fixed_profit > cutoff_of(s)))
+    if (s->req_left || !(s->fixed_profit > surety_cutoff(s)))
         return;
     for (size_t g = 0; g < s->G; g++) {
         size_t w = 0;
@@ -213,7 +213,7 @@ static double lp_bound(surety_solver *s, size_t row, double cut, double b)
 static void root_lp(surety_solver *s)
 {
     size_t fixed = 0;
-    double cut = cutoff_of(s);
+    double cut = surety_cutoff(s);
     /* under a time limit, at most a quarter of the time left */
     double now = surety_solve_now(), tl = s->opt->time_limit_s;
     s->lp_deadline = tl > 0 ? now + 0.25 * (s->t0 + tl - now) : INFINITY;
@@ -311,7 +311,7 @@ static void dive(surety_solver *s, size_t d, double node_bound)
         ch[u] = x;
     }
     for (size_t t = 0; t < nc; t++) {
-        double cut = cutoff_of(s);
+        double cut = surety_cutoff(s);
         if (!(node_bound > cut))
             break;
         if (s->spill_at > 0 && s->nodes >= s->spill_at &&
@@ -332,7 +332,7 @@ static void dive(surety_solver *s, size_t d, double node_bound)
                 b = node_bound; /* the parent's bound covers the child */
             if (b > cut) {
                 try_partial(s);
-                if (b > cutoff_of(s))
+                if (b > surety_cutoff(s))
                     dive(s, d + 1, b);
             }
         }
@@ -353,7 +353,7 @@ double surety_tree_search(surety_solver *s)
 {
     long budget = s->opt->dive_nodes == 0 ? 4096 : s->opt->dive_nodes;
     double stopped_at = -INFINITY; /* bound of the node a limit stopped */
-    double cut = cutoff_of(s);
+    double cut = surety_cutoff(s);
     double b = surety_bound_node(s, cut, 0);
     s->root_bound = b;
     if (b > cut) {
@@ -367,7 +367,7 @@ double surety_tree_search(surety_solver *s)
         solve_open e = pool_pop(s);
         if (e.bound > s->lp_root)
             e.bound = s->lp_root;
-        cut = cutoff_of(s);
+        cut = surety_cutoff(s);
         if (!(e.bound > cut)) {
             /* the best waiting bound cannot win: neither can the rest */
             surety_xfree(e.dec);
@@ -392,7 +392,7 @@ double surety_tree_search(surety_solver *s)
             s->restart_row = 0;
             if (nb > cut) {
                 try_partial(s);
-                if (nb > cutoff_of(s)) {
+                if (nb > surety_cutoff(s)) {
                     s->spill_at = s->nodes + budget;
                     dive(s, d, nb);
                 }
