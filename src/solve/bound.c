@@ -81,11 +81,15 @@ static double knap_joint(const surety_solver *s, size_t l)
             wmin = row[lt[t]];
             break;
         }
-    double agg = 0;
+    double agg = 0, rmax = -INFINITY; /* rmax: over resources still open */
     for (size_t i = 0; i < m; i++) {
         r[i] = s->cap_hi[i] - s->load[i * N + l];
-        if (r[i] > 0 && r[i] >= wmin && s->ropen[i])
-            agg += r[i];
+        if (s->ropen[i]) {
+            if (r[i] > rmax)
+                rmax = r[i];
+            if (r[i] > 0 && r[i] >= wmin)
+                agg += r[i];
+        }
     }
     if (s->req_left) {
         for (size_t t = 0; t < s->nb; t++) {
@@ -114,14 +118,17 @@ static double knap_joint(const surety_solver *s, size_t l)
     long brk = -1;
     for (size_t t = 0; t < s->ncand; t++) {
         uint32_t j = e[t];
-        if (s->state[j] != SURETY_JOB_FREE)
+        unsigned char kind = s->jk[j];
+        if (kind == SURETY_JK_DECIDED)
             continue;
-        double wj = row[j];
-        const unsigned char *pj = s->pxcur + j * m;
-        double fit = -INFINITY;
-        for (size_t i = 0; i < m; i++)
-            if (pj[i] && r[i] > fit)
-                fit = r[i];
+        double wj = row[j], fit = rmax;
+        if (kind == SURETY_JK_SOME) {
+            const unsigned char *pj = s->pxcur + j * m;
+            fit = -INFINITY;
+            for (size_t i = 0; i < m; i++)
+                if (pj[i] && r[i] > fit)
+                    fit = r[i];
+        }
         if (wj > fit)
             continue; /* fits no resource on its own in this scenario */
         if (brk < 0) {
@@ -313,40 +320,67 @@ static int possible_pairs(surety_solver *s, size_t row)
         if (!any && s->required[j])
             ok = 0;
     }
+    /* for the knapsacks: which open jobs may enter every open resource */
+    for (size_t t = 0; t < s->nb; t++) {
+        size_t j = s->order[t];
+        unsigned char kind = SURETY_JK_DECIDED;
+        if (s->state[j] == SURETY_JOB_FREE) {
+            kind = SURETY_JK_ALL;
+            for (size_t i = 0; i < m; i++)
+                if (px[j * m + i] != s->ropen[i])
+                    kind = SURETY_JK_SOME;
+        }
+        s->jk[j] = kind;
+    }
     return ok;
 }
 
 /* What the children of the node at depth `row` recompute (any choice is
- * valid, see surety_bound_node; this one is about work): the scenarios
- * below the (want+1)-th smallest of the values in ub[0..c) (weight w),
- * and as many at it as make up want; when w <= want, the same ones again
- * (those up to their largest value). */
-static void set_tau(surety_solver *s, size_t row, size_t c, size_t w,
-                    size_t want)
+ * valid, see surety_bound_node; this one is about work): of the scenarios
+ * ids[0..c) (total weight w), whose values the node has just used, the
+ * ones below the (want+1)-th smallest value and as many at it as make up
+ * want; when w <= want, all of them. vals/wts hold the same values in any
+ * order and are reordered. */
+static void set_list(surety_solver *s, size_t row, const size_t *ids,
+                     size_t c, size_t w, size_t want, double *vals,
+                     unsigned *wts, double slack, double cap)
 {
+    uint32_t *out = s->rl + row * s->rlcap;
+    size_t n = 0;
     if (w <= want) {
-        /* no more than want: the children recompute the same ones */
-        double mx = -INFINITY;
-        size_t at = 0;
-        for (size_t t = 0; t < c; t++) {
-            if (s->ub[t] > mx) {
-                mx = s->ub[t];
-                at = 0;
-            }
-            if (s->ub[t] == mx)
-                at += s->ubw[t];
-        }
-        s->ubtau[row] = c ? mx : INFINITY;
-        s->ubtie[row] = at;
+        for (size_t t = 0; t < c && n < s->rlcap; t++)
+            out[n++] = (uint32_t)ids[t];
+        s->rln[row] = n;
         return;
     }
-    double tau = select_weighted(s->ub, s->ubw, c, want);
+    double tau = select_weighted(vals, wts, c, want);
     size_t below = 0;
     for (size_t t = 0; t < c; t++)
-        if (s->ub[t] < tau)
-            below += s->ubw[t];
-    s->ubtau[row] = tau;
-    s->ubtie[row] = want > below ? want - below : 0;
+        if (vals[t] < tau)
+            below += wts[t];
+    size_t ties = want > below ? want - below : 0;
+    for (size_t t = 0; t < c && n < s->rlcap; t++) {
+        double v = s->ubv[ids[t]] + slack;
+        if (v > cap)
+            v = cap;
+        if (v == tau && ties > 0)
+            ties--;
+        else if (!(v < tau))
+            continue;
+        out[n++] = (uint32_t)ids[t];
+    }
+    s->rln[row] = n;
+}
+
+/* Sets the current node's bound of scenario l, keeping the old one on the
+ * trail when the node has a parent to return to. */
+static void ubv_set(surety_solver *s, size_t row, size_t l, double v)
+{
+    if (row > 0) {
+        s->ubt_l[s->ubt_len] = (uint32_t)l;
+        s->ubt_v[s->ubt_len++] = s->ubv[l];
+    }
+    s->ubv[l] = v;
 }
 
 /* The node bound is the smaller of two valid bounds:
@@ -385,77 +419,78 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
     }
     double qa = INFINITY;
     if (!s->separate) {
-        /* Values are kept per depth as absolute bounds base + kn_l. A
-         * child's bound in scenario l is at most its parent's (its
-         * completions are a subset), so for scenarios far above the
-         * parent's quantile the parent's value, plus rounding slack, stands
-         * in for a fresh knapsack; only the scenarios that can decide the
-         * quantile are recomputed, and every so often all of them. */
-        double *cur = s->ubst + row * N;
-        const double *prev = row > 0 && row != s->restart_row
-                                 ? s->ubst + (row - 1) * N : NULL;
+        /* Values are kept as absolute bounds base + kn_l in ubv. A child's
+         * bound in scenario l is at most its parent's (its completions are
+         * a subset), so a value computed at an ancestor, plus rounding
+         * slack, stays an upper bound; only the scenarios that can decide
+         * the quantile are recomputed, and every so often all of them. */
+        int have_list = row > 0 && row != s->restart_row &&
+                        s->rln[row - 1] != SIZE_MAX && (s->evals++ & 31) != 0;
         double slack = 1e-12 * (s->pscale + 1), cap = base + unc;
         size_t b = k - s->dead_w[0];
-        /* the parent left the value up to which its children recompute
-         * (about the 2(b+1)+16 smallest of its values: the ones that can
-         * decide a quantile); every 32nd evaluation recomputes them all */
-        double tau = INFINITY;
-        size_t want = 2 * (b + 1) + 16, ties = 0;
-        if (prev && (s->evals++ & 31) != 0) {
-            tau = s->ubtau[row - 1];
-            ties = s->ubtie[row - 1];
-        }
-        /* recomputed scenarios go first in ub/ubw (their ids in rix),
-         * stale ones after; when the recomputed weight exceeds b, their
-         * own (b+1)-th smallest is at least the true one (fewer values can
-         * only raise an order statistic), hence still a valid bound */
-        size_t c = 0, livew = 0, nr = 0, rw = 0;
-        for (size_t l = 0; l < N; l++) {
-            if (s->dead[l] != SURETY_LIVE)
-                continue;
-            double v;
-            if (prev && (prev[l] > tau || (prev[l] == tau && ties == 0))) {
-                v = prev[l] + slack;
+        /* the parent left the scenarios its children recompute (about the
+         * 2(b+1)+16 smallest of its values: the ones that can decide a
+         * quantile); every 32nd evaluation recomputes them all */
+        size_t want = 2 * (b + 1) + 16;
+        size_t c = 0, livew = s->N0 - s->dead_w[0], nr = 0, rw = 0;
+        if (have_list) {
+            const uint32_t *lst = s->rl + (row - 1) * s->rlcap;
+            size_t nl = s->rln[row - 1];
+            for (size_t t = 0; t < nl; t++) {
+                size_t l = lst[t];
+                if (s->dead[l] != SURETY_LIVE)
+                    continue;
+                double v = base + knap_joint(s, l);
                 if (v > cap)
                     v = cap;
-                cur[l] = v;
-                livew += s->cnt[l];
-                continue;
+                ubv_set(s, row, l, v);
+                s->ub[c] = v;
+                s->ubw[c++] = s->cnt[l];
+                s->rix[nr++] = l;
+                rw += s->cnt[l];
             }
-            if (prev && prev[l] == tau)
-                ties--;
-            v = base + knap_joint(s, l);
-            if (v > cap)
-                v = cap;
-            cur[l] = v;
-            s->ub[c] = v;
-            s->ubw[c] = s->cnt[l];
-            s->rix[nr++] = l;
-            rw += s->cnt[l];
-            livew += s->cnt[l];
-            c++;
+        } else {
+            for (size_t l = 0; l < N; l++) {
+                if (s->dead[l] != SURETY_LIVE)
+                    continue;
+                double v = base + knap_joint(s, l);
+                if (v > cap)
+                    v = cap;
+                ubv_set(s, row, l, v);
+                s->ub[c] = v;
+                s->ubw[c++] = s->cnt[l];
+                s->rix[nr++] = l;
+                rw += s->cnt[l];
+            }
         }
+        /* recomputed scenarios are in ub/ubw (their ids in rix); when their
+         * weight exceeds b, their own (b+1)-th smallest is at least the
+         * true one (fewer values can only raise an order statistic), hence
+         * still a valid bound */
         s->nrix = nr;
         s->rix_all = nr == 0 || livew == rw;
         if (rw > b) {
             qa = select_weighted(s->ub, s->ubw, c, b);
             /* for the children: about the want smallest recomputed */
-            set_tau(s, row, c, rw, want);
+            set_list(s, row, s->rix, c, rw, want, s->ub, s->ubw, 0, cap);
         } else if (livew > b) {
             /* too few recomputed: select over every live value */
             c = 0;
             for (size_t l = 0; l < N; l++)
                 if (s->dead[l] == SURETY_LIVE) {
-                    s->ub[c] = cur[l];
-                    s->ubw[c++] = s->cnt[l];
+                    double v = s->ubv[l] + slack;
+                    s->ub[c] = v < cap ? v : cap;
+                    s->ubw[c] = s->cnt[l];
+                    s->rix[c++] = l;
                 }
             qa = select_weighted(s->ub, s->ubw, c, b);
-            set_tau(s, row, c, livew, want);
+            set_list(s, row, s->rix, c, livew, want, s->ub, s->ubw, slack,
+                     cap);
+            s->nrix = c;
             s->rix_all = 1;
         } else {
             qa = cap;
-            s->ubtau[row] = INFINITY;
-            s->ubtie[row] = 0;
+            s->rln[row] = SIZE_MAX;
             s->rix_all = 1;
         }
         if (qa < bound)
@@ -468,10 +503,9 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         /* stale scenarios exceed the quantile, which exceeds the cutoff:
          * only the recomputed ones can be fixed */
         unsigned char *dead = s->dead;
-        const double *cur = s->ubst + row * N;
         for (size_t r = 0; r < s->nrix; r++) {
             size_t l = s->rix[r];
-            double v = cur[l];
+            double v = s->ubv[l];
             if (v == -INFINITY || v <= cutoff) {
                 trail_push(s, l);
                 dead[l] = SURETY_DEAD_BOUND;
@@ -480,6 +514,8 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         }
         return s->dead_w[0] > k ? -INFINITY : bound;
     }
+    /* values may come from an ancestor: plus rounding slack */
+    double slack = 1e-12 * (s->pscale + 1);
     for (size_t g = 0; g < G; g++) {
         unsigned char *dead = s->dead + g * N;
         for (size_t l = 0; l < N; l++) {
@@ -487,8 +523,8 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
                 continue;
             int fail = 0;
             if (!s->separate) {
-                double v = s->ubst[row * N + l];
-                fail = v == -INFINITY || v <= cutoff;
+                double v = s->ubv[l];
+                fail = v == -INFINITY || v + slack <= cutoff;
             }
             for (size_t i = 0; i < m && !fail && s->use_lagr; i++) {
                 if (s->separate && i != g)

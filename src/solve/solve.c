@@ -214,12 +214,15 @@ static void solver_free(surety_solver *s)
     surety_xfree(s->ub);
     surety_xfree(s->ubw);
     surety_xfree(s->kn);
-    surety_xfree(s->ubst);
-    surety_xfree(s->ubtau);
-    surety_xfree(s->ubtie);
+    surety_xfree(s->ubv);
+    surety_xfree(s->ubt_l);
+    surety_xfree(s->ubt_v);
+    surety_xfree(s->rl);
+    surety_xfree(s->rln);
     surety_xfree(s->pxs);
     surety_xfree(s->pxo);
     surety_xfree(s->ropen);
+    surety_xfree(s->jk);
     surety_xfree(s->rix);
     surety_xfree(s->inc_plan);
     surety_xfree(s->open_bound);
@@ -249,19 +252,24 @@ static int search_alloc(surety_solver *s)
     s->ub = surety_xmalloc(N, sizeof *s->ub);
     s->ubw = surety_xmalloc(N, sizeof *s->ubw);
     s->kn = surety_xmalloc(m, sizeof *s->kn);
-    s->ubst = surety_xmalloc((nb + 2) * N, sizeof *s->ubst);
-    s->ubtau = surety_xmalloc(nb + 2, sizeof *s->ubtau);
-    s->ubtie = surety_xmalloc(nb + 2, sizeof *s->ubtie);
+    s->ubv = surety_xmalloc(N, sizeof *s->ubv);
+    s->ubt_l = surety_xmalloc((nb + 1) * N, sizeof *s->ubt_l);
+    s->ubt_v = surety_xmalloc((nb + 1) * N, sizeof *s->ubt_v);
+    /* a child recomputes about 2(b+1)+16 scenarios (bound.c), b <= k */
+    s->rlcap = 2 * (s->k + 1) + 16 < N ? 2 * (s->k + 1) + 16 : N;
+    s->rl = surety_xmalloc((nb + 2) * (s->rlcap ? s->rlcap : 1), sizeof *s->rl);
+    s->rln = surety_xmalloc(nb + 2, sizeof *s->rln);
     s->pxs = surety_xmalloc((nb + 2) * n * m, 1);
     s->pxo = surety_xmalloc((nb + 2) * n * m, sizeof *s->pxo);
     s->ropen = surety_xmalloc(m, 1);
+    s->jk = surety_xcalloc(n, 1);
     s->rix = surety_xmalloc(N, sizeof *s->rix);
     s->open_bound = surety_xmalloc(nb + 1, sizeof *s->open_bound);
     s->tplan = surety_xmalloc(n, sizeof *s->tplan);
     s->tfix = surety_xmalloc(n, sizeof *s->tfix);
     if (!s->state || !s->nin || !s->load || !s->dead || !s->dead_w ||
         !s->trail || !s->saved_load || !s->saved_dead_w || !s->frames ||
-        !s->ub || !s->ubw || !s->kn || !s->ubst || !s->ubtau || !s->ubtie || !s->pxs || !s->pxo || !s->ropen ||
+        !s->ub || !s->ubw || !s->kn || !s->ubv || !s->ubt_l || !s->ubt_v || !s->rl || !s->rln || !s->pxs || !s->pxo || !s->ropen || !s->jk ||
         !s->rix || !s->open_bound ||
         !s->tplan || !s->tfix)
         return -1;

@@ -22,6 +22,11 @@
 /* Job state during the search. */
 enum { SURETY_JOB_FREE = -2, SURETY_JOB_OUT = -1 };
 
+/* A job at the current node, for the knapsacks (bound.c): decided (or
+ * not branched on), open with a possible pair in every open resource, or
+ * open with only some. */
+enum { SURETY_JK_DECIDED = 0, SURETY_JK_ALL = 1, SURETY_JK_SOME = 2 };
+
 /* Dead flags of a (group, scenario): live, overloaded by the committed
  * load, or fixed as failed by the quantile bound (METHODS.md s.7 rule 4). */
 enum { SURETY_LIVE = 0, SURETY_DEAD_LOAD = 1, SURETY_DEAD_BOUND = 2 };
@@ -41,6 +46,7 @@ typedef struct solve_open {
 /* One search depth's undo record (the trail keeps the rest). */
 typedef struct solve_frame {
     size_t trail_mark;   /* trail length before this depth's changes */
+    size_t ubt_mark;     /* the same for the trail of scenario bounds */
     long res;            /* resource whose load column was saved, or -1 */
     size_t job;          /* job decided at this depth */
     double fixed_profit; /* P_A before */
@@ -82,6 +88,7 @@ struct surety_solver {
                           * possible pair overloads alone */
     const unsigned char *pxcur; /* the current node's row of pxs */
     unsigned char *ropen; /* m: some open job can still enter resource i */
+    unsigned char *jk;   /* n: SURETY_JK_* of each job at the current node */
     uint32_t *light;     /* N*nb: per scenario, jobs to decide by hours asc */
     int *rclass;         /* m: identical-resource class (symmetry) */
     double pscale;       /* sum |p_j|, for absolute tolerances */
@@ -104,10 +111,17 @@ struct surety_solver {
     double *ub;          /* N values */
     unsigned *ubw;       /* N weights */
     double *kn;          /* m scratch: residuals when m > 64 */
-    double *ubst;        /* (nb+2)*N per-depth scenario bounds (absolute) */
-    double *ubtau;       /* nb+2: per depth, the value up to which a child
-                          * recomputes its scenarios' knapsacks */
-    size_t *ubtie;       /* nb+2: how many at exactly that value */
+    /* per-scenario bounds (absolute) of the current node; a child
+     * overwrites only those it recomputes, the old values go on a trail */
+    double *ubv;         /* N */
+    uint32_t *ubt_l;     /* (nb+1)*N trail: scenario */
+    double *ubt_v;       /* (nb+1)*N trail: its value before */
+    size_t ubt_len;
+    /* per depth, the scenarios a child of a node at that depth recomputes
+     * (the ones that can decide its quantile), or all of them */
+    uint32_t *rl;        /* (nb+2)*rlcap */
+    size_t *rln;         /* nb+2: list lengths; SIZE_MAX: every scenario */
+    size_t rlcap;
     unsigned long evals; /* bound evaluations (refresh schedule) */
     size_t *rix;         /* N: scenarios recomputed by the last evaluation */
     size_t nrix;

@@ -31,6 +31,7 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
     size_t N = s->N, G = s->G;
     solve_frame *f = &s->frames[d];
     f->trail_mark = s->trail_len;
+    f->ubt_mark = s->ubt_len;
     f->res = c;
     f->job = j;
     f->fixed_profit = s->fixed_profit;
@@ -72,6 +73,10 @@ static void undo(surety_solver *s, size_t d)
     while (s->trail_len > f->trail_mark) {
         size_t e = s->trail[--s->trail_len];
         s->dead[e >> 2] = (unsigned char)(e & 3);
+    }
+    while (s->ubt_len > f->ubt_mark) {
+        s->ubt_len--;
+        s->ubv[s->ubt_l[s->ubt_len]] = s->ubt_v[s->ubt_len];
     }
     memcpy(s->dead_w, s->saved_dead_w + d * G, G * sizeof *s->dead_w);
     if (f->res >= 0) {
