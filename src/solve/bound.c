@@ -55,9 +55,46 @@ static double select_weighted(double *vals, unsigned *wts, size_t c, size_t b)
     }
 }
 
-static void trail_push(surety_solver *s, size_t idx)
+/* Fixes scenario l of group g as failed by the bound (rule 4), on the
+ * trail. */
+static void fix_dead(surety_solver *s, size_t g, size_t l)
 {
+    size_t idx = g * s->N + l;
     s->trail[s->trail_len++] = idx << 2 | s->dead[idx];
+    s->dead[idx] = SURETY_DEAD_BOUND;
+    s->lw[idx] = 0;
+    s->dead_w[g] += s->cnt[l];
+}
+
+/* The live weight of the scenarios in which ld + wj exceeds hi, counted
+ * in blocks of 64 until it exceeds b (then some value above b). lw holds
+ * each scenario's weight when live, 0 when dead, so the loop has no
+ * branch; GCC's vector extension keeps it four lanes wide (two SSE2
+ * registers, or one AVX2 register in the clone for CPUs that have it). */
+typedef double surety_v4d __attribute__((vector_size(32)));
+typedef int64_t surety_v4i __attribute__((vector_size(32)));
+
+__attribute__((target_clones("avx2", "default")))
+static size_t count_over(const double *ld, const double *wj,
+                         const int64_t *lw, double hi, size_t N, size_t b)
+{
+    size_t over = 0, l = 0;
+    const surety_v4d h = {hi, hi, hi, hi};
+    for (; l + 64 <= N && over <= b; l += 64) {
+        surety_v4i acc = {0, 0, 0, 0};
+        for (size_t u = l; u < l + 64; u += 4) {
+            surety_v4d a, w;
+            surety_v4i c;
+            memcpy(&a, ld + u, sizeof a);
+            memcpy(&w, wj + u, sizeof w);
+            memcpy(&c, lw + u, sizeof c);
+            acc += (surety_v4i)(a + w > h) & c;
+        }
+        over += (size_t)(acc[0] + acc[1] + acc[2] + acc[3]);
+    }
+    for (; l < N && over <= b; l++)
+        over += ld[l] + wj[l] > hi ? (size_t)lw[l] : 0;
+    return over;
 }
 
 /* Fractional knapsack for the joint constraint in scenario l: candidates
@@ -259,11 +296,13 @@ static double lam_free(const surety_solver *s)
  * (METHODS.md s.7 rule 4), so a pair that alone breaks more is never part
  * of it; the presolve's rule for single pairs, applied at every node.
  * Down the tree loads only grow and live scenarios only die, so a pair
- * out at the parent stays out, and for a resource whose load did not
- * change the parent's overload count is an upper bound on the child's:
- * only pairs of the resource just loaded, or whose count bound exceeds
- * the new b, are recounted. Returns 0 when an open required job has no
- * possible pair left (the node is infeasible). */
+ * out at the parent stays out. The overload weight of every possible pair
+ * is kept exact in pxo: a pair of the resource just loaded is recounted
+ * over the N scenarios; for any other, the load is the parent's, so its
+ * count is the parent's minus the scenarios that died since the parent's
+ * count (the trail entries from the parent's mark on) and that it
+ * overloads. Returns 0 when an open required job has no possible pair
+ * left (the node is infeasible). */
 static int possible_pairs(surety_solver *s, size_t row)
 {
     size_t n = s->n, m = s->m, N = s->N, k = s->k, nm = n * m;
@@ -274,6 +313,13 @@ static int possible_pairs(surety_solver *s, size_t row)
     const uint32_t *ppo = parent ? po - nm : NULL;
     long changed = row > 0 ? s->frames[row - 1].res : -1;
     s->pxcur = px;
+    s->ppmark[row] = s->trail_len;
+    /* scenarios (g*N + l) that died since the parent's count */
+    size_t nd = 0;
+    if (parent)
+        for (size_t e = s->ppmark[row - 1]; e < s->trail_len; e++)
+            if ((s->trail[e] & 3) == SURETY_LIVE)
+                s->died[nd++] = s->trail[e] >> 2;
     memset(s->ropen, 0, m);
     int ok = 1;
     for (size_t t = 0; t < s->nb; t++) {
@@ -293,22 +339,27 @@ static int possible_pairs(surety_solver *s, size_t row)
             pj[i] = 0;
             if (!was)
                 continue;
-            if (pp && (long)i != changed && ppo[q] <= b) {
-                pj[i] = 1;
-                po[q] = ppo[q];
-                any = 1;
-                continue;
-            }
             const double *ld = s->load + i * N;
-            const unsigned char *dead = s->dead + g * N;
             double hi = s->cap_hi[i];
-            size_t over = 0;
-            for (size_t l0 = 0; l0 < N && over <= b; l0 += 64) {
-                size_t l1 = l0 + 64 < N ? l0 + 64 : N;
-                for (size_t l = l0; l < l1; l++)
-                    over += (size_t)(ld[l] + wj[l] > hi &&
-                                     dead[l] == SURETY_LIVE) * s->cnt[l];
+            if (pp && (long)i != changed) {
+                size_t over = ppo[q], gone = 0;
+                for (size_t r = 0; r < nd; r++) {
+                    size_t l = s->died[r] - g * N;
+                    if (l < N && ld[l] + wj[l] > hi)
+                        gone += s->cnt[l];
+                }
+                if (gone <= over) {
+                    over -= gone;
+                    if (over <= b) {
+                        pj[i] = 1;
+                        po[q] = (uint32_t)over;
+                        any = 1;
+                    }
+                    continue;
+                }
+                /* not reached while the counts are exact: recount */
             }
+            size_t over = count_over(ld, wj, s->lw + g * N, hi, N, b);
             if (over <= b) {
                 pj[i] = 1;
                 po[q] = (uint32_t)over;
@@ -502,15 +553,11 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
     if (!s->separate && !s->use_lagr && !s->rix_all) {
         /* stale scenarios exceed the quantile, which exceeds the cutoff:
          * only the recomputed ones can be fixed */
-        unsigned char *dead = s->dead;
         for (size_t r = 0; r < s->nrix; r++) {
             size_t l = s->rix[r];
             double v = s->ubv[l];
-            if (v == -INFINITY || v <= cutoff) {
-                trail_push(s, l);
-                dead[l] = SURETY_DEAD_BOUND;
-                s->dead_w[0] += s->cnt[l];
-            }
+            if (v == -INFINITY || v <= cutoff)
+                fix_dead(s, 0, l);
         }
         return s->dead_w[0] > k ? -INFINITY : bound;
     }
@@ -531,11 +578,8 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
                     continue;
                 fail = base + lf + lsum - s->ql[i] + s->kl[i * N + l] <= cutoff;
             }
-            if (fail) {
-                trail_push(s, g * N + l);
-                dead[l] = SURETY_DEAD_BOUND;
-                s->dead_w[g] += s->cnt[l];
-            }
+            if (fail)
+                fix_dead(s, g, l);
         }
         if (s->dead_w[g] > k)
             return -INFINITY;

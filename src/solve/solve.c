@@ -205,7 +205,10 @@ static void solver_free(surety_solver *s)
     surety_xfree(s->state);
     surety_xfree(s->nin);
     surety_xfree(s->load);
+    surety_xfree(s->ltot);
+    surety_xfree(s->wtot);
     surety_xfree(s->dead);
+    surety_xfree(s->lw);
     surety_xfree(s->dead_w);
     surety_xfree(s->trail);
     surety_xfree(s->saved_load);
@@ -221,6 +224,8 @@ static void solver_free(surety_solver *s)
     surety_xfree(s->rln);
     surety_xfree(s->pxs);
     surety_xfree(s->pxo);
+    surety_xfree(s->ppmark);
+    surety_xfree(s->died);
     surety_xfree(s->ropen);
     surety_xfree(s->jk);
     surety_xfree(s->rix);
@@ -242,7 +247,10 @@ static int search_alloc(surety_solver *s)
     s->state = surety_xmalloc(n, sizeof *s->state);
     s->nin = surety_xcalloc(m, sizeof *s->nin);
     s->load = surety_xcalloc(m * N, sizeof *s->load);
+    s->ltot = surety_xcalloc(m, sizeof *s->ltot);
+    s->wtot = surety_xcalloc(n, sizeof *s->wtot);
     s->dead = surety_xcalloc(G * N, 1);
+    s->lw = surety_xmalloc(G * N, sizeof *s->lw);
     s->dead_w = surety_xcalloc(G, sizeof *s->dead_w);
     s->trail_cap = 2 * G * N + 16;
     s->trail = surety_xmalloc(s->trail_cap, sizeof *s->trail);
@@ -261,20 +269,27 @@ static int search_alloc(surety_solver *s)
     s->rln = surety_xmalloc(nb + 2, sizeof *s->rln);
     s->pxs = surety_xmalloc((nb + 2) * n * m, 1);
     s->pxo = surety_xmalloc((nb + 2) * n * m, sizeof *s->pxo);
+    s->ppmark = surety_xmalloc(nb + 2, sizeof *s->ppmark);
+    s->died = surety_xmalloc(s->trail_cap, sizeof *s->died);
     s->ropen = surety_xmalloc(m, 1);
     s->jk = surety_xcalloc(n, 1);
     s->rix = surety_xmalloc(N, sizeof *s->rix);
     s->open_bound = surety_xmalloc(nb + 1, sizeof *s->open_bound);
     s->tplan = surety_xmalloc(n, sizeof *s->tplan);
     s->tfix = surety_xmalloc(n, sizeof *s->tfix);
-    if (!s->state || !s->nin || !s->load || !s->dead || !s->dead_w ||
+    if (!s->state || !s->nin || !s->load || !s->lw || !s->ltot || !s->wtot || !s->dead || !s->dead_w ||
         !s->trail || !s->saved_load || !s->saved_dead_w || !s->frames ||
-        !s->ub || !s->ubw || !s->kn || !s->ubv || !s->ubt_l || !s->ubt_v || !s->rl || !s->rln || !s->pxs || !s->pxo || !s->ropen || !s->jk ||
+        !s->ub || !s->ubw || !s->kn || !s->ubv || !s->ubt_l || !s->ubt_v || !s->rl || !s->rln || !s->pxs || !s->pxo || !s->ppmark || !s->died || !s->ropen || !s->jk ||
         !s->rix || !s->open_bound ||
         !s->tplan || !s->tfix)
         return -1;
-    for (size_t j = 0; j < n; j++)
+    for (size_t e = 0; e < G * N; e++)
+        s->lw[e] = s->cnt[e % N];
+    for (size_t j = 0; j < n; j++) {
         s->state[j] = SURETY_JOB_OUT;
+        for (size_t l = 0; l < N; l++)
+            s->wtot[j] += s->wt[j * N + l];
+    }
     for (size_t t = 0; t < nb; t++)
         s->state[s->order[t]] = SURETY_JOB_FREE;
     for (size_t d = 0; d <= nb; d++)

@@ -48,6 +48,7 @@ typedef struct solve_frame {
     size_t trail_mark;   /* trail length before this depth's changes */
     size_t ubt_mark;     /* the same for the trail of scenario bounds */
     long res;            /* resource whose load column was saved, or -1 */
+    double ltot;         /* that resource's total load before */
     size_t job;          /* job decided at this depth */
     double fixed_profit; /* P_A before */
     double req_profit;   /* profit of undecided required jobs before */
@@ -84,8 +85,10 @@ struct surety_solver {
      * overloads more live scenarios than the node may still fail is out
      * for the whole subtree (bound.c, possible_pairs) */
     unsigned char *pxs;  /* (nb+2)*n*m per depth */
-    uint32_t *pxo;       /* (nb+2)*n*m: upper bound on the live weight a
-                          * possible pair overloads alone */
+    uint32_t *pxo;       /* (nb+2)*n*m: the live weight a possible pair
+                          * overloads alone */
+    size_t *ppmark;      /* nb+2: trail length when the row was filled */
+    size_t *died;        /* G*N scratch: scenarios dead since the parent's */
     const unsigned char *pxcur; /* the current node's row of pxs */
     unsigned char *ropen; /* m: some open job can still enter resource i */
     unsigned char *jk;   /* n: SURETY_JK_* of each job at the current node */
@@ -97,7 +100,10 @@ struct surety_solver {
     long *state;         /* n: SURETY_JOB_FREE, SURETY_JOB_OUT or resource */
     size_t *nin;         /* m: jobs placed in resource i */
     double *load;        /* m*N, resource-major: base hours placed */
+    double *ltot;        /* m: sum of load over the N scenario rows */
+    double *wtot;        /* n: sum of wt over the N scenario rows */
     unsigned char *dead; /* G*N flags */
+    int64_t *lw;         /* G*N: the scenario's weight when live, else 0 */
     size_t *dead_w;      /* G: weight of dead scenarios */
     size_t *trail;       /* (g*N + l) << 2 | old flag */
     size_t trail_len, trail_cap;

@@ -48,6 +48,8 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
     size_t i = (size_t)c, g = group_of(s, i);
     s->fixed_profit += s->p[j];
     s->nin[i]++;
+    f->ltot = s->ltot[i];
+    s->ltot[i] += s->wtot[j];
     double *ld = s->load + i * N;
     memcpy(s->saved_load + d * N, ld, N * sizeof *ld);
     const double *wj = s->wt + j * N;
@@ -57,8 +59,10 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
         double x = ld[l] + wj[l];
         ld[l] = x;
         if (x > hi && dead[l] != SURETY_DEAD_LOAD) {
-            if (dead[l] == SURETY_LIVE)
+            if (dead[l] == SURETY_LIVE) {
                 s->dead_w[g] += s->cnt[l];
+                s->lw[g * N + l] = 0;
+            }
             s->trail[s->trail_len++] = (g * N + l) << 2 | dead[l];
             dead[l] = SURETY_DEAD_LOAD;
         }
@@ -73,6 +77,7 @@ static void undo(surety_solver *s, size_t d)
     while (s->trail_len > f->trail_mark) {
         size_t e = s->trail[--s->trail_len];
         s->dead[e >> 2] = (unsigned char)(e & 3);
+        s->lw[e >> 2] = (e & 3) == SURETY_LIVE ? s->cnt[(e >> 2) % N] : 0;
     }
     while (s->ubt_len > f->ubt_mark) {
         s->ubt_len--;
@@ -83,6 +88,7 @@ static void undo(surety_solver *s, size_t d)
         memcpy(s->load + (size_t)f->res * N, s->saved_load + d * N,
                N * sizeof *s->load);
         s->nin[f->res]--;
+        s->ltot[f->res] = f->ltot;
     }
     s->state[f->job] = SURETY_JOB_FREE;
     s->fixed_profit = f->fixed_profit;
@@ -287,24 +293,20 @@ static void dive(surety_solver *s, size_t d, double node_bound)
     if (!s->required[j])
         ch[nc++].c = SURETY_JOB_OUT;
     /* children in the order of the greedy insertion (METHODS.md s.8): the
-     * resource where j overloads the fewest live scenarios, then the least
-     * loaded; rejecting j last. Each child is evaluated once, when
-     * visited; until then its bound is at most this node's. */
+     * resource where j overloads the fewest live scenarios (the count the
+     * pair rule kept for this node: exact for the resource loaded last,
+     * else an upper bound), then the least loaded; rejecting j last. Each
+     * child is evaluated once, when visited; until then its bound is at
+     * most this node's. */
+    const uint32_t *po = s->pxo + d * s->n * m;
     for (size_t t = 0; t < nc; t++) {
         if (ch[t].c < 0) {
             ch[t].b = -INFINITY;
             continue;
         }
-        size_t i = (size_t)ch[t].c, g = group_of(s, i), N = s->N;
-        const double *ld = s->load + i * N, *wj = s->wt + j * N;
-        const unsigned char *dead = s->dead + g * N;
-        double hi = s->cap_hi[i], kill = 0, tot = 0;
-        for (size_t l = 0; l < N; l++) {
-            tot += ld[l];
-            if (dead[l] == SURETY_LIVE && ld[l] + wj[l] > hi)
-                kill += s->cnt[l];
-        }
-        ch[t].b = -(kill * 1e6 * (double)N + tot / s->cap[i]);
+        size_t i = (size_t)ch[t].c;
+        double kill = po[j * m + i];
+        ch[t].b = -(kill * 1e6 * (double)s->N + s->ltot[i] / s->cap[i]);
     }
     for (size_t t = 1; t < nc; t++) {
         child x = ch[t];
