@@ -689,8 +689,10 @@ def limited_checks(inst, ref, surety, path, rng, stats):
 def run_one(model, table, features, surety, work, limit, stats, rng, do_limits):
     path = write_model(work, model, table)
     inst = Instance(model, features, work)
+    inst.path = path
     t0 = time.time()
     res, plan_path = solve_surety(surety, path, [], work)
+    inst.plan_path = plan_path
     stats["surety_s"] += time.time() - t0
     read_scenarios(inst, surety, path)
     ref = reference(inst, surety, path, limit, stats)
@@ -710,6 +712,26 @@ def recheck(inst, limit):
     out["highs-export"] = highs_plain(inst, limit)
     out["highs-own"] = own_milp(inst, limit)
     return out
+
+
+def reference_fault(inst, res, ref, more, surety, work, stats, a, idx):
+    """True when the rechecks (GLPK and HiGHS on the same export, HiGHS on the formulation
+    written here) all finished, agree with each other, and surety passes every check against
+    them, including the limited runs when this instance had them: then the first reference
+    was wrong, not surety. CBC 2.10.8 has been seen to return a wrong "optimal"."""
+    if any(st not in ("optimal", "infeasible") for st, _ in more.values()):
+        return False
+    v = verdict_of(more)
+    if v in (None, "split"):
+        return False
+    ref2 = dict(ref)
+    ref2["sources"] = dict(more)
+    problems, _ = compare(inst, res, inst.plan_path, ref2, surety, inst.path)
+    rng = random.Random("limits/%d/%d" % (a.seed, idx))
+    if rng.random() < a.limits:
+        p2, _ = limited_checks(inst, ref2, surety, inst.path, rng, collections.Counter())
+        problems += p2
+    return not problems
 
 
 # ---------------------------------------------------------------------------------------------
@@ -827,6 +849,7 @@ def main(argv):
     stats = collections.Counter()
     by = collections.defaultdict(collections.Counter)
     bad = []
+    ref_faults = []
     nodes = []
     done = 0
     for idx in range(a.first, a.first + a.count):
@@ -888,6 +911,18 @@ def main(argv):
                 print("    DISAGREE " + p)
             more = recheck(inst, a.cbc_limit)
             print("    recheck: %s" % more)
+            if reference_fault(inst, res, ref, more, surety, work, stats, a, idx):
+                # the three further references agree with each other and with surety, and
+                # every check passes against them: the first reference was wrong
+                print("    REFERENCE FAULT: glpk, highs-export and highs-own agree with each "
+                      "other and with surety, and every check passes against them; the first "
+                      "reference (%s) is wrong here, not counted as a surety disagreement" %
+                      " ".join("%s=%s" % (s, v[1] if v[0] == "optimal" else v[0])
+                               for s, v in ref["sources"].items()))
+                ref_faults.append(idx)
+                if not a.keep:
+                    shutil.rmtree(work, ignore_errors=True)
+                continue
             bad.append((idx, features, problems, more))
             if not a.no_minimise:
                 mm, tt = minimise(model, table, features, surety, a.cbc_limit)
@@ -917,6 +952,10 @@ def main(argv):
     wall = time.time() - t_start
     print("\n%d instances in %.0f s (seed %d, first %d); %d errors; %d disagreeing" % (
         done, wall, a.seed, a.first, stats["errors"], len(bad)))
+    if ref_faults:
+        print("reference faults (the first reference contradicted by three others that agree "
+              "with surety): %d, instances %s" % (len(ref_faults),
+                                                   " ".join(str(i) for i in ref_faults)))
     print("surety statuses: %s" % ", ".join("%s %d" % (k[7:], v) for k, v in sorted(stats.items())
                                              if k.startswith("status_")))
     print("reference verdicts: %s" % ", ".join("%s %d" % (k[4:], v)
