@@ -150,6 +150,27 @@ static double knap_joint(const surety_solver *s, size_t l)
      * filled at most at the next job's efficiency) or c is taken (the
      * missing hours are removed from the taken jobs at least at the last
      * taken job's efficiency). Both are at most the LP value. */
+    /* most scenarios deep in the tree have room for every open job that
+     * fits a resource on its own: then the value is their profit, found
+     * from the node's short list of open candidates */
+    double hsum = 0, psum = 0;
+    for (size_t t = 0; t < s->nfree; t++) {
+        size_t j = s->freec[t];
+        double wj = row[j], fit = rmax;
+        if (s->jk[j] == SURETY_JK_SOME) {
+            const unsigned char *pj = s->pxcur + j * m;
+            fit = -INFINITY;
+            for (size_t i = 0; i < m; i++)
+                if (pj[i] && r[i] > fit)
+                    fit = r[i];
+        }
+        if (wj <= fit) {
+            hsum += wj;
+            psum += s->p[j];
+        }
+    }
+    if (hsum <= agg)
+        return psum;
     const uint32_t *e = s->eff + l * s->ncand;
     double v = 0, c = agg, elast = INFINITY;
     long brk = -1;
@@ -371,7 +392,9 @@ static int possible_pairs(surety_solver *s, size_t row)
         if (!any && s->required[j])
             ok = 0;
     }
-    /* for the knapsacks: which open jobs may enter every open resource */
+    /* for the knapsacks: the open candidates, and which of them may enter
+     * every open resource */
+    s->nfree = 0;
     for (size_t t = 0; t < s->nb; t++) {
         size_t j = s->order[t];
         unsigned char kind = SURETY_JK_DECIDED;
@@ -380,6 +403,8 @@ static int possible_pairs(surety_solver *s, size_t row)
             for (size_t i = 0; i < m; i++)
                 if (px[j * m + i] != s->ropen[i])
                     kind = SURETY_JK_SOME;
+            if (s->cand[j])
+                s->freec[s->nfree++] = (uint32_t)j;
         }
         s->jk[j] = kind;
     }

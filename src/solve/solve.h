@@ -92,6 +92,8 @@ struct surety_solver {
     const unsigned char *pxcur; /* the current node's row of pxs */
     unsigned char *ropen; /* m: some open job can still enter resource i */
     unsigned char *jk;   /* n: SURETY_JK_* of each job at the current node */
+    uint32_t *freec;     /* n: the open candidates of the current node */
+    size_t nfree;
     uint32_t *light;     /* N*nb: per scenario, jobs to decide by hours asc */
     int *rclass;         /* m: identical-resource class (symmetry) */
     double pscale;       /* sum |p_j|, for absolute tolerances */
