@@ -19,6 +19,12 @@
  * stay live (a weaker, still valid bound) and the exact recount decides. */
 #define SURETY_SOLVE_LOAD_TOL 1e-9
 
+/* Four doubles and four 64-bit integers as GCC vector types, for the
+ * loops over scenarios (two SSE2 registers each, or one in an AVX2 clone:
+ * the functions using them are compiled for both with target_clones). */
+typedef double surety_v4d __attribute__((vector_size(32)));
+typedef int64_t surety_v4i __attribute__((vector_size(32)));
+
 /* Job state during the search. */
 enum { SURETY_JOB_FREE = -2, SURETY_JOB_OUT = -1 };
 

@@ -23,6 +23,49 @@ double surety_cutoff(const surety_solver *s)
     return s->inc + (tol > noise ? tol : noise);
 }
 
+/* Scenario l of group g is overloaded by the committed load: dead, on
+ * the trail. */
+static void overload(surety_solver *s, size_t g, size_t l)
+{
+    size_t idx = g * s->N + l;
+    unsigned char *dead = s->dead + idx;
+    if (*dead == SURETY_DEAD_LOAD)
+        return;
+    if (*dead == SURETY_LIVE) {
+        s->dead_w[g] += s->cnt[l];
+        s->lw[idx] = 0;
+    }
+    s->trail[s->trail_len++] = idx << 2 | *dead;
+    *dead = SURETY_DEAD_LOAD;
+}
+
+/* ld += wj over the N scenarios; those now above hi are overloaded. Four
+ * scenarios at a time (most blocks have none above hi). */
+__attribute__((target_clones("avx2", "default")))
+static void add_load(surety_solver *s, size_t g, double *ld, const double *wj,
+                     double hi)
+{
+    size_t N = s->N, l = 0;
+    const surety_v4d h = {hi, hi, hi, hi};
+    for (; l + 4 <= N; l += 4) {
+        surety_v4d a, w;
+        memcpy(&a, ld + l, sizeof a);
+        memcpy(&w, wj + l, sizeof w);
+        a += w;
+        memcpy(ld + l, &a, sizeof a);
+        surety_v4i o = (surety_v4i)(a > h);
+        if (o[0] | o[1] | o[2] | o[3])
+            for (size_t u = l; u < l + 4; u++)
+                if (ld[u] > hi)
+                    overload(s, g, u);
+    }
+    for (; l < N; l++) {
+        ld[l] += wj[l];
+        if (ld[l] > hi)
+            overload(s, g, l);
+    }
+}
+
 /* Decides job j at depth d: c >= 0 places it in resource c, SURETY_JOB_OUT
  * rejects it. Returns 0 when the node is already infeasible (more than k
  * scenarios clearly overloaded in a group). O(N) work. */
@@ -52,21 +95,7 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
     s->ltot[i] += s->wtot[j];
     double *ld = s->load + i * N;
     memcpy(s->saved_load + d * N, ld, N * sizeof *ld);
-    const double *wj = s->wt + j * N;
-    unsigned char *dead = s->dead + g * N;
-    double hi = s->cap_hi[i];
-    for (size_t l = 0; l < N; l++) {
-        double x = ld[l] + wj[l];
-        ld[l] = x;
-        if (x > hi && dead[l] != SURETY_DEAD_LOAD) {
-            if (dead[l] == SURETY_LIVE) {
-                s->dead_w[g] += s->cnt[l];
-                s->lw[g * N + l] = 0;
-            }
-            s->trail[s->trail_len++] = (g * N + l) << 2 | dead[l];
-            dead[l] = SURETY_DEAD_LOAD;
-        }
-    }
+    add_load(s, g, ld, s->wt + j * N, s->cap_hi[i]);
     return s->dead_w[g] <= s->k;
 }
 
