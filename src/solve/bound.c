@@ -71,7 +71,7 @@ static void fix_dead(surety_solver *s, size_t g, size_t l)
  * each scenario's weight when live, 0 when dead, so the loop has no
  * branch; GCC's vector extension keeps it four lanes wide (two SSE2
  * registers, or one AVX2 register in the clone for CPUs that have it). */
-__attribute__((target_clones("avx2", "default")))
+SURETY_CLONES
 static size_t count_over(const double *ld, const double *wj,
                          const int64_t *lw, double hi, size_t N, size_t b)
 {

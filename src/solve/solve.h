@@ -21,9 +21,14 @@
 
 /* Four doubles and four 64-bit integers as GCC vector types, for the
  * loops over scenarios (two SSE2 registers each, or one in an AVX2 clone:
- * the functions using them are compiled for both with target_clones). */
+ * on x86-64 the functions using them are compiled for both, SURETY_CLONES). */
 typedef double surety_v4d __attribute__((vector_size(32)));
 typedef int64_t surety_v4i __attribute__((vector_size(32)));
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(SURETY_NO_CLONES)
+#define SURETY_CLONES __attribute__((target_clones("avx2", "default")))
+#else
+#define SURETY_CLONES /* other targets: one generic version */
+#endif
 
 /* Job state during the search. */
 enum { SURETY_JOB_FREE = -2, SURETY_JOB_OUT = -1 };

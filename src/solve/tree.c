@@ -41,7 +41,7 @@ static void overload(surety_solver *s, size_t g, size_t l)
 
 /* ld += wj over the N scenarios; those now above hi are overloaded. Four
  * scenarios at a time (most blocks have none above hi). */
-__attribute__((target_clones("avx2", "default")))
+SURETY_CLONES
 static void add_load(surety_solver *s, size_t g, double *ld, const double *wj,
                      double hi)
 {
