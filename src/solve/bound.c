@@ -2,6 +2,7 @@
  * (METHODS.md s.7, rules 1, 3 and 4).
  * SPDX-License-Identifier: MIT */
 #include <math.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -454,7 +455,68 @@ static void ubv_set(surety_solver *s, size_t row, size_t l, double v)
         s->ubt_v[s->ubt_len++] = s->ubv[l];
     }
     s->ubv[l] = v;
+#ifdef SURETY_CHECK_INVARIANTS
+    s->chk_ub[row * s->N + l] = v;
+#endif
 }
+
+#ifdef SURETY_CHECK_INVARIANTS
+/* Built only for tests/test_invariants.c: the bookkeeping that makes the
+ * search fast is compared with a slow, direct version at every node, and
+ * any difference aborts. */
+static void chk_fail(const char *what, size_t row, size_t a, size_t b)
+{
+    fprintf(stderr, "invariant broken at depth %zu: %s (%zu, %zu)\n", row, what,
+            a, b);
+    abort();
+}
+
+/* The live weights and the pair rule's kept counts against a recount. */
+static void chk_pairs(const surety_solver *s, size_t row)
+{
+    size_t N = s->N, m = s->m;
+    for (size_t g = 0; g < s->G; g++)
+        for (size_t l = 0; l < N; l++)
+            if (s->lw[g * N + l] !=
+                (s->dead[g * N + l] == SURETY_LIVE ? (int64_t)s->cnt[l] : 0))
+                chk_fail("live weight", row, g, l);
+    const unsigned char *px = s->pxs + row * s->n * m;
+    const uint32_t *po = s->pxo + row * s->n * m;
+    for (size_t t = 0; t < s->nb; t++)
+        for (size_t i = 0, j = s->order[t]; i < m; i++) {
+            if (!px[j * m + i])
+                continue;
+            size_t g = s->separate ? i : 0, over = 0;
+            for (size_t l = 0; l < N; l++)
+                if (s->dead[g * N + l] == SURETY_LIVE &&
+                    s->load[i * N + l] + s->wt[j * N + l] > s->cap_hi[i])
+                    over += s->cnt[l];
+            if (over != po[j * m + i])
+                chk_fail("pair count", row, j, i);
+        }
+}
+
+/* Before an evaluation: the node starts from its parent's values (a node
+ * restored from the pool, from the root's), which the undo trail must
+ * have brought back exactly. */
+static void chk_ub_start(surety_solver *s, size_t row)
+{
+    size_t N = s->N;
+    if (!s->chk_ub) {
+        s->chk_ub = calloc((s->nb + 2) * N, sizeof *s->chk_ub);
+        if (!s->chk_ub)
+            abort();
+    }
+    if (row == 0)
+        return;
+    size_t from = row == s->restart_row ? 0 : row - 1;
+    const double *exp = s->chk_ub + from * N;
+    for (size_t l = 0; l < N; l++)
+        if (memcmp(&s->ubv[l], &exp[l], sizeof *exp) != 0)
+            chk_fail("scenario bound not restored", row, l, from);
+    memcpy(s->chk_ub + row * N, exp, N * sizeof *exp);
+}
+#endif
 
 /* The node bound is the smaller of two valid bounds:
  *  - aggregated (joint only; METHODS.md s.7 rule 3): a completion that
@@ -476,6 +538,9 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
             return -INFINITY;
     if (!possible_pairs(s, row))
         return -INFINITY;
+#ifdef SURETY_CHECK_INVARIANTS
+    chk_pairs(s, row);
+#endif
 
     double unc = 0;
     for (size_t t = 0; t < s->nb; t++) {
@@ -497,6 +562,9 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
          * a subset), so a value computed at an ancestor, plus rounding
          * slack, stays an upper bound; only the scenarios that can decide
          * the quantile are recomputed, and every so often all of them. */
+#ifdef SURETY_CHECK_INVARIANTS
+        chk_ub_start(s, row);
+#endif
         int have_list = row > 0 && row != s->restart_row &&
                         s->rln[row - 1] != SIZE_MAX && (s->evals++ & 31) != 0;
         double slack = 1e-12 * (s->pscale + 1), cap = base + unc;
@@ -740,6 +808,10 @@ int surety_bound_init(surety_solver *s)
 
 void surety_bound_free(surety_solver *s)
 {
+#ifdef SURETY_CHECK_INVARIANTS
+    free(s->chk_ub);
+    s->chk_ub = NULL;
+#endif
     surety_xfree(s->lam);
     surety_xfree(s->rp);
     surety_xfree(s->leff);

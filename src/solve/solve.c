@@ -261,7 +261,7 @@ static int search_alloc(surety_solver *s)
     s->ub = surety_xmalloc(N, sizeof *s->ub);
     s->ubw = surety_xmalloc(N, sizeof *s->ubw);
     s->kn = surety_xmalloc(m, sizeof *s->kn);
-    s->ubv = surety_xmalloc(N, sizeof *s->ubv);
+    s->ubv = surety_xcalloc(N, sizeof *s->ubv);
     s->ubt_l = surety_xmalloc((nb + 1) * N, sizeof *s->ubt_l);
     s->ubt_v = surety_xmalloc((nb + 1) * N, sizeof *s->ubt_v);
     /* a child recomputes about 2(b+1)+16 scenarios (bound.c), b <= k */

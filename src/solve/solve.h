@@ -141,6 +141,9 @@ struct surety_solver {
     uint32_t *rl;        /* (nb+2)*rlcap */
     size_t *rln;         /* nb+2: list lengths; SIZE_MAX: every scenario */
     size_t rlcap;
+#ifdef SURETY_CHECK_INVARIANTS
+    double *chk_ub;      /* (nb+2)*N: the values ubv must hold per depth */
+#endif
     unsigned long evals; /* bound evaluations (refresh schedule) */
     size_t *rix;         /* N: scenarios recomputed by the last evaluation */
     size_t nrix;
