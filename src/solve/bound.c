@@ -152,17 +152,25 @@ static double knap_joint(const surety_solver *s, size_t l)
      * fits a resource on its own: then the value is their profit, found
      * from the node's short list of open candidates */
     double hsum = 0, psum = 0;
+    unsigned char *fits = s->kfit; /* open jobs: fits a resource alone */
     for (size_t t = 0; t < s->nfree; t++) {
         size_t j = s->freec[t];
         double wj = row[j], fit = rmax;
         if (s->jk[j] == SURETY_JK_SOME) {
-            const unsigned char *pj = s->pxcur + j * m;
             fit = -INFINITY;
-            for (size_t i = 0; i < m; i++)
-                if (pj[i] && r[i] > fit)
-                    fit = r[i];
+            if (m <= 32) {
+                for (uint32_t a = s->pbits[j]; a; a &= a - 1)
+                    if (r[__builtin_ctz(a)] > fit)
+                        fit = r[__builtin_ctz(a)];
+            } else {
+                const unsigned char *pj = s->pxcur + j * m;
+                for (size_t i = 0; i < m; i++)
+                    if (pj[i] && r[i] > fit)
+                        fit = r[i];
+            }
         }
-        if (wj <= fit) {
+        fits[j] = wj <= fit;
+        if (fits[j]) {
             hsum += wj;
             psum += s->p[j];
         }
@@ -174,19 +182,9 @@ static double knap_joint(const surety_solver *s, size_t l)
     long brk = -1;
     for (size_t t = 0; t < s->ncand; t++) {
         uint32_t j = e[t];
-        unsigned char kind = s->jk[j];
-        if (kind == SURETY_JK_DECIDED)
-            continue;
-        double wj = row[j], fit = rmax;
-        if (kind == SURETY_JK_SOME) {
-            const unsigned char *pj = s->pxcur + j * m;
-            fit = -INFINITY;
-            for (size_t i = 0; i < m; i++)
-                if (pj[i] && r[i] > fit)
-                    fit = r[i];
-        }
-        if (wj > fit)
-            continue; /* fits no resource on its own in this scenario */
+        if (!fits[j])
+            continue; /* decided, or fits no resource on its own here */
+        double wj = row[j];
         if (brk < 0) {
             if (wj <= c) {
                 v += s->p[j];
@@ -396,11 +394,17 @@ static int possible_pairs(surety_solver *s, size_t row)
     for (size_t t = 0; t < s->nb; t++) {
         size_t j = s->order[t];
         unsigned char kind = SURETY_JK_DECIDED;
+        s->kfit[j] = 0;
         if (s->state[j] == SURETY_JOB_FREE) {
             kind = SURETY_JK_ALL;
-            for (size_t i = 0; i < m; i++)
+            uint32_t bits = 0;
+            for (size_t i = 0; i < m; i++) {
                 if (px[j * m + i] != s->ropen[i])
                     kind = SURETY_JK_SOME;
+                if (px[j * m + i] && i < 32)
+                    bits |= (uint32_t)1 << i;
+            }
+            s->pbits[j] = bits;
             if (s->cand[j])
                 s->freec[s->nfree++] = (uint32_t)j;
         }

@@ -229,6 +229,8 @@ static void solver_free(surety_solver *s)
     surety_xfree(s->ropen);
     surety_xfree(s->jk);
     surety_xfree(s->freec);
+    surety_xfree(s->pbits);
+    surety_xfree(s->kfit);
     surety_xfree(s->rix);
     surety_xfree(s->inc_plan);
     surety_xfree(s->open_bound);
@@ -275,13 +277,15 @@ static int search_alloc(surety_solver *s)
     s->ropen = surety_xmalloc(m, 1);
     s->jk = surety_xcalloc(n, 1);
     s->freec = surety_xmalloc(n, sizeof *s->freec);
+    s->pbits = surety_xcalloc(n, sizeof *s->pbits);
+    s->kfit = surety_xcalloc(n, 1);
     s->rix = surety_xmalloc(N, sizeof *s->rix);
     s->open_bound = surety_xmalloc(nb + 1, sizeof *s->open_bound);
     s->tplan = surety_xmalloc(n, sizeof *s->tplan);
     s->tfix = surety_xmalloc(n, sizeof *s->tfix);
     if (!s->state || !s->nin || !s->load || !s->lw || !s->ltot || !s->wtot || !s->dead || !s->dead_w ||
         !s->trail || !s->saved_load || !s->saved_dead_w || !s->frames ||
-        !s->ub || !s->ubw || !s->kn || !s->ubv || !s->ubt_l || !s->ubt_v || !s->rl || !s->rln || !s->pxs || !s->pxo || !s->ppmark || !s->died || !s->ropen || !s->jk || !s->freec ||
+        !s->ub || !s->ubw || !s->kn || !s->ubv || !s->ubt_l || !s->ubt_v || !s->rl || !s->rln || !s->pxs || !s->pxo || !s->ppmark || !s->died || !s->ropen || !s->jk || !s->freec || !s->pbits || !s->kfit ||
         !s->rix || !s->open_bound ||
         !s->tplan || !s->tfix)
         return -1;

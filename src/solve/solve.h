@@ -104,6 +104,10 @@ struct surety_solver {
     unsigned char *ropen; /* m: some open job can still enter resource i */
     unsigned char *jk;   /* n: SURETY_JK_* of each job at the current node */
     uint32_t *freec;     /* n: the open candidates of the current node */
+    uint32_t *pbits;     /* n: resources an open job may enter, as bits
+                          * (m <= 32) */
+    unsigned char *kfit; /* n: knapsack scratch, the job fits alone (0 for
+                          * decided jobs) */
     size_t nfree;
     uint32_t *light;     /* N*nb: per scenario, jobs to decide by hours asc */
     int *rclass;         /* m: identical-resource class (symmetry) */
