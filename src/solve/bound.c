@@ -522,6 +522,17 @@ static void chk_ub_start(surety_solver *s, size_t row)
 }
 #endif
 
+/* The list for the children of a node that survived its bound (nothing
+ * to do for the per-resource bound alone, or a node whose list is "every
+ * scenario", or a leaf). */
+static void children_list(surety_solver *s, size_t row, size_t c, size_t w,
+                          size_t want, double slack, double cap)
+{
+    if (c == SIZE_MAX || row >= s->nb)
+        return;
+    set_list(s, row, s->rix, c, w, want, s->ub, s->ubw, slack, cap);
+}
+
 /* The node bound is the smaller of two valid bounds:
  *  - aggregated (joint only; METHODS.md s.7 rule 3): a completion that
  *    beats the cutoff fits all but at most b = k - dead of the live
@@ -560,6 +571,10 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
             bound = base + lf + lsum;
     }
     double qa = INFINITY;
+    /* the children's list (set_list) is made only for a node that
+     * survives: the values its ids point to (ub, ubw, rix) are kept */
+    size_t lst_c = SIZE_MAX, lst_w = 0, lst_want = 0;
+    double lst_slack = 0, lst_cap = 0;
     if (!s->separate) {
         /* Values are kept as absolute bounds base + kn_l in ubv. A child's
          * bound in scenario l is at most its parent's (its completions are
@@ -577,6 +592,8 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
          * 2(b+1)+16 smallest of its values: the ones that can decide a
          * quantile); every 32nd evaluation recomputes them all */
         size_t want = 2 * (b + 1) + 16;
+        lst_want = want;
+        lst_cap = cap;
         size_t c = 0, livew = s->N0 - s->dead_w[0], nr = 0, rw = 0;
         if (have_list) {
             const uint32_t *lst = s->rl + (row - 1) * s->rlcap;
@@ -617,7 +634,8 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         if (rw > b) {
             qa = select_weighted(s->ub, s->ubw, c, b);
             /* for the children: about the want smallest recomputed */
-            set_list(s, row, s->rix, c, rw, want, s->ub, s->ubw, 0, cap);
+            lst_c = c;
+            lst_w = rw;
         } else if (livew > b) {
             /* too few recomputed: select over every live value */
             c = 0;
@@ -629,8 +647,9 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
                     s->rix[c++] = l;
                 }
             qa = select_weighted(s->ub, s->ubw, c, b);
-            set_list(s, row, s->rix, c, livew, want, s->ub, s->ubw, slack,
-                     cap);
+            lst_c = c;
+            lst_w = livew;
+            lst_slack = slack;
             s->nrix = c;
             s->rix_all = 1;
         } else {
@@ -653,7 +672,10 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
             if (v == -INFINITY || v <= cutoff)
                 fix_dead(s, 0, l);
         }
-        return s->dead_w[0] > k ? -INFINITY : bound;
+        if (s->dead_w[0] > k)
+            return -INFINITY;
+        children_list(s, row, lst_c, lst_w, lst_want, lst_slack, lst_cap);
+        return bound;
     }
     /* values may come from an ancestor: plus rounding slack */
     double slack = 1e-12 * (s->pscale + 1);
@@ -678,6 +700,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         if (s->dead_w[g] > k)
             return -INFINITY;
     }
+    children_list(s, row, lst_c, lst_w, lst_want, lst_slack, lst_cap);
     return bound;
 }
 
