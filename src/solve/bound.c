@@ -2,7 +2,6 @@
  * (METHODS.md s.7, rules 1, 3 and 4).
  * SPDX-License-Identifier: MIT */
 #include <math.h>
-#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -142,12 +141,6 @@ static double knap_joint(const surety_solver *s, size_t l)
         if (agg < 0)
             return -INFINITY;
     }
-    /* Every job is taken whole or not at all, so this is a 0-1 knapsack
-     * and the Martello-Toth bound U2 applies at the break job c (Martello
-     * & Toth 1977): either c is left out (the rest of the capacity is
-     * filled at most at the next job's efficiency) or c is taken (the
-     * missing hours are removed from the taken jobs at least at the last
-     * taken job's efficiency). Both are at most the LP value. */
     /* most scenarios deep in the tree have room for every open job that
      * fits a resource on its own: then the value is their profit, found
      * from the node's short list of open candidates */
@@ -177,6 +170,12 @@ static double knap_joint(const surety_solver *s, size_t l)
     }
     if (hsum <= agg)
         return psum;
+    /* Every job is taken whole or not at all, so this is a 0-1 knapsack
+     * and the Martello-Toth bound U2 applies at the break job c (Martello
+     * & Toth 1977): either c is left out (the rest of the capacity is
+     * filled at most at the next job's efficiency) or c is taken (the
+     * missing hours are removed from the taken jobs at least at the last
+     * taken job's efficiency). Both are at most the LP value. */
     const uint32_t *e = s->eff + l * s->ncand;
     double v = 0, c = agg, elast = INFINITY;
     long brk = -1;
@@ -465,6 +464,8 @@ static void ubv_set(surety_solver *s, size_t row, size_t l, double v)
 }
 
 #ifdef SURETY_CHECK_INVARIANTS
+#include <stdio.h>
+
 /* Built only for tests/test_invariants.c: the bookkeeping that makes the
  * search fast is compared with a slow, direct version at every node, and
  * any difference aborts. */
@@ -595,35 +596,21 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         lst_want = want;
         lst_cap = cap;
         size_t c = 0, livew = s->N0 - s->dead_w[0], nr = 0, rw = 0;
-        if (have_list) {
-            const uint32_t *lst = s->rl + (row - 1) * s->rlcap;
-            size_t nl = s->rln[row - 1];
-            for (size_t t = 0; t < nl; t++) {
-                size_t l = lst[t];
-                if (s->dead[l] != SURETY_LIVE)
-                    continue;
-                double v = base + knap_joint(s, l);
-                if (v > cap)
-                    v = cap;
-                ubv_set(s, row, l, v);
-                s->ub[c] = v;
-                s->ubw[c++] = s->cnt[l];
-                s->rix[nr++] = l;
-                rw += s->cnt[l];
-            }
-        } else {
-            for (size_t l = 0; l < N; l++) {
-                if (s->dead[l] != SURETY_LIVE)
-                    continue;
-                double v = base + knap_joint(s, l);
-                if (v > cap)
-                    v = cap;
-                ubv_set(s, row, l, v);
-                s->ub[c] = v;
-                s->ubw[c++] = s->cnt[l];
-                s->rix[nr++] = l;
-                rw += s->cnt[l];
-            }
+        /* the parent's list, or every scenario */
+        const uint32_t *lst = have_list ? s->rl + (row - 1) * s->rlcap : NULL;
+        size_t nl = have_list ? s->rln[row - 1] : N;
+        for (size_t t = 0; t < nl; t++) {
+            size_t l = lst ? lst[t] : t;
+            if (s->dead[l] != SURETY_LIVE)
+                continue;
+            double v = base + knap_joint(s, l);
+            if (v > cap)
+                v = cap;
+            ubv_set(s, row, l, v);
+            s->ub[c] = v;
+            s->ubw[c++] = s->cnt[l];
+            s->rix[nr++] = l;
+            rw += s->cnt[l];
         }
         /* recomputed scenarios are in ub/ubw (their ids in rix); when their
          * weight exceeds b, their own (b+1)-th smallest is at least the

@@ -283,10 +283,12 @@ static int search_alloc(surety_solver *s)
     s->open_bound = surety_xmalloc(nb + 1, sizeof *s->open_bound);
     s->tplan = surety_xmalloc(n, sizeof *s->tplan);
     s->tfix = surety_xmalloc(n, sizeof *s->tfix);
-    if (!s->state || !s->nin || !s->load || !s->lw || !s->ltot || !s->wtot || !s->dead || !s->dead_w ||
-        !s->trail || !s->saved_load || !s->saved_dead_w || !s->frames ||
-        !s->ub || !s->ubw || !s->kn || !s->ubv || !s->ubt_l || !s->ubt_v || !s->rl || !s->rln || !s->pxs || !s->pxo || !s->ppmark || !s->died || !s->ropen || !s->jk || !s->freec || !s->pbits || !s->kfit ||
-        !s->rix || !s->open_bound ||
+    if (!s->state || !s->nin || !s->load || !s->lw || !s->ltot || !s->wtot ||
+        !s->dead || !s->dead_w || !s->trail || !s->saved_load ||
+        !s->saved_dead_w || !s->frames || !s->ub || !s->ubw || !s->kn ||
+        !s->ubv || !s->ubt_l || !s->ubt_v || !s->rl || !s->rln || !s->pxs ||
+        !s->pxo || !s->ppmark || !s->died || !s->ropen || !s->jk ||
+        !s->freec || !s->pbits || !s->kfit || !s->rix || !s->open_bound ||
         !s->tplan || !s->tfix)
         return -1;
     for (size_t e = 0; e < G * N; e++)
