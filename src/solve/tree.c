@@ -322,11 +322,10 @@ static void dive(surety_solver *s, size_t d, double node_bound)
     if (!s->required[j])
         ch[nc++].c = SURETY_JOB_OUT;
     /* children in the order of the greedy insertion (METHODS.md s.8): the
-     * resource where j overloads the fewest live scenarios (the count the
-     * pair rule kept for this node: exact for the resource loaded last,
-     * else an upper bound), then the least loaded; rejecting j last. Each
-     * child is evaluated once, when visited; until then its bound is at
-     * most this node's. */
+     * resource where j overloads the fewest live scenarios (the exact
+     * count the pair rule kept for this node), then the least loaded;
+     * rejecting j last. Each child is evaluated once, when visited; until
+     * then its bound is at most this node's. */
     const uint32_t *po = s->pxo + d * s->n * m;
     for (size_t t = 0; t < nc; t++) {
         if (ch[t].c < 0) {
