@@ -8,22 +8,8 @@
 #include <string.h>
 
 #include "alloc.h"
+#include "hash.h"
 #include "solve/solve.h"
-
-/* Lexicographic order of scenario rows, ties by index (deterministic). */
-static int cmp_rows(const void *a, const void *b, void *ctx)
-{
-    const surety_scenarios *sc = ctx;
-    size_t la = *(const size_t *)a, lb = *(const size_t *)b;
-    const double *ra = sc->hours + la * sc->n, *rb = sc->hours + lb * sc->n;
-    for (size_t j = 0; j < sc->n; j++) {
-        if (ra[j] < rb[j])
-            return -1;
-        if (ra[j] > rb[j])
-            return 1;
-    }
-    return (la > lb) - (la < lb);
-}
 
 static int rows_equal(const surety_scenarios *sc, size_t la, size_t lb)
 {
@@ -34,42 +20,69 @@ static int rows_equal(const surety_scenarios *sc, size_t la, size_t lb)
     return 1;
 }
 
+typedef struct row_key {
+    uint64_t h;
+    size_t l;
+} row_key;
+
+/* Order of row hashes, ties by index (deterministic). */
+static int cmp_row_key(const void *a, const void *b)
+{
+    const row_key *x = a, *y = b;
+    if (x->h != y->h)
+        return x->h < y->h ? -1 : 1;
+    return (x->l > y->l) - (x->l < y->l);
+}
+
 /* Identical scenario rows give identical loads for every plan, whatever
  * the summation order, so they fail or hold together: merging them into
  * one scenario with weight = multiplicity (the allowance counting weights)
- * is exact. Equality is tested element by element, never by hash alone. */
+ * is exact. Rows are grouped by their XXH3 hash (src/hash.c), and within
+ * a group tested element by element: a hash alone never merges two rows.
+ * Each row joins the first (smallest-index) equal row of its group. */
 static int merge_scenarios(surety_solver *s)
 {
     const surety_scenarios *sc = s->sc;
     size_t N0 = s->N0, n = s->n;
-    size_t *idx = surety_xmalloc(N0, sizeof *idx);
+    row_key *key = surety_xmalloc(N0, sizeof *key);
     size_t *rep = surety_xmalloc(N0, sizeof *rep);
-    if (!idx || !rep) {
-        surety_xfree(idx);
+    if (!key || !rep) {
+        surety_xfree(key);
         surety_xfree(rep);
         return -1;
     }
-    for (size_t l = 0; l < N0; l++)
-        idx[l] = l;
-    qsort_r(idx, N0, sizeof *idx, cmp_rows, (void *)sc);
+    for (size_t l = 0; l < N0; l++) {
+        key[l].h = surety_hash_doubles(sc->hours + l * n, n);
+        key[l].l = l;
+    }
+    qsort(key, N0, sizeof *key, cmp_row_key);
     for (size_t t = 0; t < N0;) {
         size_t u = t + 1;
-        while (u < N0 && rows_equal(sc, idx[t], idx[u]))
+        while (u < N0 && key[u].h == key[t].h)
             u++;
-        /* idx[t] is the smallest index of the run (ties by index) */
-        for (size_t v = t; v < u; v++)
-            rep[idx[v]] = idx[t];
+        /* a run of equal hashes, by index: almost always one row, or
+         * copies of one row; a collision only costs comparisons */
+        for (size_t v = t; v < u; v++) {
+            size_t l = key[v].l;
+            rep[l] = l;
+            for (size_t e = t; e < v; e++)
+                if (rep[key[e].l] == key[e].l && rows_equal(sc, key[e].l, l)) {
+                    rep[l] = key[e].l;
+                    break;
+                }
+        }
         t = u;
     }
+    surety_xfree(key);
     size_t N = 0;
     for (size_t l = 0; l < N0; l++)
         N += rep[l] == l;
     s->N = N;
     s->w = surety_xmalloc(N * n, sizeof *s->w);
     s->cnt = surety_xcalloc(N, sizeof *s->cnt);
-    size_t *pos = idx; /* reuse: position of a representative */
-    if (!s->w || !s->cnt) {
-        surety_xfree(idx);
+    size_t *pos = surety_xmalloc(N0, sizeof *pos);
+    if (!s->w || !s->cnt || !pos) {
+        surety_xfree(pos);
         surety_xfree(rep);
         return -1;
     }
@@ -81,7 +94,7 @@ static int merge_scenarios(surety_solver *s)
         }
         s->cnt[pos[rep[l]]]++;
     }
-    surety_xfree(idx);
+    surety_xfree(pos);
     surety_xfree(rep);
     return 0;
 }
