@@ -338,6 +338,10 @@ typedef struct surety_solve_options {
     /* non-zero: also bound every node restored from the pool by its LP
      * (a few rounds of scenario rows); default 0 */
     int lp_restored;
+    /* non-zero: keep the scenarios that every feasible plan fits (dominated
+     * by k+1 others, or fitting every plan) in the search instead of
+     * setting them aside; for comparisons, default 0 */
+    int keep_dominated;
 } surety_solve_options;
 
 void surety_solve_options_init(surety_solve_options *opt);
@@ -384,6 +388,10 @@ const surety_plan *surety_result_plan(const surety_result *res);
 /* Scenarios where the plan fits (joint) and the allowance k. */
 size_t surety_result_fit(const surety_result *res);
 size_t surety_result_allowance(const surety_result *res);
+/* Scenarios the search worked on: the distinct ones (duplicates merged)
+ * less those every feasible plan fits, which presolve sets aside (see
+ * surety_solve_options.keep_dominated). */
+size_t surety_result_searched(const surety_result *res);
 /* A sentence on why the model is infeasible, or "" */
 const char *surety_result_reason(const surety_result *res);
 

@@ -72,6 +72,15 @@ expect 0 "gap tolerance" -- "$surety" solve "$src/instances/workshops-30.json" -
 has "$tmp/out" "optimal within the --gap asked for" "a tolerated gap is spelled out next to the status"
 expect 0 "two threads asked for" -- "$surety" solve "$tut" --threads 2 --quiet
 has "$tmp/err" "runs on one thread" "the unused --threads is said, not hidden"
+# scenarios every feasible plan fits are set aside, and said; the answer is
+# the same when they are kept
+expect 0 "set aside dominated scenarios" -- "$surety" solve "$tut" --risk 0.01 --json --progress
+has "$tmp/err" "distinct scenarios set aside" "set-aside scenarios are said on the progress stream"
+has "$tmp/out" '"searched": 246,' "scenarios searched in the JSON result"
+grep '"objective"' "$tmp/out" >"$tmp/obj1"
+expect 0 "keep dominated scenarios" -- "$surety" solve "$tut" --risk 0.01 --json --keep-dominated
+has "$tmp/out" '"searched": 500,' "--keep-dominated searches every scenario"
+has "$tmp/out" "$(cat "$tmp/obj1")" "same objective with and without the scenarios set aside"
 
 # sample then export
 expect 0 "sample" -- "$surety" sample "$tut" -n 50 -o "$tmp/s.csv"

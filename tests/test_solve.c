@@ -348,6 +348,104 @@ static void expect_enumerated(const surety_model *md,
     surety_result_free(res);
 }
 
+/* Presolve sets aside the scenarios every feasible plan fits (presolve.c,
+ * set_aside_fitted). Scenario l's hours are (l+1) times (1, 2, 3), so each
+ * scenario dominates the lighter ones; with k = 2 the seven lightest are
+ * dominated by at least k+1 = 3 others. Optimum by hand (and enumeration):
+ * a plan fits 8 of the 10 scenarios only if it fits the 8th lightest, 8 x
+ * its base hours <= 20, so the best is job J1 alone, profit 5. */
+Test(solve, dominated_scenarios_are_set_aside)
+{
+    static const double base[3] = {1, 2, 3}, profit[3] = {3, 5, 4};
+    surety_model *md = surety_xcalloc(1, sizeof *md);
+    md->name = surety_xstrdup("chain");
+    md->risk = 0.25;
+    md->N = 10;
+    md->n = 3;
+    md->m = 1;
+    md->jobs = surety_xcalloc(3, sizeof *md->jobs);
+    md->resources = surety_xcalloc(1, sizeof *md->resources);
+    for (size_t j = 0; j < 3; j++) {
+        char id[8];
+        snprintf(id, sizeof id, "J%zu", j);
+        md->jobs[j].id = surety_xstrdup(id);
+        md->jobs[j].profit.kind = SURETY_PROFIT_FIXED;
+        md->jobs[j].profit.fixed = profit[j];
+        md->jobs[j].allowed = surety_xcalloc(1, 1);
+        md->jobs[j].allowed[0] = 1;
+    }
+    md->resources[0].id = surety_xstrdup("bay");
+    md->resources[0].capacity = 20;
+    md->resources[0].hours_factor = 1;
+    surety_scenarios *sc = surety_xcalloc(1, sizeof *sc);
+    sc->N = 10;
+    sc->n = 3;
+    sc->hours = surety_xmalloc(30, sizeof *sc->hours);
+    sc->profit = surety_xmalloc(30, sizeof *sc->profit);
+    for (size_t l = 0; l < 10; l++)
+        for (size_t j = 0; j < 3; j++) {
+            /* stored out of order: the rule must not rely on it */
+            size_t r = (l * 7) % 10;
+            sc->hours[r * 3 + j] = (double)(l + 1) * base[j];
+            sc->profit[r * 3 + j] = profit[j];
+        }
+    cr_assert_eq(surety_allowance(md->risk, 10), 2);
+    double bf;
+    cr_assert(brute_force(md, sc, &bf));
+    cr_assert_float_eq(bf, 5, 1e-12);
+    for (int keep = 0; keep <= 1; keep++) {
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.keep_dominated = keep;
+        surety_result *res = solve_ok(md, sc, &o);
+        check_result(md, sc, res);
+        cr_assert_eq(surety_result_status(res), SURETY_OPTIMAL);
+        cr_assert_float_eq(surety_result_objective(res), 5, 1e-9);
+        cr_assert_eq(surety_result_searched(res), keep ? 10u : 3u,
+                     "keep=%d: %zu scenarios searched", keep,
+                     surety_result_searched(res));
+        surety_result_free(res);
+    }
+    surety_model_destroy(md);
+    solve_gen_scenarios_free(sc);
+}
+
+/* The same rule on random instances with few jobs, where dominance in a
+ * sample is common (whole hours give ties and equal rows on the jobs that
+ * matter): with and without it the answer equals enumeration. */
+Test(solve, setting_dominated_scenarios_aside_keeps_the_optimum)
+{
+    size_t aside = 0, with_aside = 0;
+    for (uint64_t t = 0; t < 80; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(9000 + t), 6, 3, 250);
+        p.N += 20;
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        size_t searched[2];
+        for (int keep = 0; keep <= 1; keep++) {
+            surety_solve_options o;
+            surety_solve_options_init(&o);
+            o.keep_dominated = keep;
+            o.dive_nodes = t % 3 == 0 ? -1 : 0;
+            surety_result *res = solve_ok(md, sc, &o);
+            searched[keep] = surety_result_searched(res);
+            surety_result_free(res);
+            expect_enumerated(md, sc, &o, &p, t, feas, bf,
+                              keep ? "all scenarios kept, " : "");
+        }
+        cr_assert_leq(searched[0], searched[1]);
+        aside += searched[1] - searched[0];
+        with_aside += searched[0] < searched[1];
+    }
+    /* the instances must exercise the rule */
+    cr_assert_geq(with_aside, 20, "only %zu instances set scenarios aside",
+                  with_aside);
+    cr_assert_gt(aside, 0);
+}
+
 /* The best-bound pool: dives of 1 or 3 nodes send almost every open
  * child through the pool (restored from the root, bounds recomputed
  * without parent rows), and depth-first only (< 0) never does; all must

@@ -14,8 +14,8 @@
 static const char solve_help[] =
     "usage: surety solve MODEL [-n N] [--seed S] [--risk EPS] [-o PLAN.json]\n"
     "                    [--time-limit SEC] [--gap G] [--node-limit K]\n"
-    "                    [--lp-after K|never] [--threads T] [--progress]\n"
-    "                    [--quiet] [--json]\n"
+    "                    [--lp-after K|never] [--keep-dominated]\n"
+    "                    [--threads T] [--progress] [--quiet] [--json]\n"
     "\n"
     "Finds the most profitable plan that fits all but at most floor(eps*N) of\n"
     "the model's N scenarios (joint, or per resource when the model says\n"
@@ -30,6 +30,9 @@ static const char solve_help[] =
     "  --node-limit K    stop after K nodes\n"
     "  --lp-after K      solve the root LP bound once K nodes have not closed\n"
     "                    the search (default 65536; 'never' turns it off)\n"
+    "  --keep-dominated  search every distinct scenario, also those that every\n"
+    "                    feasible plan fits (set aside by default; same answer,\n"
+    "                    for comparisons)\n"
     "  --threads T       worker threads (default 1; accepted, but the search\n"
     "                    runs on one thread for now, and says so)\n"
     "  --progress        progress lines on stderr (default: on a terminal)\n"
@@ -196,8 +199,10 @@ static void print_json(const surety_model *model, const surety_scenarios *sc,
     cli_json_number(fp, plan ? surety_result_gap(res) : NAN);
     fprintf(fp, ",\n  \"nodes\": %ld,\n  \"seconds\": ", surety_result_nodes(res));
     cli_json_number(fp, surety_result_seconds(res));
-    fprintf(fp, ",\n  \"fit\": %zu,\n  \"allowance\": %zu,\n  \"reason\": ",
-            plan ? surety_result_fit(res) : 0, surety_result_allowance(res));
+    fprintf(fp, ",\n  \"fit\": %zu,\n  \"allowance\": %zu,\n  \"searched\": %zu,\n"
+            "  \"reason\": ",
+            plan ? surety_result_fit(res) : 0, surety_result_allowance(res),
+            surety_result_searched(res));
     cli_json_string(fp, surety_result_reason(res));
     fprintf(fp, ",\n  \"plan\": ");
     if (!plan) {
@@ -230,6 +235,7 @@ int cmd_solve(int argc, char **argv)
         {"node-limit", required_argument, 0, 'k'},
         {"threads", required_argument, 0, 'T'},
         {"lp-after", required_argument, 0, 'L'},
+        {"keep-dominated", no_argument, 0, 'D'},
         {"progress", no_argument, 0, 'p'},
         {"quiet", no_argument, 0, 'q'},
         {"json", no_argument, 0, 'j'},
@@ -251,6 +257,7 @@ int cmd_solve(int argc, char **argv)
         case 'o': out = optarg; break;
         case 'j': json = 1; break;
         case 'p': progress = 1; break;
+        case 'D': sopt.keep_dominated = 1; break;
         case 'q': progress = 0; break;
         case 't':
             if (cli_parse_double(optarg, &sopt.time_limit_s) || sopt.time_limit_s <= 0)

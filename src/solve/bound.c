@@ -595,7 +595,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         size_t want = 2 * (b + 1) + 16;
         lst_want = want;
         lst_cap = cap;
-        size_t c = 0, livew = s->N0 - s->dead_w[0], nr = 0, rw = 0;
+        size_t c = 0, livew = s->W - s->dead_w[0], nr = 0, rw = 0;
         /* the parent's list, or every scenario */
         const uint32_t *lst = have_list ? s->rl + (row - 1) * s->rlcap : NULL;
         size_t nl = have_list ? s->rln[row - 1] : N;

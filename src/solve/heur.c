@@ -433,7 +433,7 @@ static int heur_init(surety_solver *s)
     wq *tmp = surety_xmalloc(N, sizeof *tmp);
     if (!tmp)
         return -1;
-    size_t target = s->N0 - s->k; /* 1-based rank */
+    size_t target = s->W - s->k; /* 1-based rank */
     size_t c = 0;
     for (size_t j = 0; j < n; j++) {
         if (!s->cand[j]) {

@@ -246,6 +246,188 @@ done:
     return found;
 }
 
+/* Scenarios that every feasible plan fits, set aside before the search.
+ *
+ * (a) A scenario in which every resource holds all the jobs that may enter
+ *     it fits every plan.
+ * (b) Scenario a dominates b (a > b) when a's hours are at least b's for
+ *     every job the search may place (ties between rows equal on those
+ *     jobs broken by index, which keeps > a strict order). A scenario
+ *     dominated by scenarios of total weight at least k+1 fits every
+ *     feasible plan: the plan fails at most k of them, fits one, and b's
+ *     loads are no larger (sums of smaller terms in the same order, also
+ *     after rounding). Among b's dominators that are set aside, one that
+ *     no other set-aside dominator of b dominates has k+1 weight of
+ *     dominators of its own, all kept and all dominating b; so the kept
+ *     scenarios still force b to fit.
+ * The search then works on the kept scenarios with the same allowance k:
+ * a plan failing at most k of them fits the others. Dropping scenarios
+ * while keeping k can only enlarge the set of plans the search accepts,
+ * so its bounds stay valid even if a test above were loose, and every
+ * plan is still re-counted on all scenarios before it is accepted
+ * (solve.c). Dominance in a sample is frequent where hours move together
+ * (a common shock) or jobs are few, and rare otherwise; the pair tests
+ * are screened by a 64-bit signature (hours above the job's mean) and
+ * capped in number, beyond which scenarios are simply kept.
+ * (Scenario dominance, s' failing whenever s fails: Ruszczynski 2002,
+ * METHODS.md s.6; the k+1 rule follows from it as argued above.) */
+typedef struct tot_key {
+    double t;
+    size_t l;
+} tot_key;
+
+static int cmp_tot_desc(const void *a, const void *b)
+{
+    const tot_key *x = a, *y = b;
+    if (x->t != y->t)
+        return x->t > y->t ? -1 : 1;
+    return (x->l > y->l) - (x->l < y->l);
+}
+
+/* a > b on the jobs of rel (see above) */
+static int dominates(const surety_solver *s, const size_t *rel, size_t nr,
+                     size_t a, size_t b)
+{
+    const double *ra = s->w + a * s->n, *rb = s->w + b * s->n;
+    int strict = 0;
+    for (size_t t = 0; t < nr; t++) {
+        double x = ra[rel[t]], y = rb[rel[t]];
+        if (x < y)
+            return 0;
+        strict |= x > y;
+    }
+    return strict || a < b;
+}
+
+static int set_aside_fitted(surety_solver *s)
+{
+    size_t n = s->n, m = s->m, N = s->N, k = s->k;
+    s->W = 0;
+    for (size_t l = 0; l < N; l++)
+        s->W += s->cnt[l];
+    if (s->opt->keep_dominated || N < 2)
+        return 0;
+    size_t *rel = surety_xmalloc(n ? n : 1, sizeof *rel);
+    unsigned char *aside = surety_xcalloc(N, 1);
+    tot_key *ord = surety_xmalloc(N, sizeof *ord);
+    uint64_t *sig = surety_xcalloc(N, sizeof *sig);
+    double *mean = surety_xcalloc(n ? n : 1, sizeof *mean);
+    double *sum = surety_xmalloc(m, sizeof *sum);
+    size_t *pw = surety_xmalloc(N + 1, sizeof *pw);
+    int rc = -1;
+    if (!rel || !aside || !ord || !sig || !mean || !sum || !pw)
+        goto done;
+    size_t nr = 0;
+    for (size_t j = 0; j < n; j++)
+        if (s->required[j] || s->cand[j])
+            rel[nr++] = j;
+    rc = 0;
+    if (nr == 0)
+        goto done;
+
+    /* (a), unless it would leave no more than k weight to the search */
+    size_t wa = 0;
+    for (size_t l = 0; l < N; l++) {
+        const double *row = s->w + l * n;
+        memset(sum, 0, m * sizeof *sum);
+        for (size_t t = 0; t < nr; t++)
+            for (size_t i = 0; i < m; i++)
+                if (s->allowed[rel[t] * m + i])
+                    sum[i] += row[rel[t]];
+        int fits = 1;
+        for (size_t i = 0; i < m && fits; i++)
+            fits = sum[i] <= s->cap[i];
+        if (fits) {
+            aside[l] = 1;
+            wa += s->cnt[l];
+        }
+    }
+    if (s->W - wa <= k) {
+        memset(aside, 0, N);
+        wa = 0;
+    }
+
+    /* (b): candidates for b's dominators are the scenarios with a total
+     * at least b's (a sum of larger terms), taken largest first */
+    for (size_t l = 0; l < N; l++) {
+        const double *row = s->w + l * n;
+        double t = 0;
+        for (size_t u = 0; u < nr; u++) {
+            t += row[rel[u]];
+            mean[u] += row[rel[u]];
+        }
+        ord[l].t = t;
+        ord[l].l = l;
+    }
+    size_t ns = nr < 64 ? nr : 64;
+    for (size_t u = 0; u < ns; u++)
+        mean[u] /= (double)N;
+    for (size_t l = 0; l < N; l++)
+        for (size_t u = 0; u < ns; u++)
+            if (s->w[l * n + rel[u]] > mean[u])
+                sig[l] |= (uint64_t)1 << u;
+    qsort(ord, N, sizeof *ord, cmp_tot_desc);
+    /* pw[p]: weight of the scenarios ahead of position p */
+    pw[0] = 0;
+    for (size_t p = 0; p < N; p++)
+        pw[p + 1] = pw[p] + s->cnt[ord[p].l];
+    /* the lightest scenarios first (the likeliest to be dominated); the
+     * scan ends after 128 in a row are kept (heavier ones are rarely
+     * dominated where lighter ones are not: without any dominance, as with
+     * independent hours, this costs 128 N signature tests), or after about
+     * 2e8 signature tests and 2e7 row tests (a few tenths of a second) */
+    double sig_left = 2e8, row_left = 2e7 / (double)nr;
+    size_t end = N; /* one past the last position with b's total */
+    size_t misses = 0;
+    for (size_t p = N; p-- > 0 && sig_left > 0 && row_left > 0 && misses < 128;) {
+        size_t b = ord[p].l;
+        if (p + 1 < N && ord[p + 1].t != ord[p].t)
+            end = p + 1;
+        if (aside[b] || pw[end] - s->cnt[b] <= k)
+            continue;
+        size_t dw = 0;
+        uint64_t sb = sig[b];
+        for (size_t q = 0; q < end && dw <= k; q++) {
+            size_t a = ord[q].l;
+            if (q == p || (sb & ~sig[a]) != 0)
+                continue;
+            if (dominates(s, rel, nr, a, b))
+                dw += s->cnt[a];
+            row_left--;
+        }
+        sig_left -= (double)end;
+        if (dw > k) {
+            aside[b] = 2;
+            wa += s->cnt[b];
+            misses = 0;
+        } else {
+            misses++;
+        }
+    }
+    size_t c = 0;
+    for (size_t l = 0; l < N; l++) {
+        if (aside[l])
+            continue;
+        if (c != l) {
+            memmove(s->w + c * n, s->w + l * n, n * sizeof *s->w);
+            s->cnt[c] = s->cnt[l];
+        }
+        c++;
+    }
+    s->N = c;
+    s->N_aside = N - c;
+    s->W -= wa;
+done:
+    surety_xfree(rel);
+    surety_xfree(aside);
+    surety_xfree(ord);
+    surety_xfree(sig);
+    surety_xfree(mean);
+    surety_xfree(sum);
+    surety_xfree(pw);
+    return rc;
+}
+
 surety_code surety_presolve_run(surety_solver *s, char *reason,
                                 size_t reason_len, int *infeasible,
                                 surety_error *err)
@@ -328,6 +510,8 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
     }
     if (!*infeasible && required_check(s, reason, reason_len))
         *infeasible = 1;
+    if (set_aside_fitted(s) != 0)
+        goto oom;
 
     s->wt = surety_xmalloc(n * s->N, sizeof *s->wt);
     if (!s->wt)

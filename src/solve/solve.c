@@ -22,6 +22,7 @@ struct surety_result {
     surety_plan *plan; /* owned; NULL without a plan */
     size_t fit;        /* scenarios where the plan fits (joint) */
     size_t k;          /* allowance */
+    size_t searched;   /* scenarios the search worked on */
     char reason[768];  /* why infeasible, or "" */
 };
 
@@ -379,6 +380,7 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
     if (rc != SURETY_OK)
         goto fail;
     res->k = s.k;
+    res->searched = s.N;
     s.inc_plan = surety_xmalloc(s.n, sizeof *s.inc_plan);
     if (!s.inc_plan || search_alloc(&s) != 0) {
         surety_error_set(err, NULL, 0, 0, NULL,
@@ -389,8 +391,14 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
     }
     logf_(&s, SURETY_LOG_INFO,
           "solve: %zu jobs (%zu to decide), %zu resources, %zu scenarios "
-          "(%zu distinct), allowance %zu, %s",
-          s.n, s.nb, s.m, s.N0, s.N, s.k, s.separate ? "separate" : "joint");
+          "(%zu distinct, %zu searched), allowance %zu, %s",
+          s.n, s.nb, s.m, s.N0, s.N + s.N_aside, s.N, s.k,
+          s.separate ? "separate" : "joint");
+    if (s.N_aside)
+        logf_(&s, SURETY_LOG_INFO,
+              "solve: %zu distinct scenarios set aside: every plan that "
+              "fails at most %zu scenarios fits them (dominated by other "
+              "scenarios, or fitting every plan)", s.N_aside, s.k);
     if (opt->threads > 1)
         logf_(&s, SURETY_LOG_WARN,
               "threads: %d asked for, but the search runs on one thread "
@@ -587,6 +595,10 @@ size_t surety_result_fit(const surety_result *res)
 size_t surety_result_allowance(const surety_result *res)
 {
     return res ? res->k : 0;
+}
+size_t surety_result_searched(const surety_result *res)
+{
+    return res ? res->searched : 0;
 }
 const char *surety_result_reason(const surety_result *res)
 {

@@ -74,13 +74,17 @@ struct surety_solver {
     /* ---- problem after presolve ---- */
     size_t n, m;         /* jobs, resources */
     size_t N0;           /* scenarios as given */
-    size_t N;            /* distinct scenarios after merging duplicates */
+    size_t N;            /* scenarios searched: distinct after merging
+                          * duplicates, less those set aside */
+    size_t N_aside;      /* distinct scenarios every feasible plan fits,
+                          * set aside (presolve.c) */
+    size_t W;            /* weight of the N scenarios searched (sum cnt) */
     size_t k;            /* allowance floor(eps*N0), counts given scenarios */
     int separate;        /* 1: a chance constraint per resource */
     size_t G;            /* constraint groups: 1 (joint) or m (separate) */
     double *w;           /* N*n base hours, scenario-major, merged rows */
     double *wt;          /* n*N the same, job-major (load updates) */
-    unsigned *cnt;       /* N multiplicities (sum = N0) */
+    unsigned *cnt;       /* N multiplicities (sum = W <= N0) */
     double *cap;         /* m capacities in base hours, C_i / f_i */
     double *cap_hi;      /* m: above this a load is clearly overloaded */
     double *p;           /* n mean profits (sum over l / N0) */
