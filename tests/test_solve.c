@@ -410,6 +410,51 @@ Test(solve, dominated_scenarios_are_set_aside)
     solve_gen_scenarios_free(sc);
 }
 
+/* Duplicate rows are merged (found by hash, confirmed element by element,
+ * -0.0 equal to +0.0): the toy's six rows, some repeated, one with a zero
+ * written as -0.0 in its copy. With every scenario kept, the search works
+ * on the six distinct rows, and the optimum is the enumerated one. */
+Test(solve, duplicate_scenarios_are_merged)
+{
+    static const double w[6][5] = {
+        {5, 4, 3, 3, 0}, {6, 4, 3, 2, 2}, {4, 5, 4, 3, 1},
+        {7, 3, 3, 4, 2}, {5, 6, 2, 3, 3}, {8, 4, 5, 2, 2},
+    };
+    static const size_t rows[11] = {0, 1, 0, 2, 3, 3, 5, 3, 4, 5, 0};
+    static const double profit[5] = {10, 7, 6, 5, 4};
+    surety_scenarios *sc = surety_xcalloc(1, sizeof *sc);
+    sc->N = 11;
+    sc->n = 5;
+    sc->hours = surety_xmalloc(55, sizeof *sc->hours);
+    sc->profit = surety_xmalloc(55, sizeof *sc->profit);
+    for (size_t l = 0; l < 11; l++)
+        for (size_t j = 0; j < 5; j++) {
+            sc->hours[l * 5 + j] = w[rows[l]][j];
+            sc->profit[l * 5 + j] = profit[j];
+        }
+    sc->hours[10 * 5 + 4] = -0.0;
+    for (size_t k = 0; k < 4; k++) {
+        surety_model *md = toy_model(((double)k + 0.5) / 11);
+        md->N = 11;
+        double bf;
+        cr_assert(brute_force(md, sc, &bf));
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.keep_dominated = 1;
+        surety_result *res = solve_ok(md, sc, &o);
+        check_result(md, sc, res);
+        cr_assert_eq(surety_result_searched(res), 6u, "k=%zu: %zu searched",
+                     k, surety_result_searched(res));
+        cr_assert_eq(surety_result_status(res), SURETY_OPTIMAL);
+        cr_assert_float_eq(surety_result_objective(res), bf, 1e-9,
+                           "k=%zu: %g, enumeration %g", k,
+                           surety_result_objective(res), bf);
+        surety_result_free(res);
+        surety_model_destroy(md);
+    }
+    solve_gen_scenarios_free(sc);
+}
+
 /* The same rule on random instances with few jobs, where dominance in a
  * sample is common (whole hours give ties and equal rows on the jobs that
  * matter): with and without it the answer equals enumeration. */
