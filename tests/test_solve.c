@@ -484,6 +484,8 @@ Test(solve, setting_dominated_scenarios_aside_keeps_the_optimum)
         cr_assert_leq(searched[0], searched[1]);
         aside += searched[1] - searched[0];
         with_aside += searched[0] < searched[1];
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
     }
     /* the instances must exercise the rule */
     cr_assert_geq(with_aside, 20, "only %zu instances set scenarios aside",

@@ -334,9 +334,13 @@ static int set_aside_fitted(surety_solver *s)
             for (size_t i = 0; i < m; i++)
                 if (s->allowed[rel[t] * m + i])
                     sum[i] += row[rel[t]];
+        /* the recount's own test (plan.h): a plan's sum over its jobs in
+         * job order is at most this one (fewer terms, none negative: hours
+         * never are; same order, monotone rounding) */
         int fits = 1;
         for (size_t i = 0; i < m && fits; i++)
-            fits = sum[i] <= s->cap[i];
+            fits = surety_plan_holds(s->model->resources[i].hours_factor,
+                                     sum[i], s->model->resources[i].capacity);
         if (fits) {
             aside[l] = 1;
             wa += s->cnt[l];
@@ -349,17 +353,17 @@ static int set_aside_fitted(surety_solver *s)
 
     /* (b): candidates for b's dominators are the scenarios with a total
      * at least b's (a sum of larger terms), taken largest first */
+    size_t ns = nr < 64 ? nr : 64; /* jobs in the signature */
     for (size_t l = 0; l < N; l++) {
         const double *row = s->w + l * n;
         double t = 0;
-        for (size_t u = 0; u < nr; u++) {
+        for (size_t u = 0; u < nr; u++)
             t += row[rel[u]];
+        for (size_t u = 0; u < ns; u++)
             mean[u] += row[rel[u]];
-        }
         ord[l].t = t;
         ord[l].l = l;
     }
-    size_t ns = nr < 64 ? nr : 64;
     for (size_t u = 0; u < ns; u++)
         mean[u] /= (double)N;
     for (size_t l = 0; l < N; l++)
