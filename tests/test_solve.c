@@ -938,6 +938,65 @@ Test(solve, early_stop_keeps_an_honest_bound)
     }
 }
 
+/* The root LP stopped by its share of a short time limit resumes from its
+ * basis later in the search; every stop leaves a valid bound, so the
+ * bound reported at the limit must still be at least the optimum (which
+ * path is taken depends on the clock; the check holds on every path). */
+static void count_lp_lines(void *ctx, surety_log_level level, const char *line)
+{
+    (void)level;
+    if (line[0] == 'R')
+        (*(int *)ctx)++;
+}
+
+Test(solve, root_lp_cut_short_keeps_an_honest_bound)
+{
+    int resumed = 0;
+    for (uint64_t t = 0; t < 2; t++) {
+        solve_gen_params p = {.n = 20 - 2 * t, .m = 3, .N = 250, .eps = 0.05, .tightness = 0.5,
+                              .dist = SOLVE_GEN_NORMAL, .separate = t == 1,
+                              .seed = mix(12000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_result *full = solve_ok(md, sc, NULL);
+        cr_assert_eq(surety_result_status(full), SURETY_OPTIMAL);
+        double opt = surety_result_objective(full);
+        cr_log_info("t=%lu full solve %.2f s, %ld nodes", (unsigned long)t,
+                    surety_result_seconds(full), surety_result_nodes(full));
+        for (int v = 0; v < 3; v++) {
+            static const double limit[3] = {0.15, 0.3, 0.6};
+            int lines = 0;
+            surety_solve_options o;
+            surety_solve_options_init(&o);
+            o.lp_after = 1;
+            o.dive_nodes = 1; /* back to the pool (and the LP) at once */
+            o.time_limit_s = limit[v];
+            o.verbosity = SURETY_LOG_PROGRESS;
+            o.progress_s = 1e9;
+            o.log = count_lp_lines;
+            o.log_ctx = &lines;
+            surety_result *res = solve_ok(md, sc, &o);
+            check_result(md, sc, res);
+            cr_assert(surety_result_bound(res) >= opt - 1e-9 * (1 + fabs(opt)),
+                      "limit %g: bound %.10g below the optimum %.10g",
+                      limit[v], surety_result_bound(res), opt);
+            if (surety_result_status(res) == SURETY_OPTIMAL)
+                cr_assert(fabs(surety_result_objective(res) - opt) <=
+                              1e-9 * (1 + fabs(opt)),
+                          "limit %g: optimal %.10g, but the optimum is %.10g",
+                          limit[v], surety_result_objective(res), opt);
+            resumed += lines > 1;
+            cr_log_info("t=%lu limit %g: %d root LP calls, %s", (unsigned long)t,
+                        limit[v], lines, surety_stop_name(surety_result_stop(res)));
+            surety_result_free(res);
+        }
+        surety_result_free(full);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("runs with the root LP resumed: %d of 6", resumed);
+}
+
 Test(solve, interrupt_flag_stops_the_search)
 {
     solve_gen_params p = {.n = 30, .m = 3, .N = 300, .eps = 0.05, .tightness = 0.5, .seed = 5};
