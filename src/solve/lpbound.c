@@ -525,7 +525,6 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
      * LP's rows and columns) are seen; any piece's duals give a valid
      * bound. */
     double L = INFINITY, Lq = INFINITY, spent = 0;
-    int short_stop = 0;
     surety_lp_set_iter_limit(q->lp, 256);
     for (int r = 0; r <= rounds;) {
         surety_lp_status st = surety_lp_solve(q->lp);
@@ -540,19 +539,14 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
         Lq += margin > 1e-11 * mag ? margin : 1e-11 * mag;
         if (Lq < L)
             L = Lq;
-        if (L <= cutoff)
+        if (L <= cutoff || spent > work || surety_tree_stopped(s) ||
+            surety_solve_now() > s->lp_deadline)
             break;
-        if (spent > work || surety_tree_stopped(s) ||
-            surety_solve_now() > s->lp_deadline) {
-            short_stop = 1;
-            break;
-        }
         if (st == SURETY_LP_ITER_LIMIT)
             continue;
         if (st != SURETY_LP_OPTIMAL || r++ == rounds || separate(s, 64) == 0)
             break;
     }
-    s->lp_short = short_stop;
     if (L > cutoff && Lq < INFINITY) {
         /* reduced-cost fixing: x_ji = 1 would cost -d_ji */
         for (size_t v = 0; v < q->nx; v++) {

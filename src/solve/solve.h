@@ -208,11 +208,6 @@ struct surety_solver {
     solve_lp *lpb;       /* NULL: not used */
     long lp_after;       /* nodes after which the root LP is solved */
     int lp_on;           /* the root LP has been solved */
-    int lp_short;        /* the last LP call stopped at its deadline or
-                          * work cap, before its end */
-    int lp_root_short;   /* the same for the last root LP call */
-    long lp_next;        /* node count at which a short root LP resumes */
-    double lp_next_t;    /* or the time (under a time limit) */
     long lp_solves, lp_iters, lp_prunes, lp_fixed;
     double lp_root;      /* the LP bound at the root, or INFINITY */
     double lp_deadline;  /* monotonic seconds after which an LP call stops */

@@ -249,36 +249,18 @@ static double lp_bound(surety_solver *s, size_t row, double cut, double b)
 /* The root LP, once the search has run lp_after nodes without closing
  * (the search state is the root's: between dives): solved to the end of
  * its rows, it caps every bound from then on, and its reduced costs rule
- * pairs out of the root's row, which every restored node starts from.
- * A call stopped by its share of the time or its work cap resumes from
- * its basis and rows once the search has doubled its nodes without
- * closing, or under a time limit once a quarter of the time then left has
- * passed (a search that has not closed by then rarely will, and the LP
- * bound is what its report then rests on); any stop leaves a valid
- * bound, so the smaller one is kept. */
+ * pairs out of the root's row, which every restored node starts from. */
 static void root_lp(surety_solver *s)
 {
     size_t fixed = 0;
     double cut = surety_cutoff(s);
-    /* under a time limit, at most a quarter of the time left (measured
-     * against half when resuming: the bound ends a little tighter, the
-     * plan a little worse, as the search gets less time; bench/README.md) */
+    /* under a time limit, at most a quarter of the time left */
     double now = surety_solve_now(), tl = s->opt->time_limit_s;
     s->lp_deadline = tl > 0 ? now + 0.25 * (s->t0 + tl - now) : INFINITY;
     /* about 15 s of this machine's dense simplex (bench/README.md) */
-    double L = surety_lpb_node(s, cut, 0, INFINITY, 1000, 3e10, &fixed);
-    if (L < s->lp_root)
-        s->lp_root = L;
+    s->lp_root = surety_lpb_node(s, cut, 0, INFINITY, 1000, 3e10, &fixed);
     s->lp_fixed += (long)fixed;
     s->lp_on = 1;
-    s->lp_root_short = s->lp_short;
-    s->lp_next = 2 * s->nodes;
-    /* (not in the last 5% of a time limit: the simplex sees the clock
-     * only between pieces of 256 iterations) */
-    now = surety_solve_now();
-    s->lp_next_t = tl > 0 ? now + 0.25 * (s->t0 + tl - now) : INFINITY;
-    if (tl > 0 && s->lp_next_t > s->t0 + 0.95 * tl)
-        s->lp_root_short = 0;
     surety_solve_log_progress(s, 1, 'R');
 }
 
@@ -415,10 +397,7 @@ double surety_tree_search(surety_solver *s)
         dive(s, 0, b);
     }
     while (!s->stop && s->npool > 0) {
-        if (s->lpb && (s->lp_on ? s->lp_root_short &&
-                                      (s->nodes >= s->lp_next ||
-                                       surety_solve_now() >= s->lp_next_t)
-                                : s->nodes >= s->lp_after))
+        if (s->lpb && !s->lp_on && s->nodes >= s->lp_after)
             root_lp(s);
         solve_open e = pool_pop(s);
         if (e.bound > s->lp_root)
