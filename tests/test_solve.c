@@ -145,53 +145,74 @@ static void check_result(const surety_model *md, const surety_scenarios *sc,
 /* ---- METHODS.md s.7 toy instance (optima by exhaustive enumeration,
  * as stated there) ---- */
 
-static surety_model *toy_model(double eps)
+/* A model of n jobs with fixed profits, each allowed in all m resources
+ * (hours factor 1), named J0.. and by rid. */
+static surety_model *fixed_model(const char *name, double eps, size_t N,
+                                 size_t n, const double *profit, size_t m,
+                                 const char *const *rid, const double *cap)
 {
-    static const double profit[5] = {10, 7, 6, 5, 4};
     surety_model *md = surety_xcalloc(1, sizeof *md);
-    md->name = surety_xstrdup("toy");
+    md->name = surety_xstrdup(name);
     md->risk = eps;
-    md->N = 6;
-    md->n = 5;
-    md->m = 2;
-    md->jobs = surety_xcalloc(5, sizeof *md->jobs);
-    md->resources = surety_xcalloc(2, sizeof *md->resources);
-    for (size_t j = 0; j < 5; j++) {
+    md->N = N;
+    md->n = n;
+    md->m = m;
+    md->jobs = surety_xcalloc(n, sizeof *md->jobs);
+    md->resources = surety_xcalloc(m, sizeof *md->resources);
+    for (size_t j = 0; j < n; j++) {
         char id[8];
         snprintf(id, sizeof id, "J%zu", j);
         md->jobs[j].id = surety_xstrdup(id);
         md->jobs[j].profit.kind = SURETY_PROFIT_FIXED;
         md->jobs[j].profit.fixed = profit[j];
-        md->jobs[j].allowed = surety_xcalloc(2, 1);
-        md->jobs[j].allowed[0] = md->jobs[j].allowed[1] = 1;
+        md->jobs[j].allowed = surety_xcalloc(m, 1);
+        memset(md->jobs[j].allowed, 1, m);
     }
-    md->resources[0].id = surety_xstrdup("bin0");
-    md->resources[0].capacity = 10;
-    md->resources[0].hours_factor = 1;
-    md->resources[1].id = surety_xstrdup("bin1");
-    md->resources[1].capacity = 8;
-    md->resources[1].hours_factor = 1;
+    for (size_t i = 0; i < m; i++) {
+        md->resources[i].id = surety_xstrdup(rid[i]);
+        md->resources[i].capacity = cap[i];
+        md->resources[i].hours_factor = 1;
+    }
     return md;
 }
 
-static surety_scenarios *toy_scenarios(void)
+/* Scenarios of n jobs whose scenario l takes row[l] of the table w
+ * (n hours each) and the fixed profits. */
+static surety_scenarios *table_scenarios(size_t N, size_t n, const double *w,
+                                         const size_t *row,
+                                         const double *profit)
 {
-    static const double w[6][5] = {
-        {5, 4, 3, 3, 2}, {6, 4, 3, 2, 2}, {4, 5, 4, 3, 1},
-        {7, 3, 3, 4, 2}, {5, 6, 2, 3, 3}, {8, 4, 5, 2, 2},
-    };
-    static const double profit[5] = {10, 7, 6, 5, 4};
     surety_scenarios *sc = surety_xcalloc(1, sizeof *sc);
-    sc->N = 6;
-    sc->n = 5;
-    sc->hours = surety_xmalloc(30, sizeof *sc->hours);
-    sc->profit = surety_xmalloc(30, sizeof *sc->profit);
-    for (size_t l = 0; l < 6; l++)
-        for (size_t j = 0; j < 5; j++) {
-            sc->hours[l * 5 + j] = w[l][j];
-            sc->profit[l * 5 + j] = profit[j];
+    sc->N = N;
+    sc->n = n;
+    sc->hours = surety_xmalloc(N * n, sizeof *sc->hours);
+    sc->profit = surety_xmalloc(N * n, sizeof *sc->profit);
+    for (size_t l = 0; l < N; l++)
+        for (size_t j = 0; j < n; j++) {
+            sc->hours[l * n + j] = w[row[l] * n + j];
+            sc->profit[l * n + j] = profit[j];
         }
     return sc;
+}
+
+static const double toy_profit[5] = {10, 7, 6, 5, 4};
+
+static surety_model *toy_model(double eps)
+{
+    static const char *const rid[2] = {"bin0", "bin1"};
+    static const double cap[2] = {10, 8};
+    return fixed_model("toy", eps, 6, 5, toy_profit, 2, rid, cap);
+}
+
+static const double toy_hours[6][5] = {
+    {5, 4, 3, 3, 2}, {6, 4, 3, 2, 2}, {4, 5, 4, 3, 1},
+    {7, 3, 3, 4, 2}, {5, 6, 2, 3, 3}, {8, 4, 5, 2, 2},
+};
+
+static surety_scenarios *toy_scenarios(void)
+{
+    static const size_t row[6] = {0, 1, 2, 3, 4, 5};
+    return table_scenarios(6, 5, &toy_hours[0][0], row, toy_profit);
 }
 
 Test(solve, toy_instance_of_methods)
@@ -357,38 +378,19 @@ static void expect_enumerated(const surety_model *md,
 Test(solve, dominated_scenarios_are_set_aside)
 {
     static const double base[3] = {1, 2, 3}, profit[3] = {3, 5, 4};
-    surety_model *md = surety_xcalloc(1, sizeof *md);
-    md->name = surety_xstrdup("chain");
-    md->risk = 0.25;
-    md->N = 10;
-    md->n = 3;
-    md->m = 1;
-    md->jobs = surety_xcalloc(3, sizeof *md->jobs);
-    md->resources = surety_xcalloc(1, sizeof *md->resources);
-    for (size_t j = 0; j < 3; j++) {
-        char id[8];
-        snprintf(id, sizeof id, "J%zu", j);
-        md->jobs[j].id = surety_xstrdup(id);
-        md->jobs[j].profit.kind = SURETY_PROFIT_FIXED;
-        md->jobs[j].profit.fixed = profit[j];
-        md->jobs[j].allowed = surety_xcalloc(1, 1);
-        md->jobs[j].allowed[0] = 1;
-    }
-    md->resources[0].id = surety_xstrdup("bay");
-    md->resources[0].capacity = 20;
-    md->resources[0].hours_factor = 1;
-    surety_scenarios *sc = surety_xcalloc(1, sizeof *sc);
-    sc->N = 10;
-    sc->n = 3;
-    sc->hours = surety_xmalloc(30, sizeof *sc->hours);
-    sc->profit = surety_xmalloc(30, sizeof *sc->profit);
+    static const char *const rid[1] = {"bay"};
+    static const double cap[1] = {20};
+    surety_model *md = fixed_model("chain", 0.25, 10, 3, profit, 1, rid, cap);
+    /* row r holds (r+1) x base; stored out of order (scenario l takes row
+     * 7l mod 10): the rule must not rely on it */
+    double w[10][3];
+    size_t row[10];
+    for (size_t r = 0; r < 10; r++)
+        for (size_t j = 0; j < 3; j++)
+            w[r][j] = (double)(r + 1) * base[j];
     for (size_t l = 0; l < 10; l++)
-        for (size_t j = 0; j < 3; j++) {
-            /* stored out of order: the rule must not rely on it */
-            size_t r = (l * 7) % 10;
-            sc->hours[r * 3 + j] = (double)(l + 1) * base[j];
-            sc->profit[r * 3 + j] = profit[j];
-        }
+        row[l] = (l * 7) % 10;
+    surety_scenarios *sc = table_scenarios(10, 3, &w[0][0], row, profit);
     cr_assert_eq(surety_allowance(md->risk, 10), 2);
     double bf;
     cr_assert(brute_force(md, sc, &bf));
@@ -416,22 +418,11 @@ Test(solve, dominated_scenarios_are_set_aside)
  * on the six distinct rows, and the optimum is the enumerated one. */
 Test(solve, duplicate_scenarios_are_merged)
 {
-    static const double w[6][5] = {
-        {5, 4, 3, 3, 0}, {6, 4, 3, 2, 2}, {4, 5, 4, 3, 1},
-        {7, 3, 3, 4, 2}, {5, 6, 2, 3, 3}, {8, 4, 5, 2, 2},
-    };
+    double w[6][5];
+    memcpy(w, toy_hours, sizeof w);
+    w[0][4] = 0;
     static const size_t rows[11] = {0, 1, 0, 2, 3, 3, 5, 3, 4, 5, 0};
-    static const double profit[5] = {10, 7, 6, 5, 4};
-    surety_scenarios *sc = surety_xcalloc(1, sizeof *sc);
-    sc->N = 11;
-    sc->n = 5;
-    sc->hours = surety_xmalloc(55, sizeof *sc->hours);
-    sc->profit = surety_xmalloc(55, sizeof *sc->profit);
-    for (size_t l = 0; l < 11; l++)
-        for (size_t j = 0; j < 5; j++) {
-            sc->hours[l * 5 + j] = w[rows[l]][j];
-            sc->profit[l * 5 + j] = profit[j];
-        }
+    surety_scenarios *sc = table_scenarios(11, 5, &w[0][0], rows, toy_profit);
     sc->hours[10 * 5 + 4] = -0.0;
     for (size_t k = 0; k < 4; k++) {
         surety_model *md = toy_model(((double)k + 0.5) / 11);
