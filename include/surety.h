@@ -338,6 +338,13 @@ typedef struct surety_solve_options {
     /* non-zero: also bound every node restored from the pool by its LP
      * (a few rounds of scenario rows); default 0 */
     int lp_restored;
+    /* nodes searched before the resource-decomposition bound is computed
+     * at the root (each resource's own chance-constrained problem solved
+     * with prices on "each job once"; it caps every bound from then on);
+     * 0: the default (65536); < 0: never. Needs the best-bound pool and at
+     * least two resources; under a time limit it takes at most a quarter
+     * of the time left. */
+    long decomp_after;
     /* non-zero: keep the scenarios that every feasible plan fits (dominated
      * by k+1 others, or fitting every plan) in the search instead of
      * setting them aside; for comparisons, default 0 */

@@ -68,6 +68,11 @@ expect 4 "root LP after 1 node" -- "$surety" solve "$src/instances/workshops-30.
 has "$tmp/err" "LP bound: root" "root LP reported on the progress stream"
 expect 0 "root LP never" -- "$surety" solve "$tut" --lp-after never --quiet
 expect 1 "bad --lp-after" -- "$surety" solve "$tut" --lp-after 0
+# the decomposition bound: rounds from node 1 on are said, with their value
+expect 4 "decomposition after 1 node" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --split-after 1 --node-limit 6000 --progress
+has "$tmp/err" "decomposition bound:" "decomposition bound reported on the progress stream"
+expect 0 "decomposition never" -- "$surety" solve "$tut" --split-after never --quiet
+expect 1 "bad --split-after" -- "$surety" solve "$tut" --split-after -3
 expect 0 "gap tolerance" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --gap 0.3 --quiet
 has "$tmp/out" "optimal within the --gap asked for" "a tolerated gap is spelled out next to the status"
 expect 0 "two threads asked for" -- "$surety" solve "$tut" --threads 2 --quiet

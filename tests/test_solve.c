@@ -645,6 +645,115 @@ Test(solve, lp_bound_on_larger_trees)
     }
 }
 
+/* ---- the resource-decomposition bound (decomp.c) ---- */
+
+typedef struct dec_log {
+    double value;
+    int seen;
+} dec_log;
+
+static void catch_dec_line(void *ctx, surety_log_level level, const char *line)
+{
+    (void)level;
+    dec_log *g = ctx;
+    if (sscanf(line, "decomposition bound: %lf", &g->value) == 1)
+        g->seen = 1;
+}
+
+/* Price rounds from the first node on, with dives of one node (every node
+ * goes through the pool, where the rounds run): every answer must be the
+ * enumerated one, joint and separate, with required jobs and forbidden
+ * pairs (random_params). */
+Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
+{
+    int runs = 0;
+    for (uint64_t t = 0; t < 120; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(23000 + t), 8, 3, t % 4 == 0 ? 120 : 30);
+        if (p.m < 2)
+            p.m = 2;
+        if (p.n == 8 && p.m == 3)
+            p.n = 7;
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = 1;
+        o.decomp_after = 1;
+        o.lp_after = -1;
+        dec_log g = {0, 0};
+        o.log = catch_dec_line;
+        o.log_ctx = &g;
+        expect_enumerated(md, sc, &o, &p, t, feas, bf, "decomposition, ");
+        runs += g.seen;
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    /* most instances close at the root; enough must reach a round */
+    cr_assert(runs >= 30, "the decomposition ran in only %d solves", runs);
+}
+
+/* Searches stopped by node and time limits soon after the rounds begin
+ * must report a bound at least the optimum (the rounds cap every open
+ * node); and the bound must do its job: on these instances, where the
+ * quantile bound is far from the optimum, the stopped searches with the
+ * rounds must report a clearly lower bound than those without. */
+Test(solve, decomposition_bound_caps_a_stopped_search)
+{
+    int tighter = 0, stopped = 0;
+    for (uint64_t t = 0; t < 6; t++) {
+        solve_gen_params p = {.n = 16 + 2 * (t % 3), .m = 2 + t % 2, .N = 200,
+                              .eps = 0.05, .tightness = 0.5,
+                              .dist = t % 2 ? SOLVE_GEN_LOGNORMAL : SOLVE_GEN_NORMAL,
+                              .separate = t % 3 == 2, .p_required = t == 4 ? 0.1 : 0,
+                              .seed = mix(24000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_result *full = solve_ok(md, sc, NULL);
+        cr_assert_eq(surety_result_status(full), SURETY_OPTIMAL);
+        double opt = surety_result_objective(full), tol = 1e-9 * (1 + fabs(opt));
+        for (int v = 0; v < 4; v++) {
+            double with = 0, without = 0;
+            for (int on = 0; on < 2; on++) {
+                surety_solve_options o;
+                surety_solve_options_init(&o);
+                o.dive_nodes = 16;
+                o.lp_after = -1;
+                o.decomp_after = on ? 1 : -1;
+                if (v < 2)
+                    o.node_limit = v == 0 ? 64 : 512;
+                else
+                    o.time_limit_s = v == 2 ? 0.05 : 0.2;
+                surety_result *res = solve_ok(md, sc, &o);
+                check_result(md, sc, res);
+                double b = surety_result_bound(res);
+                cr_assert(b >= opt - tol, "instance %lu, variant %d, rounds %s: "
+                          "bound %.10g below the optimum %.10g", (unsigned long)t,
+                          v, on ? "on" : "off", b, opt);
+                if (surety_result_status(res) == SURETY_OPTIMAL)
+                    cr_assert(fabs(surety_result_objective(res) - opt) <= tol);
+                else
+                    stopped += on;
+                *(on ? &with : &without) = b;
+                surety_result_free(res);
+            }
+            if (v < 2 && with < without - 1e-3 * fabs(opt))
+                tighter++;
+            cr_log_info("instance %lu variant %d: optimum %.2f, bound %.2f with "
+                        "the rounds, %.2f without", (unsigned long)t, v, opt,
+                        with, without);
+        }
+        surety_result_free(full);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_assert(stopped >= 6, "only %d stopped searches with the rounds", stopped);
+    cr_assert(tighter >= 4, "the rounds lowered a stopped search's bound by "
+              "0.1%% in only %d of 12 node-limited pairs", tighter);
+}
+
 /* ---- random small instances against CBC ---- */
 
 #include <time.h>

@@ -14,7 +14,8 @@
 static const char solve_help[] =
     "usage: surety solve MODEL [-n N] [--seed S] [--risk EPS] [-o PLAN.json]\n"
     "                    [--time-limit SEC] [--gap G] [--node-limit K]\n"
-    "                    [--lp-after K|never] [--keep-dominated]\n"
+    "                    [--lp-after K|never] [--split-after K|never]\n"
+    "                    [--keep-dominated]\n"
     "                    [--threads T] [--progress] [--quiet] [--json]\n"
     "\n"
     "Finds the most profitable plan that fits all but at most floor(eps*N) of\n"
@@ -30,6 +31,9 @@ static const char solve_help[] =
     "  --node-limit K    stop after K nodes\n"
     "  --lp-after K      solve the root LP bound once K nodes have not closed\n"
     "                    the search (default 65536; 'never' turns it off)\n"
+    "  --split-after K   from K nodes on, bound the optimum by each resource's\n"
+    "                    own problem, solved exactly, with prices on jobs\n"
+    "                    wanted twice (default 65536; 'never' turns it off)\n"
     "  --keep-dominated  search every distinct scenario, also those that every\n"
     "                    feasible plan fits (set aside by default; same answer,\n"
     "                    for comparisons)\n"
@@ -235,6 +239,7 @@ int cmd_solve(int argc, char **argv)
         {"node-limit", required_argument, 0, 'k'},
         {"threads", required_argument, 0, 'T'},
         {"lp-after", required_argument, 0, 'L'},
+        {"split-after", required_argument, 0, 'S'},
         {"keep-dominated", no_argument, 0, 'D'},
         {"progress", no_argument, 0, 'p'},
         {"quiet", no_argument, 0, 'q'},
@@ -279,6 +284,14 @@ int cmd_solve(int argc, char **argv)
                 return cli_usage_error("solve", "--lp-after needs a positive whole number or 'never'");
             else
                 sopt.lp_after = (long)v;
+            break;
+        case 'S':
+            if (strcmp(optarg, "never") == 0)
+                sopt.decomp_after = -1;
+            else if (cli_parse_size(optarg, &v) || v == 0 || v > (size_t)LONG_MAX)
+                return cli_usage_error("solve", "--split-after needs a positive whole number or 'never'");
+            else
+                sopt.decomp_after = (long)v;
             break;
         case 'T':
             if (cli_parse_size(optarg, &v) || v == 0 || v > 1024)

@@ -43,6 +43,7 @@ void surety_solve_options_init(surety_solve_options *opt)
     opt->start = NULL;
     opt->dive_nodes = 0;
     opt->lp_after = 0;
+    opt->decomp_after = 0;
     opt->lp_restored = 0;
 }
 
@@ -89,8 +90,8 @@ static double global_bound(const surety_solver *s)
             b = s->open_bound[d];
     if (s->npool > 0 && s->pool[0].bound > b)
         b = s->pool[0].bound;
-    if (b > s->lp_root) /* the root LP caps every open node */
-        b = cut > s->lp_root ? cut : s->lp_root;
+    if (b > s->root_cap) /* the root LP and decomposition cap every node */
+        b = cut > s->root_cap ? cut : s->root_cap;
     return b;
 }
 
@@ -203,6 +204,7 @@ static void solver_free(surety_solver *s)
     surety_heur_free(s);
     surety_bound_free(s);
     surety_lpb_free(s);
+    surety_decomp_free(s);
     surety_xfree(s->state);
     surety_xfree(s->nin);
     surety_xfree(s->load);
@@ -368,6 +370,8 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
     s.last_log = s.t0;
     s.root_bound = INFINITY;
     s.lp_root = INFINITY;
+    s.dec_root = INFINITY;
+    s.root_cap = INFINITY;
 
     surety_result *res = result_new();
     if (!res) {
@@ -438,6 +442,7 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
         }
         {
             s.lp_after = opt->lp_after == 0 ? 65536 : opt->lp_after;
+            s.dec_after = opt->decomp_after == 0 ? 65536 : opt->decomp_after;
             int lr = s.lp_after > 0 && opt->dive_nodes >= 0
                          ? surety_lpb_init(&s)
                          : 1;
@@ -532,6 +537,11 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
               "LP bound: root %.6f, %ld solves, %ld iterations, %ld nodes "
               "pruned, %ld pairs ruled out",
               s.lp_root, s.lp_solves, s.lp_iters, s.lp_prunes, s.lp_fixed);
+    if (s.dec_iters)
+        logf_(&s, SURETY_LOG_INFO,
+              "decomposition bound: %.6f, %ld price rounds, %ld nodes in "
+              "one-resource solves, %.2f s",
+              s.dec_root, s.dec_iters, s.dec_nodes, s.dec_secs);
     logf_(&s, SURETY_LOG_INFO,
           "solve: %s (%s), objective %.6f, bound %.6f, %ld nodes, %.2f s",
           surety_status_name(res->status), surety_stop_name(res->stop),

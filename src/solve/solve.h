@@ -44,6 +44,7 @@ enum { SURETY_LIVE = 0, SURETY_DEAD_LOAD = 1, SURETY_DEAD_BOUND = 2 };
 
 typedef struct surety_solver surety_solver;
 typedef struct solve_lp solve_lp; /* lpbound.c */
+typedef struct solve_dec solve_dec; /* decomp.c */
 
 /* An open node waiting in the best-bound pool (tree.c): the resources
  * (or SURETY_JOB_OUT) of the first `depth` jobs of the branching order,
@@ -210,6 +211,15 @@ struct surety_solver {
     int lp_on;           /* the root LP has been solved */
     long lp_solves, lp_iters, lp_prunes, lp_fixed;
     double lp_root;      /* the LP bound at the root, or INFINITY */
+    /* ---- resource-decomposition bound (decomp.c) ---- */
+    solve_dec *dec;      /* NULL until the first round */
+    long dec_after;      /* tree nodes before the first round; < 0 never */
+    int dec_done;        /* no more rounds */
+    double dec_root;     /* the best round's value, or INFINITY */
+    long dec_iters, dec_nodes; /* price rounds, nodes of the sub-solves */
+    double dec_secs;     /* their time */
+    /* the smaller of lp_root and dec_root: caps every open node */
+    double root_cap;
     double lp_deadline;  /* monotonic seconds after which an LP call stops */
 };
 
@@ -256,6 +266,15 @@ void surety_heur_free(surety_solver *s);
 int surety_solve_offer(surety_solver *s, const long *plan);
 double surety_solve_now(void);
 void surety_solve_log_progress(surety_solver *s, int force, char mark);
+
+/* decomp.c: one price round of the resource-decomposition bound, at the
+ * root state (between dives); the first call sets it up. Sub-solves stop
+ * at `deadline` (monotonic seconds; INFINITY: none). A round that
+ * improves lowers s->dec_root, a bound on every plan that beats the
+ * cutoff. Returns 0 when more rounds may help, 1 when they will not (m <
+ * 2, converged, gap closed, or a limit came first), -1 out of memory. */
+int surety_decomp_round(surety_solver *s, double deadline);
+void surety_decomp_free(surety_solver *s);
 
 /* lpbound.c: the LP relaxation of the strengthened formulation as a
  * second node bound. init returns 0, 1 when there is nothing to decide

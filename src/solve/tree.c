@@ -261,7 +261,33 @@ static void root_lp(surety_solver *s)
     s->lp_root = surety_lpb_node(s, cut, 0, INFINITY, 1000, 3e10, &fixed);
     s->lp_fixed += (long)fixed;
     s->lp_on = 1;
+    if (s->lp_root < s->root_cap)
+        s->root_cap = s->lp_root;
     surety_solve_log_progress(s, 1, 'R');
+}
+
+/* A price round of the resource-decomposition bound (decomp.c), once the
+ * search has run dec_after nodes without closing, and then whenever the
+ * tree has searched as many nodes since as the one-resource solves have
+ * used in all (so that the rounds take a bounded share of the work); at
+ * most 60 rounds. Each improvement caps every bound from then on. */
+static void decomp_round(surety_solver *s)
+{
+    if (s->dec_done || s->dec_after <= 0 || s->nodes < s->dec_after ||
+        s->dec_nodes > s->nodes - s->dec_after)
+        return;
+    double now = surety_solve_now(), tl = s->opt->time_limit_s;
+    double before = s->dec_root;
+    int r = surety_decomp_round(s, tl > 0 ? s->t0 + tl : INFINITY);
+    s->dec_secs += surety_solve_now() - now;
+    if (r != 0 || s->dec_iters >= 60) {
+        s->dec_done = 1;
+        surety_decomp_free(s);
+    }
+    if (s->dec_root < s->root_cap)
+        s->root_cap = s->dec_root;
+    if (s->dec_root < before)
+        surety_solve_log_progress(s, 1, 'D');
 }
 
 typedef struct child {
@@ -400,8 +426,9 @@ double surety_tree_search(surety_solver *s)
         if (s->lpb && !s->lp_on && s->nodes >= s->lp_after)
             root_lp(s);
         solve_open e = pool_pop(s);
-        if (e.bound > s->lp_root)
-            e.bound = s->lp_root;
+        decomp_round(s);
+        if (e.bound > s->root_cap)
+            e.bound = s->root_cap;
         cut = surety_cutoff(s);
         if (!(e.bound > cut)) {
             /* the best waiting bound cannot win: neither can the rest */
@@ -451,5 +478,5 @@ double surety_tree_search(surety_solver *s)
             open = s->open_bound[d];
     if (s->npool > 0 && s->pool[0].bound > open)
         open = s->pool[0].bound;
-    return open < s->lp_root ? open : s->lp_root;
+    return open < s->root_cap ? open : s->root_cap;
 }
