@@ -24,7 +24,8 @@
 #include "solve_gen.h"
 #include "surety.h"
 
-static void run(const solve_gen_params *p, long dives, int lp, long limit)
+static void run(const solve_gen_params *p, long dives, int lp, int split,
+                long limit)
 {
     surety_model *md = solve_gen_model(p);
     surety_scenarios *sc = solve_gen_scenarios(md, p);
@@ -36,6 +37,9 @@ static void run(const solve_gen_params *p, long dives, int lp, long limit)
         o.lp_after = 1;
         o.lp_restored = 1;
     }
+    /* price rounds of the decomposition bound between dives (decomp.c):
+     * they must leave the search state as they found it */
+    o.decomp_after = split ? 1 : -1;
     surety_result *res = NULL;
     surety_error err = {0};
     cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_OK, "%s",
@@ -60,7 +64,7 @@ static void run(const solve_gen_params *p, long dives, int lp, long limit)
  * scenarios (the list its parent leaves holds about 2(b+1)+16 of them),
  * with dives of 1 and 5 nodes (nearly every node goes through the pool and
  * is restored) and depth first, joint and separate, with the LP at every
- * restored node on some. */
+ * restored node on some and the decomposition bound's rounds on others. */
 Test(invariants, hold_at_every_node)
 {
     static const long dives[] = {1, 5, -1, 0};
@@ -72,6 +76,6 @@ Test(invariants, hold_at_every_node)
                                                  : SOLVE_GEN_LOGNORMAL,
                               .separate = t % 6 == 5, .p_forbid = 0.1 * (t % 2),
                               .seed = 0x5eed0000 + t};
-        run(&p, dives[t % 4], t % 3 == 1, 5000);
+        run(&p, dives[t % 4], t % 3 == 1, t % 3 == 2, 5000);
     }
 }

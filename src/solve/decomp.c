@@ -55,8 +55,8 @@ static void sub_free(dec_sub *d)
     surety_xfree(d->start.resource);
 }
 
-/* Jobs of resource i: open jobs whose pair with i is possible at the root,
- * and jobs the root has already placed there (required in the sub-model). */
+/* Jobs of resource i: the open jobs whose pair with i is possible at the
+ * root (where no job is placed yet: the tree places jobs only below it). */
 static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
 {
     size_t n = s->n, m = s->m;
@@ -66,8 +66,7 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
     if (!d->job)
         return -1;
     for (size_t j = 0; j < n; j++)
-        if ((s->state[j] == SURETY_JOB_FREE && px[j * m + i]) ||
-            s->state[j] == (long)i)
+        if (s->state[j] == SURETY_JOB_FREE && px[j * m + i])
             d->job[d->nj++] = j;
     size_t nj = d->nj ? d->nj : 1;
     d->jobs = surety_xcalloc(nj, sizeof *d->jobs);
@@ -84,7 +83,7 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
         d->jobs[t].has_hours = full->jobs[j].has_hours;
         d->jobs[t].profit = full->jobs[j].profit;
         d->jobs[t].allowed = &d->one;
-        d->jobs[t].required = s->state[j] == (long)i;
+        d->jobs[t].required = 0; /* "exactly once" is priced, not kept */
         d->start.resource[t] = -1;
     }
     d->model.name = full->name;
@@ -101,9 +100,10 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
     return 0;
 }
 
-/* V_i at the prices: an upper bound (INFINITY on an error, -INFINITY when
- * no job set fits); x_j of the sub's plan added into xs. The scenarios go
- * into sc (N0 x n room): the hours as given, and as profit the reduced
+/* V_i at the prices: an upper bound, valid at any stop of the sub-solve
+ * (INFINITY on an error or when the deadline has passed; the empty set
+ * always fits, so V_i >= 0); x_j of the sub's plan added into xs. The scenarios go
+ * into sc: the hours as given, and as profit the reduced
  * profit in every scenario, so the sub's mean profit is the reduced profit
  * (to rounding, which the caller's slack covers). */
 static double sub_solve(const surety_solver *s, dec_sub *d,
@@ -117,7 +117,7 @@ static double sub_solve(const surety_solver *s, dec_sub *d,
     sc->n = nj;
     for (size_t t = 0; t < nj; t++) {
         size_t j = d->job[t];
-        double v = d->jobs[t].required ? s->p[j] : s->p[j] - lam[j];
+        double v = s->p[j] - lam[j];
         for (size_t l = 0; l < N0; l++) {
             sc->hours[l * nj + t] = s->sc->hours[l * n + j];
             sc->profit[l * nj + t] = v;
@@ -157,7 +157,8 @@ struct solve_dec {
     dec_sub *sub;  /* m */
     double *lam;   /* n prices */
     double *xs;    /* n: scratch, then the subgradient */
-    surety_scenarios sc; /* the sub-solves' scenarios, N0 x n room */
+    surety_scenarios sc; /* the sub-solves' scenarios, room for N0 x the
+                          * most jobs of a resource */
     double theta;
     int stall;
 };
@@ -189,13 +190,19 @@ static int dec_init(surety_solver *s)
     d->sub = surety_xcalloc(m, sizeof *d->sub);
     d->lam = surety_xmalloc(n, sizeof *d->lam);
     d->xs = surety_xmalloc(n, sizeof *d->xs);
-    d->sc.hours = surety_xmalloc(s->N0 * n, sizeof *d->sc.hours);
-    d->sc.profit = surety_xmalloc(s->N0 * n, sizeof *d->sc.profit);
-    if (!d->sub || !d->lam || !d->xs || !d->sc.hours || !d->sc.profit)
+    if (!d->sub || !d->lam || !d->xs)
         return -1;
-    for (size_t i = 0; i < m; i++)
+    size_t most = 1;
+    for (size_t i = 0; i < m; i++) {
         if (sub_init(s, i, &d->sub[i]) != 0)
             return -1;
+        if (d->sub[i].nj > most)
+            most = d->sub[i].nj;
+    }
+    d->sc.hours = surety_xmalloc(s->N0 * most, sizeof *d->sc.hours);
+    d->sc.profit = surety_xmalloc(s->N0 * most, sizeof *d->sc.profit);
+    if (!d->sc.hours || !d->sc.profit)
+        return -1;
     /* prices start at bound.c's; a required job's may take any sign */
     for (size_t j = 0; j < n; j++)
         d->lam[j] = s->state[j] == SURETY_JOB_FREE ? s->lam[j] : 0;
@@ -215,20 +222,14 @@ int surety_decomp_round(surety_solver *s, double deadline)
     solve_dec *d = s->dec;
     double *lam = d->lam, *xs = d->xs;
     double slack = 1e-9 * (s->pscale + 1);
-    double L = s->fixed_profit;
+    double L = 0;
     memset(xs, 0, n * sizeof *xs);
     for (size_t j = 0; j < n; j++)
         if (s->state[j] == SURETY_JOB_FREE)
             L += lam[j];
-    for (size_t i = 0; i < m && L < INFINITY; i++) {
-        /* jobs placed at the root are counted by the sub-model of their
-         * resource (required there) */
-        dec_sub *u = &d->sub[i];
-        for (size_t t = 0; t < u->nj; t++)
-            if (u->jobs[t].required)
-                L -= s->p[u->job[t]];
-        L += sub_solve(s, u, &d->sc, lam, deadline, xs, &s->dec_nodes);
-    }
+    for (size_t i = 0; i < m && L < INFINITY; i++)
+        L += sub_solve(s, &d->sub[i], &d->sc, lam, deadline, xs,
+                       &s->dec_nodes);
     if (!(L < INFINITY))
         return 1; /* a limit stopped a sub-solve: this round is not known */
     L += slack;
@@ -251,7 +252,7 @@ int surety_decomp_round(surety_solver *s, double deadline)
         norm += g * g;
     }
     if (norm <= 0)
-        return 1; /* the sub-plans form a plan: the bound is its value */
+        return 1; /* a zero subgradient: no prices do better */
     double target = s->have_inc ? s->inc : 0.95 * L;
     double step = d->theta * (L - target) / norm;
     for (size_t j = 0; j < n; j++) {
