@@ -499,6 +499,15 @@ static void chk_pairs(const surety_solver *s, size_t row)
             if (over != po[j * m + i])
                 chk_fail("pair count", row, j, i);
         }
+    /* the decomposition prices of the rejected jobs (tree.c, dec_cap) */
+    if (s->dec_lam) {
+        double rej = 0;
+        for (size_t t = 0; t < s->nb; t++)
+            if (s->state[s->order[t]] == SURETY_JOB_OUT)
+                rej += s->dec_lam[s->order[t]];
+        if (fabs(rej - s->rej_lam) > 1e-9 * (s->pscale + 1))
+            chk_fail("rejected prices", row, 0, 0);
+    }
 }
 
 /* Before an evaluation: the node starts from its parent's values (a node

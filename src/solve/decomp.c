@@ -190,7 +190,9 @@ static int dec_init(surety_solver *s)
     d->sub = surety_xcalloc(m, sizeof *d->sub);
     d->lam = surety_xmalloc(n, sizeof *d->lam);
     d->xs = surety_xmalloc(n, sizeof *d->xs);
-    if (!d->sub || !d->lam || !d->xs)
+    if (!s->dec_lam)
+        s->dec_lam = surety_xcalloc(n, sizeof *s->dec_lam);
+    if (!d->sub || !d->lam || !d->xs || !s->dec_lam)
         return -1;
     size_t most = 1;
     for (size_t i = 0; i < m; i++) {
@@ -236,6 +238,7 @@ int surety_decomp_round(surety_solver *s, double deadline)
     s->dec_iters++;
     if (L < s->dec_root - slack) {
         s->dec_root = L;
+        memcpy(s->dec_lam, lam, n * sizeof *lam);
         d->stall = 0;
     } else if (++d->stall >= 3) {
         d->theta /= 2;

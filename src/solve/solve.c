@@ -205,6 +205,7 @@ static void solver_free(surety_solver *s)
     surety_bound_free(s);
     surety_lpb_free(s);
     surety_decomp_free(s);
+    surety_xfree(s->dec_lam);
     surety_xfree(s->state);
     surety_xfree(s->nin);
     surety_xfree(s->load);

@@ -63,6 +63,7 @@ typedef struct solve_frame {
     double ltot;         /* that resource's total load before */
     size_t job;          /* job decided at this depth */
     double fixed_profit; /* P_A before */
+    double rej_lam;      /* rejected jobs' decomposition prices before */
     double req_profit;   /* profit of undecided required jobs before */
     size_t req_left;     /* undecided required jobs before */
 } solve_frame;
@@ -218,6 +219,10 @@ struct surety_solver {
     double dec_root;     /* the best round's value, or INFINITY */
     long dec_iters, dec_nodes; /* price rounds, nodes of the sub-solves */
     double dec_secs;     /* their time */
+    double *dec_lam;     /* n: the prices of the best round (dec_root) */
+    double rej_lam;      /* sum of dec_lam over the jobs rejected on the
+                          * current path: a node's bound is at most
+                          * dec_root - rej_lam (decomp.c) */
     /* the smaller of lp_root and dec_root: caps every open node */
     double root_cap;
     double lp_deadline;  /* monotonic seconds after which an LP call stops */

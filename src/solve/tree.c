@@ -78,6 +78,7 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
     f->res = c;
     f->job = j;
     f->fixed_profit = s->fixed_profit;
+    f->rej_lam = s->rej_lam;
     f->req_profit = s->req_profit;
     f->req_left = s->req_left;
     memcpy(s->saved_dead_w + d * G, s->dead_w, G * sizeof *s->dead_w);
@@ -86,8 +87,11 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
         s->req_left--;
         s->req_profit -= s->p[j];
     }
-    if (c < 0)
+    if (c < 0) {
+        if (s->dec_lam)
+            s->rej_lam += s->dec_lam[j];
         return 1;
+    }
     size_t i = (size_t)c, g = group_of(s, i);
     s->fixed_profit += s->p[j];
     s->nin[i]++;
@@ -121,6 +125,7 @@ static void undo(surety_solver *s, size_t d)
     }
     s->state[f->job] = SURETY_JOB_FREE;
     s->fixed_profit = f->fixed_profit;
+    s->rej_lam = f->rej_lam;
     s->req_profit = f->req_profit;
     s->req_left = f->req_left;
 }
@@ -290,6 +295,14 @@ static void decomp_round(surety_solver *s)
         surety_solve_log_progress(s, 1, 'D');
 }
 
+/* b capped by the decomposition bound of the node: the root's value less
+ * the prices of the jobs the node has rejected (decomp.c) */
+static double dec_cap(const surety_solver *s, double b)
+{
+    double c = s->dec_root - s->rej_lam;
+    return b < c ? b : c;
+}
+
 typedef struct child {
     long c;
     double b;
@@ -388,7 +401,7 @@ static void dive(surety_solver *s, size_t d, double node_bound)
         }
         s->open_bound[d] = t + 1 < nc ? node_bound : -INFINITY;
         if (apply(s, d, j, ch[t].c)) {
-            double b = surety_bound_node(s, cut, d + 1);
+            double b = dec_cap(s, surety_bound_node(s, cut, d + 1));
             if (b > node_bound)
                 b = node_bound; /* the parent's bound covers the child */
             if (b > cut) {
@@ -446,7 +459,7 @@ double surety_tree_search(surety_solver *s)
             s->restart_row = d;
             s->open_bound[d] = e.bound; /* reported while it is evaluated */
             s->depth = d;
-            double nb = surety_bound_node(s, cut, d);
+            double nb = dec_cap(s, surety_bound_node(s, cut, d));
             if (nb > e.bound)
                 nb = e.bound;
             if (nb > cut && s->lp_on)
