@@ -340,10 +340,12 @@ typedef struct surety_solve_options {
     int lp_restored;
     /* nodes searched before the resource-decomposition bound is computed
      * at the root (each resource's own chance-constrained problem solved
-     * with prices on "each job once"; it caps every bound from then on);
-     * 0: the default (65536); < 0: never. Needs the best-bound pool and at
-     * least two resources; under a time limit it takes at most a quarter
-     * of the time left. */
+     * by the same search, with prices on "each job once"; it caps every
+     * bound from then on); 0: the default (65536); < 0: never. Needs the
+     * best-bound pool and at least two resources. Its rounds then take
+     * about as many nodes as the tree (not counted in the result's nodes,
+     * nor limited by node_limit; each one-resource solve stops after
+     * 200 000 nodes and at the time limit). */
     long decomp_after;
     /* non-zero: keep the scenarios that every feasible plan fits (dominated
      * by k+1 others, or fitting every plan) in the search instead of

@@ -255,8 +255,9 @@ int surety_decomp_round(surety_solver *s, double deadline)
         norm += g * g;
     }
     if (norm <= 0)
-        return 1; /* a zero subgradient: no prices do better */
-    double target = s->have_inc ? s->inc : 0.95 * L;
+        return 1; /* a zero subgradient (exact when every sub-solve
+                   * finished): no prices do better */
+    double target = s->have_inc ? s->inc : L - 0.05 * fabs(L) - 1;
     double step = d->theta * (L - target) / norm;
     for (size_t j = 0; j < n; j++) {
         if (s->state[j] != SURETY_JOB_FREE)

@@ -222,7 +222,7 @@ struct surety_solver {
     double *dec_lam;     /* n: the prices of the best round (dec_root) */
     double rej_lam;      /* sum of dec_lam over the jobs rejected on the
                           * current path: a node's bound is at most
-                          * dec_root - rej_lam (decomp.c) */
+                          * dec_root - rej_lam (tree.c, dec_cap) */
     /* the smaller of lp_root and dec_root: caps every open node */
     double root_cap;
     double lp_deadline;  /* monotonic seconds after which an LP call stops */

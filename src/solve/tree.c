@@ -274,8 +274,12 @@ static void root_lp(surety_solver *s)
 /* A price round of the resource-decomposition bound (decomp.c), once the
  * search has run dec_after nodes without closing, and then whenever the
  * tree has searched as many nodes since as the one-resource solves have
- * used in all (so that the rounds take a bounded share of the work); at
- * most 60 rounds. Each improvement caps every bound from then on. */
+ * used in all; at most 60 rounds. The share is counted in nodes, and a
+ * one-resource node costs more than a tree node on small N, so the rounds
+ * can take more than half of the time there (bench/README.md). The
+ * one-resource solves stop at the time limit, not at the node limit, and
+ * their nodes are not in the reported count. Each improvement caps every
+ * bound from then on. */
 static void decomp_round(surety_solver *s)
 {
     if (s->dec_done || s->dec_after <= 0 || s->nodes < s->dec_after ||
@@ -296,7 +300,13 @@ static void decomp_round(surety_solver *s)
 }
 
 /* b capped by the decomposition bound of the node: the root's value less
- * the prices of the jobs the node has rejected (decomp.c) */
+ * the best round's prices of the jobs the node has rejected. Why: for any
+ * completion, value = sum_j lam_j y_j + sum_i sum_j (p_j - lam_j) x_ji
+ * with y_j = sum_i x_ji; each resource's part is at most its root value
+ * V_i (its jobs were open at the root and fit it in all but k scenarios),
+ * y_j <= 1 with lam_j >= 0 for an optional job, y_j = 1 for a required
+ * one, and y_j = 0 for a rejected job, whose lam_j >= 0 then drops out.
+ * Rounds change the prices only at the root, where nothing is rejected. */
 static double dec_cap(const surety_solver *s, double b)
 {
     double c = s->dec_root - s->rej_lam;
@@ -438,8 +448,9 @@ double surety_tree_search(surety_solver *s)
     while (!s->stop && s->npool > 0) {
         if (s->lpb && !s->lp_on && s->nodes >= s->lp_after)
             root_lp(s);
-        solve_open e = pool_pop(s);
+        /* before the pop, so that its progress line sees every open node */
         decomp_round(s);
+        solve_open e = pool_pop(s);
         if (e.bound > s->root_cap)
             e.bound = s->root_cap;
         cut = surety_cutoff(s);
