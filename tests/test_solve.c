@@ -552,16 +552,18 @@ Test(solve, best_bound_pool_keeps_the_optimum_on_larger_trees)
 /* ---- the LP bound (lpbound.c) ---- */
 
 /* Reads the root LP value from the solver's log line. */
+/* Catches the value of the log line that `format` reads. */
 typedef struct lp_log {
-    double root;
+    const char *format;
+    double value;
     int seen;
 } lp_log;
 
-static void catch_lp_line(void *ctx, surety_log_level level, const char *line)
+static void catch_line(void *ctx, surety_log_level level, const char *line)
 {
     (void)level;
     lp_log *g = ctx;
-    if (sscanf(line, "LP bound: root %lf", &g->root) == 1)
+    if (sscanf(line, g->format, &g->value) == 1)
         g->seen = 1;
 }
 
@@ -588,8 +590,8 @@ Test(solve, lp_bound_keeps_the_enumerated_optimum)
             o.dive_nodes = dives[v];
             o.lp_after = 1;
             o.lp_restored = 1;
-            lp_log g = {0, 0};
-            o.log = catch_lp_line;
+            lp_log g = {"LP bound: root %lf", 0, 0};
+            o.log = catch_line;
             o.log_ctx = &g;
             expect_enumerated(md, sc, &o, &p, t, feas, bf, "LP bound, ");
             lp_runs += g.seen;
@@ -647,19 +649,6 @@ Test(solve, lp_bound_on_larger_trees)
 
 /* ---- the resource-decomposition bound (decomp.c) ---- */
 
-typedef struct dec_log {
-    double value;
-    int seen;
-} dec_log;
-
-static void catch_dec_line(void *ctx, surety_log_level level, const char *line)
-{
-    (void)level;
-    dec_log *g = ctx;
-    if (sscanf(line, "decomposition bound: %lf", &g->value) == 1)
-        g->seen = 1;
-}
-
 /* Price rounds from the first node on, with dives of one node (every node
  * goes through the pool, where the rounds run): every answer must be the
  * enumerated one, joint and separate, with required jobs and forbidden
@@ -683,8 +672,8 @@ Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
         o.dive_nodes = 1;
         o.decomp_after = 1;
         o.lp_after = -1;
-        dec_log g = {0, 0};
-        o.log = catch_dec_line;
+        lp_log g = {"decomposition bound: %lf", 0, 0};
+        o.log = catch_line;
         o.log_ctx = &g;
         expect_enumerated(md, sc, &o, &p, t, feas, bf, "decomposition, ");
         runs += g.seen;
@@ -1271,8 +1260,8 @@ Test(solve, root_lp_is_at_least_as_tight_as_glpk_relaxation)
         surety_solve_options_init(&o);
         o.dive_nodes = 1;
         o.lp_after = 1;
-        lp_log g = {0, 0};
-        o.log = catch_lp_line;
+        lp_log g = {"LP bound: root %lf", 0, 0};
+        o.log = catch_line;
         o.log_ctx = &g;
         o.verbosity = SURETY_LOG_INFO;
         surety_result *res = solve_ok(md, sc, &o);
@@ -1293,9 +1282,9 @@ Test(solve, root_lp_is_at_least_as_tight_as_glpk_relaxation)
                 cr_assert_eq(glpk_relaxation_mps(mps, dir, &relax), 0,
                              "instance %lu: glpsol --nomip failed",
                              (unsigned long)t);
-                cr_assert(g.root <= -relax + 1e-6 * (1 + fabs(relax)),
+                cr_assert(g.value <= -relax + 1e-6 * (1 + fabs(relax)),
                           "instance %lu: root LP %.10g above GLPK's "
-                          "relaxation %.10g", (unsigned long)t, g.root,
+                          "relaxation %.10g", (unsigned long)t, g.value,
                           -relax);
                 compared++;
             }

@@ -47,6 +47,21 @@ static const char solve_help[] =
     "Exit codes: 0 solved (optimal or proven infeasible), 4 stopped by a limit,\n"
     "5 interrupted (the best plan so far is still printed and written).\n";
 
+/* A node count K > 0, or 'never' (-1), for --lp-after and --split-after;
+ * non-zero when the text is neither. */
+static int parse_after(const char *text, long *out)
+{
+    size_t v;
+    if (strcmp(text, "never") == 0) {
+        *out = -1;
+        return 0;
+    }
+    if (cli_parse_size(text, &v) || v == 0 || v > (size_t)LONG_MAX)
+        return 1;
+    *out = (long)v;
+    return 0;
+}
+
 typedef struct log_state {
     int verbosity;
 } log_state;
@@ -279,20 +294,12 @@ int cmd_solve(int argc, char **argv)
             sopt.node_limit = (long)v;
             break;
         case 'L':
-            if (strcmp(optarg, "never") == 0)
-                sopt.lp_after = -1;
-            else if (cli_parse_size(optarg, &v) || v == 0 || v > (size_t)LONG_MAX)
+            if (parse_after(optarg, &sopt.lp_after))
                 return cli_usage_error("solve", "--lp-after needs a positive whole number or 'never'");
-            else
-                sopt.lp_after = (long)v;
             break;
         case 'S':
-            if (strcmp(optarg, "never") == 0)
-                sopt.decomp_after = -1;
-            else if (cli_parse_size(optarg, &v) || v == 0 || v > (size_t)LONG_MAX)
+            if (parse_after(optarg, &sopt.decomp_after))
                 return cli_usage_error("solve", "--split-after needs a positive whole number or 'never'");
-            else
-                sopt.decomp_after = (long)v;
             break;
         case 'T':
             if (cli_parse_size(optarg, &v) || v == 0 || v > 1024)
