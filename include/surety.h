@@ -345,8 +345,13 @@ typedef struct surety_solve_options {
      * best-bound pool and at least two resources. Its rounds then take
      * about as many nodes as the tree (not counted in the result's nodes,
      * nor limited by node_limit; each one-resource solve stops after
-     * 200 000 nodes and at the time limit). */
+     * 200 000 nodes and at the time limit). After its price rounds it
+     * probes each (job, resource) pair once: the resource's problem with
+     * the job forced in, or kept out when its best plan holds it, which
+     * caps every node that takes that decision. */
     long decomp_after;
+    /* most price rounds before the probes; 0: the default (60) */
+    int decomp_rounds;
     /* non-zero: keep the scenarios that every feasible plan fits (dominated
      * by k+1 others, or fitting every plan) in the search instead of
      * setting them aside; for comparisons, default 0 */

@@ -8,7 +8,9 @@
  *  - the pair rule's overload count of every possible (job, resource)
  *    pair against a recount over all scenarios;
  *  - the per-scenario bounds a node starts from against a per-depth copy
- *    (the undo trail must bring its parent's values back exactly).
+ *    (the undo trail must bring its parent's values back exactly);
+ *  - the decomposition prices of the rejected jobs and the probed caps
+ *    of the path's decisions against a recount.
  * These are internal checks: an optimum that survives a broken trail is
  * still wrong on other instances, and the optimum tests (test_solve.c,
  * against CBC, GLPK and enumeration) do not always see it. The plans are
@@ -37,9 +39,11 @@ static void run(const solve_gen_params *p, long dives, int lp, int split,
         o.lp_after = 1;
         o.lp_restored = 1;
     }
-    /* price rounds of the decomposition bound between dives (decomp.c):
-     * they must leave the search state as they found it */
+    /* price rounds of the decomposition bound between dives, and after
+     * two of them the probes (decomp.c): they must leave the search state
+     * as they found it, and the probed caps must follow the path */
     o.decomp_after = split ? 1 : -1;
+    o.decomp_rounds = 2;
     surety_result *res = NULL;
     surety_error err = {0};
     cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_OK, "%s",

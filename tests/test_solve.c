@@ -649,13 +649,25 @@ Test(solve, lp_bound_on_larger_trees)
 
 /* ---- the resource-decomposition bound (decomp.c) ---- */
 
+/* Catches two log lines' values. */
+typedef struct two_logs {
+    lp_log a, b;
+} two_logs;
+
+static void catch_two(void *ctx, surety_log_level level, const char *line)
+{
+    two_logs *g = ctx;
+    catch_line(&g->a, level, line);
+    catch_line(&g->b, level, line);
+}
+
 /* Price rounds from the first node on, with dives of one node (every node
  * goes through the pool, where the rounds run): every answer must be the
  * enumerated one, joint and separate, with required jobs and forbidden
  * pairs (random_params). */
 Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
 {
-    int runs = 0;
+    int runs = 0, probed = 0;
     for (uint64_t t = 0; t < 120; t++) {
         solve_gen_params p;
         random_params(&p, mix(23000 + t), 8, 3, t % 4 == 0 ? 120 : 30);
@@ -671,17 +683,74 @@ Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
         surety_solve_options_init(&o);
         o.dive_nodes = 1;
         o.decomp_after = 1;
+        o.decomp_rounds = 1 + (int)(t % 3); /* soon to the probes */
         o.lp_after = -1;
-        lp_log g = {"decomposition bound: %lf", 0, 0};
-        o.log = catch_line;
+        two_logs g = {{"decomposition bound: %lf", 0, 0},
+                      {"decomposition probes: %lf", 0, 0}};
+        o.log = catch_two;
         o.log_ctx = &g;
         expect_enumerated(md, sc, &o, &p, t, feas, bf, "decomposition, ");
-        runs += g.seen;
+        runs += g.a.seen;
+        probed += g.b.seen;
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);
     }
     /* most instances close at the root; enough must reach a round */
     cr_assert(runs >= 30, "the decomposition ran in only %d solves", runs);
+    cr_log_info("rounds in %d solves, probes in %d", runs, probed);
+}
+
+/* The probes after the price rounds (one or two rounds here, so they come
+ * soon): each pair's one-resource problem with the job forced in or kept
+ * out caps every node that takes that decision, and pairs whose cap alone
+ * cannot beat the incumbent leave the root's row. On ten-job instances
+ * with trees large enough for the probes to run, every answer must be the
+ * enumerated one; enough solves must probe, and some must rule pairs out
+ * (the log lines say so). */
+Test(solve, decomposition_probes_keep_the_enumerated_optimum)
+{
+    int probed = 0;
+    double ruled = 0;
+    for (uint64_t t = 0; t < 120; t++) {
+        /* two mixes: high risk with ample room (more probe caps bite),
+         * and lower risk with tighter room (more pairs ruled out) */
+        int hi = t < 60;
+        solve_gen_params p = {.n = 9 + t % 2, .m = 2,
+                              .N = (hi ? 30 : 40) + (hi ? 10 : 20) * (t % 4),
+                              .eps = hi ? (t % 3 ? 0.3 : 0.5)
+                                        : (t % 3 ? 0.2 : 0.3),
+                              .tightness = (hi ? 0.5 : 0.4) +
+                                           0.1 * (double)(t % 3),
+                              .dist = (solve_gen_dist)(t % 3),
+                              .separate = t % 5 == 4,
+                              .p_required = t % 6 == 1 ? 0.15 : 0,
+                              .p_forbid = t % 4 == 3 ? 0.2 : 0,
+                              .p_negative = t % 7 == 2 ? 0.3 : 0,
+                              .seed = mix(25000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = 1 + (long)(t % 2) * 6;
+        o.decomp_after = 1;
+        o.decomp_rounds = 1 + (int)(t % 2);
+        o.lp_after = -1;
+        two_logs g = {{"decomposition probes: %lf", 0, 0},
+                      {"decomposition probes: %*f one-resource solves with "
+                       "one job forced in or kept out, %lf", 0, 0}};
+        o.log = catch_two;
+        o.log_ctx = &g;
+        expect_enumerated(md, sc, &o, &p, t, feas, bf, "probes, ");
+        probed += g.a.seen;
+        ruled += g.b.seen ? g.b.value : 0;
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("probed %d solves, ruled out %g pairs", probed, ruled);
+    cr_assert(probed >= 40, "the probes ran in only %d solves", probed);
+    cr_assert(ruled >= 4, "probes ruled out only %g pairs", ruled);
 }
 
 /* Searches stopped by node and time limits soon after the rounds begin

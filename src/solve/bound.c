@@ -508,6 +508,22 @@ static void chk_pairs(const surety_solver *s, size_t row)
         if (fabs(rej - s->rej_lam) > 1e-9 * (s->pscale + 1))
             chk_fail("rejected prices", row, 0, 0);
     }
+    /* the probed caps the path's decisions select (tree.c, apply) */
+    if (s->dec_c)
+        for (size_t i = 0; i < m; i++) {
+            double c = s->dec_v[i];
+            for (size_t t = 0; t < s->nb; t++) {
+                size_t j = s->order[t];
+                if (s->state[j] == SURETY_JOB_FREE)
+                    continue;
+                double v = s->state[j] == (long)i ? s->dec_vin[j * m + i]
+                                                  : s->dec_vout[j * m + i];
+                if (v < c)
+                    c = v;
+            }
+            if (c != s->dec_c[i])
+                chk_fail("probed caps", row, 0, i);
+        }
 }
 
 /* Before an evaluation: the node starts from its parent's values (a node

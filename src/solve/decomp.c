@@ -1,4 +1,4 @@
-/* decomp.c - the resource-decomposition bound at the root.
+/* decomp.c - the resource-decomposition bound at the root, and its probes.
  *
  * The rows "each job in at most one resource" (exactly one for a required
  * job) are priced out with prices lam_j, as the assignment rows of the
@@ -27,6 +27,19 @@
  * pxs: a pair ruled out there is in no plan that beats the incumbent), so
  * the bound holds for every plan that beats the cutoff, which is all the
  * search needs.
+ *
+ * After the rounds, probes at the best round's prices (the reduction tests
+ * of Lagrangian relaxation, which bound a problem with one variable fixed:
+ * Beasley 1993, "Lagrangean relaxation", in Reeves (ed.), Modern Heuristic
+ * Techniques for Combinatorial Problems; cited from memory). For each pair
+ * (j, i), V_i is solved again with j kept out of i when the best round's
+ * plan of i holds it, or forced in when it does not (the other direction
+ * leaves V_i as it was). A node whose decision on j matches the probe
+ * (j placed in i for a forced-in probe; placed elsewhere or rejected for
+ * a kept-out one) has resource i's part at most that probe's value (its
+ * job sets are among the probe's); tree.c keeps, along the path, the smallest such value
+ * per resource, so a node's cap is the sum of prices plus those caps. A
+ * pair whose cap alone cannot beat the incumbent leaves the root's row.
  * SPDX-License-Identifier: MIT */
 #include <math.h>
 #include <string.h>
@@ -46,6 +59,8 @@ typedef struct dec_sub {
     surety_model model;
     surety_plan start;     /* the previous plan, a hint for the next */
     int have_start;
+    unsigned char *in_best; /* nj: in the sub's plan of the best round */
+    unsigned char zero;     /* the allowed flag of a job kept out */
 } dec_sub;
 
 static void sub_free(dec_sub *d)
@@ -53,6 +68,7 @@ static void sub_free(dec_sub *d)
     surety_xfree(d->job);
     surety_xfree(d->jobs);
     surety_xfree(d->start.resource);
+    surety_xfree(d->in_best);
 }
 
 /* Jobs of resource i: the open jobs whose pair with i is possible at the
@@ -71,7 +87,8 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
     size_t nj = d->nj ? d->nj : 1;
     d->jobs = surety_xcalloc(nj, sizeof *d->jobs);
     d->start.resource = surety_xmalloc(nj, sizeof *d->start.resource);
-    if (!d->jobs || !d->start.resource)
+    d->in_best = surety_xcalloc(nj, 1);
+    if (!d->jobs || !d->start.resource || !d->in_best)
         return -1;
     const surety_model *full = s->model;
     d->one = 1;
@@ -101,14 +118,17 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
 }
 
 /* V_i at the prices: an upper bound, valid at any stop of the sub-solve
- * (INFINITY on an error or when the deadline has passed; the empty set
- * always fits, so V_i >= 0); x_j of the sub's plan added into xs. The scenarios go
- * into sc: the hours as given, and as profit the reduced
- * profit in every scenario, so the sub's mean profit is the reduced profit
- * (to rounding, which the caller's slack covers). */
+ * (INFINITY on an error or when the deadline has passed; -INFINITY when
+ * no job set fits, which only a job forced in can cause). The scenarios
+ * go into sc: the hours as given, and as profit the reduced profit in
+ * every scenario, so the sub's mean profit is the reduced profit (to
+ * rounding, which the caller's slack covers). `start` is a hint; with
+ * `out`, the sub's plan goes there (have_start set) and its jobs are
+ * counted into xs. */
 static double sub_solve(const surety_solver *s, dec_sub *d,
                         surety_scenarios *sc, const double *lam,
-                        double deadline, double *xs, long *nodes)
+                        double deadline, const surety_plan *start,
+                        surety_plan *out, double *xs, long *nodes)
 {
     if (d->nj == 0)
         return 0;
@@ -133,17 +153,18 @@ static double sub_solve(const surety_solver *s, dec_sub *d,
             return INFINITY;
         o.time_limit_s = left;
     }
-    if (d->have_start)
-        o.start = &d->start;
+    o.start = start;
     surety_result *r = NULL;
     if (surety_solve(&d->model, sc, &o, &r, NULL) != SURETY_OK)
         return INFINITY;
-    double b = surety_result_bound(r);
+    double b = surety_result_status(r) == SURETY_INFEASIBLE
+                   ? -INFINITY
+                   : surety_result_bound(r);
     *nodes += surety_result_nodes(r);
     const surety_plan *pl = surety_result_plan(r);
-    if (pl) {
+    if (pl && out) {
         for (size_t t = 0; t < nj; t++) {
-            d->start.resource[t] = pl->resource[t];
+            out->resource[t] = pl->resource[t];
             if (pl->resource[t] >= 0)
                 xs[d->job[t]] += 1;
         }
@@ -157,10 +178,14 @@ struct solve_dec {
     dec_sub *sub;  /* m */
     double *lam;   /* n prices */
     double *xs;    /* n: scratch, then the subgradient */
+    double *v;     /* m: this round's V_i bounds */
     surety_scenarios sc; /* the sub-solves' scenarios, room for N0 x the
                           * most jobs of a resource */
+    surety_plan pstart;  /* a probe's starting plan, as long as sc's rows */
     double theta;
     int stall;
+    int probing;   /* the rounds are over: pairs are probed */
+    size_t next;   /* position in s->order of the next job to probe */
 };
 
 void surety_decomp_free(surety_solver *s)
@@ -174,8 +199,10 @@ void surety_decomp_free(surety_solver *s)
     surety_xfree(d->sub);
     surety_xfree(d->lam);
     surety_xfree(d->xs);
+    surety_xfree(d->v);
     surety_xfree(d->sc.hours);
     surety_xfree(d->sc.profit);
+    surety_xfree(d->pstart.resource);
     surety_xfree(d);
     s->dec = NULL;
 }
@@ -190,9 +217,12 @@ static int dec_init(surety_solver *s)
     d->sub = surety_xcalloc(m, sizeof *d->sub);
     d->lam = surety_xmalloc(n, sizeof *d->lam);
     d->xs = surety_xmalloc(n, sizeof *d->xs);
+    d->v = surety_xmalloc(m, sizeof *d->v);
     if (!s->dec_lam)
         s->dec_lam = surety_xcalloc(n, sizeof *s->dec_lam);
-    if (!d->sub || !d->lam || !d->xs || !s->dec_lam)
+    if (!s->dec_v)
+        s->dec_v = surety_xcalloc(m, sizeof *s->dec_v);
+    if (!d->sub || !d->lam || !d->xs || !d->v || !s->dec_lam || !s->dec_v)
         return -1;
     size_t most = 1;
     for (size_t i = 0; i < m; i++) {
@@ -203,7 +233,8 @@ static int dec_init(surety_solver *s)
     }
     d->sc.hours = surety_xmalloc(s->N0 * most, sizeof *d->sc.hours);
     d->sc.profit = surety_xmalloc(s->N0 * most, sizeof *d->sc.profit);
-    if (!d->sc.hours || !d->sc.profit)
+    d->pstart.resource = surety_xmalloc(most, sizeof *d->pstart.resource);
+    if (!d->sc.hours || !d->sc.profit || !d->pstart.resource)
         return -1;
     /* prices start at bound.c's; a required job's may take any sign */
     for (size_t j = 0; j < n; j++)
@@ -212,39 +243,50 @@ static int dec_init(surety_solver *s)
     return 0;
 }
 
-int surety_decomp_round(surety_solver *s, double deadline)
+/* One subgradient round. Returns 0 when more rounds may help, 1 when they
+ * will not (converged, or the most rounds: 60 by default), 2 when the work should stop (a
+ * limit stopped a sub-solve, or the bound no longer beats the cutoff). */
+static int price_round(surety_solver *s, double deadline)
 {
     size_t n = s->n, m = s->m;
-    if (m < 2)
-        return 1; /* nothing to split */
-    if (!s->dec && dec_init(s) != 0) {
-        surety_decomp_free(s);
-        return -1;
-    }
     solve_dec *d = s->dec;
     double *lam = d->lam, *xs = d->xs;
     double slack = 1e-9 * (s->pscale + 1);
-    double L = 0;
+    double lsum = slack, L;
     memset(xs, 0, n * sizeof *xs);
     for (size_t j = 0; j < n; j++)
         if (s->state[j] == SURETY_JOB_FREE)
-            L += lam[j];
-    for (size_t i = 0; i < m && L < INFINITY; i++)
-        L += sub_solve(s, &d->sub[i], &d->sc, lam, deadline, xs,
-                       &s->dec_nodes);
+            lsum += lam[j];
+    L = lsum;
+    for (size_t i = 0; i < m && L < INFINITY; i++) {
+        dec_sub *u = &d->sub[i];
+        d->v[i] = sub_solve(s, u, &d->sc, lam, deadline,
+                            u->have_start ? &u->start : NULL, &u->start, xs,
+                            &s->dec_nodes);
+        L += d->v[i];
+    }
     if (!(L < INFINITY))
-        return 1; /* a limit stopped a sub-solve: this round is not known */
-    L += slack;
+        return 2; /* a limit stopped a sub-solve: this round is not known */
     s->dec_iters++;
     if (L < s->dec_root - slack) {
         s->dec_root = L;
+        s->dec_lsum = lsum;
         memcpy(s->dec_lam, lam, n * sizeof *lam);
+        memcpy(s->dec_v, d->v, m * sizeof *d->v);
+        for (size_t i = 0; i < m; i++) {
+            dec_sub *u = &d->sub[i];
+            for (size_t t = 0; t < u->nj; t++)
+                u->in_best[t] = u->start.resource[t] >= 0;
+        }
         d->stall = 0;
     } else if (++d->stall >= 3) {
         d->theta /= 2;
         d->stall = 0;
     }
-    if (!(s->dec_root > surety_cutoff(s)) || d->theta < 1.0 / 64)
+    if (!(s->dec_root > surety_cutoff(s)))
+        return 2;
+    long most = s->opt->decomp_rounds > 0 ? s->opt->decomp_rounds : 60;
+    if (d->theta < 1.0 / 64 || s->dec_iters >= most)
         return 1;
     double norm = 0;
     for (size_t j = 0; j < n; j++) {
@@ -270,4 +312,133 @@ int surety_decomp_round(surety_solver *s, double deadline)
         lam[j] = v;
     }
     return 0;
+}
+
+/* The rounds are over: the tables of probed bounds start at the best
+ * round's V_i (no probe yet: a decision costs nothing). */
+static int probe_init(surety_solver *s)
+{
+    size_t n = s->n, m = s->m;
+    s->dec_vin = surety_xmalloc(n * m, sizeof *s->dec_vin);
+    s->dec_vout = surety_xmalloc(n * m, sizeof *s->dec_vout);
+    s->dec_c = surety_xmalloc(m, sizeof *s->dec_c);
+    s->dec_saved_c = surety_xmalloc((s->nb + 1) * m, sizeof *s->dec_saved_c);
+    if (!s->dec_vin || !s->dec_vout || !s->dec_c || !s->dec_saved_c)
+        return -1;
+    for (size_t j = 0; j < n; j++)
+        for (size_t i = 0; i < m; i++)
+            s->dec_vin[j * m + i] = s->dec_vout[j * m + i] = s->dec_v[i];
+    memcpy(s->dec_c, s->dec_v, m * sizeof *s->dec_c);
+    s->dec->probing = 1;
+    s->dec->next = 0;
+    return 0;
+}
+
+/* The cap of a node that decides job j only (c >= 0: placed in resource
+ * c; SURETY_JOB_OUT: rejected), at the best round's prices. */
+static double single_cap(const surety_solver *s, size_t j, long c)
+{
+    size_t m = s->m;
+    double v = s->dec_lsum - (c < 0 ? s->dec_lam[j] : 0);
+    for (size_t i = 0; i < m; i++) {
+        double w = (long)i == c ? s->dec_vin[j * m + i]
+                                : s->dec_vout[j * m + i];
+        v += w < s->dec_v[i] ? w : s->dec_v[i];
+    }
+    return v;
+}
+
+/* Rules out of the root's row of pxs, which every restored node starts
+ * from (as the root LP's reduced costs do), the pairs of the first `upto`
+ * jobs in the branching order whose probed cap alone leaves no plan above
+ * the cutoff. */
+static void rule_pairs(surety_solver *s, size_t upto)
+{
+    size_t m = s->m;
+    double cut = surety_cutoff(s);
+    unsigned char *px = s->pxs; /* row 0: the root's */
+    for (size_t t = 0; t < upto; t++) {
+        size_t j = s->order[t];
+        if (s->state[j] != SURETY_JOB_FREE)
+            continue;
+        for (size_t i = 0; i < m; i++)
+            if (px[j * m + i] && !(single_cap(s, j, (long)i) > cut)) {
+                px[j * m + i] = 0;
+                s->dec_ruled++;
+            }
+    }
+}
+
+/* Probes the pairs of the next job in the branching order: on each
+ * resource whose best-round plan holds it, V_i with the job kept out;
+ * on the others, V_i with the job forced in; then the pairs of the jobs
+ * probed so far are ruled out where they can. Returns 0 while jobs are left, 1 when done, 2 when a limit stopped a
+ * sub-solve. */
+static int probe_next(surety_solver *s, double deadline)
+{
+    size_t m = s->m;
+    solve_dec *d = s->dec;
+    if (d->next >= s->nb)
+        return 1;
+    size_t j = s->order[d->next++];
+    if (s->state[j] != SURETY_JOB_FREE)
+        return 0;
+    for (size_t i = 0; i < m; i++) {
+        dec_sub *u = &d->sub[i];
+        size_t q = 0;
+        while (q < u->nj && u->job[q] != j)
+            q++;
+        if (q == u->nj)
+            continue; /* j may not enter i */
+        d->pstart.n = u->nj;
+        for (size_t t = 0; t < u->nj; t++)
+            d->pstart.resource[t] = u->in_best[t] ? 0 : -1;
+        int out = u->in_best[q];
+        if (out) {
+            u->jobs[q].allowed = &u->zero;
+            d->pstart.resource[q] = -1;
+        } else {
+            u->jobs[q].required = 1;
+            d->pstart.resource[q] = 0;
+        }
+        double v = sub_solve(s, u, &d->sc, s->dec_lam, deadline, &d->pstart,
+                             NULL, NULL, &s->dec_nodes);
+        u->jobs[q].allowed = &u->one;
+        u->jobs[q].required = 0;
+        if (!(v < INFINITY))
+            return 2;
+        s->dec_probes++;
+        double *tab = out ? s->dec_vout : s->dec_vin;
+        if (v < tab[j * m + i])
+            tab[j * m + i] = v;
+    }
+    rule_pairs(s, d->next);
+    return d->next >= s->nb;
+}
+
+void surety_decomp_rule(surety_solver *s)
+{
+    if (s->dec_vin)
+        rule_pairs(s, s->nb);
+}
+
+int surety_decomp_round(surety_solver *s, double deadline)
+{
+    if (s->m < 2)
+        return 1; /* nothing to split */
+    if (!s->dec && dec_init(s) != 0) {
+        surety_decomp_free(s);
+        return -1;
+    }
+    solve_dec *d = s->dec;
+    if (d->probing) {
+        int r = probe_next(s, deadline);
+        return r == 0 ? 0 : 1;
+    }
+    int r = price_round(s, deadline);
+    if (r == 0)
+        return 0;
+    if (r == 2 || !(s->dec_root < INFINITY) || s->nb == 0)
+        return 1;
+    return probe_init(s) != 0 ? -1 : 0;
 }

@@ -44,6 +44,7 @@ void surety_solve_options_init(surety_solve_options *opt)
     opt->dive_nodes = 0;
     opt->lp_after = 0;
     opt->decomp_after = 0;
+    opt->decomp_rounds = 0;
     opt->lp_restored = 0;
 }
 
@@ -206,6 +207,11 @@ static void solver_free(surety_solver *s)
     surety_lpb_free(s);
     surety_decomp_free(s);
     surety_xfree(s->dec_lam);
+    surety_xfree(s->dec_v);
+    surety_xfree(s->dec_vin);
+    surety_xfree(s->dec_vout);
+    surety_xfree(s->dec_c);
+    surety_xfree(s->dec_saved_c);
     surety_xfree(s->state);
     surety_xfree(s->nin);
     surety_xfree(s->load);
@@ -372,6 +378,7 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
     s.root_bound = INFINITY;
     s.lp_root = INFINITY;
     s.dec_root = INFINITY;
+    s.dec_rule_inc = -INFINITY;
     s.root_cap = INFINITY;
 
     surety_result *res = result_new();
@@ -543,6 +550,11 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
               "decomposition bound: %.6f, %ld price rounds, %ld nodes in "
               "one-resource solves, %.2f s",
               s.dec_root, s.dec_iters, s.dec_nodes, s.dec_secs);
+    if (s.dec_probes)
+        logf_(&s, SURETY_LOG_INFO,
+              "decomposition probes: %ld one-resource solves with one job "
+              "forced in or kept out, %ld pairs ruled out",
+              s.dec_probes, s.dec_ruled);
     logf_(&s, SURETY_LOG_INFO,
           "solve: %s (%s), objective %.6f, bound %.6f, %ld nodes, %.2f s",
           surety_status_name(res->status), surety_stop_name(res->stop),

@@ -223,6 +223,16 @@ struct surety_solver {
     double rej_lam;      /* sum of dec_lam over the jobs rejected on the
                           * current path: a node's bound is at most
                           * dec_root - rej_lam (tree.c, dec_cap) */
+    double *dec_v;       /* m: the best round's V_i bounds */
+    double dec_lsum;     /* its sum of prices (dec_root = dec_lsum + the
+                          * sum of dec_v) */
+    /* after the rounds, probes (decomp.c): n x m bounds on V_i at the best
+     * round's prices with job j forced into resource i (dec_vin) or kept
+     * out of it (dec_vout); dec_c holds the current path's V_i caps, the
+     * smallest entry its decisions select, saved per depth */
+    double *dec_vin, *dec_vout, *dec_c, *dec_saved_c;
+    long dec_probes, dec_ruled; /* one-resource probes; pairs ruled out */
+    double dec_rule_inc; /* the incumbent when pairs were last ruled out */
     /* the smaller of lp_root and dec_root: caps every open node */
     double root_cap;
     double lp_deadline;  /* monotonic seconds after which an LP call stops */
@@ -279,6 +289,10 @@ void surety_solve_log_progress(surety_solver *s, int force, char mark);
  * cutoff. Returns 0 when more rounds may help, 1 when they will not (m <
  * 2, converged, gap closed, or a limit came first), -1 out of memory. */
 int surety_decomp_round(surety_solver *s, double deadline);
+/* Rules out of the root's row of pxs the pairs whose probed cap alone
+ * (once the probes have run) leaves no plan above the cutoff; for when the
+ * incumbent has improved. */
+void surety_decomp_rule(surety_solver *s);
 void surety_decomp_free(surety_solver *s);
 
 /* lpbound.c: the LP relaxation of the strengthened formulation as a

@@ -87,6 +87,17 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
         s->req_left--;
         s->req_profit -= s->p[j];
     }
+    if (s->dec_c) {
+        /* the probed V_i bounds this decision selects (decomp.c) */
+        size_t m = s->m;
+        memcpy(s->dec_saved_c + d * m, s->dec_c, m * sizeof *s->dec_c);
+        for (size_t i = 0; i < m; i++) {
+            double v = (long)i == c ? s->dec_vin[j * m + i]
+                                    : s->dec_vout[j * m + i];
+            if (v < s->dec_c[i])
+                s->dec_c[i] = v;
+        }
+    }
     if (c < 0) {
         if (s->dec_lam)
             s->rej_lam += s->dec_lam[j];
@@ -123,6 +134,8 @@ static void undo(surety_solver *s, size_t d)
         s->nin[f->res]--;
         s->ltot[f->res] = f->ltot;
     }
+    if (s->dec_c)
+        memcpy(s->dec_c, s->dec_saved_c + d * s->m, s->m * sizeof *s->dec_c);
     s->state[f->job] = SURETY_JOB_FREE;
     s->fixed_profit = f->fixed_profit;
     s->rej_lam = f->rej_lam;
@@ -271,17 +284,24 @@ static void root_lp(surety_solver *s)
     surety_solve_log_progress(s, 1, 'R');
 }
 
-/* A price round of the resource-decomposition bound (decomp.c), once the
- * search has run dec_after nodes without closing, and then whenever the
- * tree has searched as many nodes since as the one-resource solves have
- * used in all; at most 60 rounds. The share is counted in nodes, and a
- * one-resource node costs more than a tree node on small N, so the rounds
+/* A step of the resource-decomposition bound (decomp.c): a price round,
+ * or once the rounds are over, the probes of one job. The first comes
+ * once the search has run dec_after nodes without closing, and the next
+ * whenever the tree has searched as many nodes since as the one-resource
+ * solves have used in all; after the probes, pairs are ruled out again
+ * whenever the incumbent has improved. The share is counted in nodes, and a
+ * one-resource node costs more than a tree node on small N, so the steps
  * can take more than half of the time there (bench/README.md). The
  * one-resource solves stop at the time limit, not at the node limit, and
  * their nodes are not in the reported count. Each improvement caps every
  * bound from then on. */
 static void decomp_round(surety_solver *s)
 {
+    if (s->dec_done && s->dec_vin && s->have_inc && s->inc > s->dec_rule_inc) {
+        /* a better incumbent: the probes may rule more pairs out */
+        surety_decomp_rule(s);
+        s->dec_rule_inc = s->inc;
+    }
     if (s->dec_done || s->dec_after <= 0 || s->nodes < s->dec_after ||
         s->dec_nodes > s->nodes - s->dec_after)
         return;
@@ -289,7 +309,7 @@ static void decomp_round(surety_solver *s)
     double before = s->dec_root;
     int r = surety_decomp_round(s, tl > 0 ? s->t0 + tl : INFINITY);
     s->dec_secs += surety_solve_now() - now;
-    if (r != 0 || s->dec_iters >= 60) {
+    if (r != 0) {
         s->dec_done = 1;
         surety_decomp_free(s);
     }
@@ -306,10 +326,22 @@ static void decomp_round(surety_solver *s)
  * V_i (its jobs were open at the root and fit it in all but k scenarios),
  * y_j <= 1 with lam_j >= 0 for an optional job, y_j = 1 for a required
  * one, and y_j = 0 for a rejected job, whose lam_j >= 0 then drops out.
- * Rounds change the prices only at the root, where nothing is rejected. */
+ * Once pairs are probed, resource i's part is at most the smallest probed
+ * bound among the node's decisions (each is V_i of a problem that keeps
+ * only job sets with that one decision, a superset of the node's), so
+ * the sum of prices plus the dec_c caps bounds the node as well.
+ * Rounds change the prices only at the root, where nothing is rejected,
+ * and probing starts only after the last round. */
 static double dec_cap(const surety_solver *s, double b)
 {
     double c = s->dec_root - s->rej_lam;
+    if (s->dec_c) {
+        double e = s->dec_lsum - s->rej_lam;
+        for (size_t i = 0; i < s->m; i++)
+            e += s->dec_c[i];
+        if (e < c)
+            c = e;
+    }
     return b < c ? b : c;
 }
 
@@ -410,7 +442,7 @@ static void dive(surety_solver *s, size_t d, double node_bound)
             t = u; /* out of memory: go on depth first */
         }
         s->open_bound[d] = t + 1 < nc ? node_bound : -INFINITY;
-        if (apply(s, d, j, ch[t].c)) {
+        if (apply(s, d, j, ch[t].c) && dec_cap(s, INFINITY) > cut) {
             double b = dec_cap(s, surety_bound_node(s, cut, d + 1));
             if (b > node_bound)
                 b = node_bound; /* the parent's bound covers the child */
@@ -466,7 +498,7 @@ double surety_tree_search(surety_solver *s)
         for (; d < e.depth && ok; d++)
             ok = apply(s, d, s->order[d], e.dec[d]);
         /* d decisions applied (the last one may have failed) */
-        if (ok) {
+        if (ok && dec_cap(s, INFINITY) > cut) {
             s->restart_row = d;
             s->open_bound[d] = e.bound; /* reported while it is evaluated */
             s->depth = d;
