@@ -155,7 +155,8 @@ static double sub_solve(const surety_solver *s, dec_sub *d,
     }
     o.start = start;
     surety_result *r = NULL;
-    if (surety_solve(&d->model, sc, &o, &r, NULL) != SURETY_OK)
+    if (surety_solve_inner(&d->model, sc, &o, start != NULL, &r, NULL) !=
+        SURETY_OK)
         return INFINITY;
     double b = surety_result_status(r) == SURETY_INFEASIBLE
                    ? -INFINITY

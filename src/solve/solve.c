@@ -339,6 +339,14 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
                          const surety_solve_options *opt, surety_result **out,
                          surety_error *err)
 {
+    return surety_solve_inner(model, sc, opt, 0, out, err);
+}
+
+surety_code surety_solve_inner(const surety_model *model,
+                               const surety_scenarios *sc,
+                               const surety_solve_options *opt, int light,
+                               surety_result **out, surety_error *err)
+{
     if (out)
         *out = NULL;
     if (!model || !sc || !out) {
@@ -427,7 +435,7 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
             surety_solve_offer(&s, opt->start->resource))
             logf_(&s, SURETY_LOG_INFO, "starting plan accepted: %.6f", s.inc);
         memcpy(s.tfix, s.state, s.n * sizeof *s.tfix);
-        if (surety_heur_complete(&s, s.tfix, s.tplan, 1))
+        if (surety_heur_complete(&s, s.tfix, s.tplan, !light))
             surety_solve_offer(&s, s.tplan);
         {
             /* improvement runs in the tree: about 15% of the work of the

@@ -282,6 +282,15 @@ int surety_solve_offer(surety_solver *s, const long *plan);
 double surety_solve_now(void);
 void surety_solve_log_progress(surety_solver *s, int force, char mark);
 
+/* solve.c: surety_solve, with `light` non-zero for a solve inside
+ * another (decomp.c), whose caller passes a good start: the root's
+ * greedy runs without its local search, which would otherwise take most
+ * of the work of a short one-resource solve. */
+surety_code surety_solve_inner(const surety_model *model,
+                               const surety_scenarios *sc,
+                               const surety_solve_options *opt, int light,
+                               surety_result **out, surety_error *err);
+
 /* decomp.c: one price round of the resource-decomposition bound, at the
  * root state (between dives); the first call sets it up. Sub-solves stop
  * at `deadline` (monotonic seconds; INFINITY: none). A round that
