@@ -101,8 +101,11 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
         d->jobs[t].profit = full->jobs[j].profit;
         d->jobs[t].allowed = &d->one;
         d->jobs[t].required = 0; /* "exactly once" is priced, not kept */
-        d->start.resource[t] = -1;
+        /* the incumbent's jobs in i fit i in all but k scenarios: the
+         * first round starts from them */
+        d->start.resource[t] = s->have_inc && s->inc_plan[j] == (long)i ? 0 : -1;
     }
+    d->have_start = s->have_inc;
     d->model.name = full->name;
     d->model.path = full->path;
     d->model.risk = full->risk;
