@@ -350,7 +350,7 @@ typedef struct surety_solve_options {
      * the job forced in, or kept out when its best plan holds it, which
      * caps every node that takes that decision. */
     long decomp_after;
-    /* most price rounds before the probes; 0: the default (60) */
+    /* most price rounds before the probes; 0 or less: the default (60) */
     int decomp_rounds;
     /* non-zero: keep the scenarios that every feasible plan fits (dominated
      * by k+1 others, or fitting every plan) in the search instead of

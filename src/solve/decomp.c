@@ -34,7 +34,9 @@
  * Techniques for Combinatorial Problems; cited from memory). For each pair
  * (j, i), V_i is solved again with j kept out of i when the best round's
  * plan of i holds it, or forced in when it does not (the other direction
- * leaves V_i as it was). A node whose decision on j matches the probe
+ * leaves V_i as it was when the best round's solve finished, and its
+ * entry keeps V_i, still a bound, when it did not). A node whose decision
+ * on j matches the probe
  * (j placed in i for a forced-in probe; placed elsewhere or rejected for
  * a kept-out one) has resource i's part at most that probe's value (its
  * job sets are among the probe's); tree.c keeps, along the path, the smallest such value
@@ -327,8 +329,15 @@ static int probe_init(surety_solver *s)
     s->dec_vout = surety_xmalloc(n * m, sizeof *s->dec_vout);
     s->dec_c = surety_xmalloc(m, sizeof *s->dec_c);
     s->dec_saved_c = surety_xmalloc((s->nb + 1) * m, sizeof *s->dec_saved_c);
-    if (!s->dec_vin || !s->dec_vout || !s->dec_c || !s->dec_saved_c)
+    if (!s->dec_vin || !s->dec_vout || !s->dec_c || !s->dec_saved_c) {
+        /* none of them, or tree.c and surety_decomp_rule would read them */
+        surety_xfree(s->dec_vin);
+        surety_xfree(s->dec_vout);
+        surety_xfree(s->dec_c);
+        surety_xfree(s->dec_saved_c);
+        s->dec_vin = s->dec_vout = s->dec_c = s->dec_saved_c = NULL;
         return -1;
+    }
     for (size_t j = 0; j < n; j++)
         for (size_t i = 0; i < m; i++)
             s->dec_vin[j * m + i] = s->dec_vout[j * m + i] = s->dec_v[i];

@@ -215,7 +215,7 @@ struct surety_solver {
     /* ---- resource-decomposition bound (decomp.c) ---- */
     solve_dec *dec;      /* NULL until the first round */
     long dec_after;      /* tree nodes before the first round; < 0 never */
-    int dec_done;        /* no more rounds */
+    int dec_done;        /* no more rounds or probes */
     double dec_root;     /* the best round's value, or INFINITY */
     long dec_iters, dec_nodes; /* price rounds, nodes of the sub-solves */
     double dec_secs;     /* their time */
@@ -291,12 +291,16 @@ surety_code surety_solve_inner(const surety_model *model,
                                const surety_solve_options *opt, int light,
                                surety_result **out, surety_error *err);
 
-/* decomp.c: one price round of the resource-decomposition bound, at the
- * root state (between dives); the first call sets it up. Sub-solves stop
- * at `deadline` (monotonic seconds; INFINITY: none). A round that
+/* decomp.c: one step of the resource-decomposition bound, at the root
+ * state (between dives): a price round, or once the rounds are over, the
+ * probes of the next job in the branching order (the first call sets it
+ * up; the call that ends the rounds sets up the probe tables). Sub-solves
+ * stop at `deadline` (monotonic seconds; INFINITY: none). A round that
  * improves lowers s->dec_root, a bound on every plan that beats the
- * cutoff. Returns 0 when more rounds may help, 1 when they will not (m <
- * 2, converged, gap closed, or a limit came first), -1 out of memory. */
+ * cutoff. Returns 0 when more steps may help (including the call after
+ * the last round: the probes come next), 1 when none will (m < 2, probes
+ * done, gap closed, or a limit came first), -1 out of memory (then no
+ * probe table is left allocated). */
 int surety_decomp_round(surety_solver *s, double deadline);
 /* Rules out of the root's row of pxs the pairs whose probed cap alone
  * (once the probes have run) leaves no plan above the cutoff; for when the
