@@ -36,12 +36,12 @@
  * plan of i holds it, or forced in when it does not (the other direction
  * leaves V_i as it was when the best round's solve finished, and its
  * entry keeps V_i, still a bound, when it did not). A node whose decision
- * on j matches the probe
- * (j placed in i for a forced-in probe; placed elsewhere or rejected for
- * a kept-out one) has resource i's part at most that probe's value (its
- * job sets are among the probe's); tree.c keeps, along the path, the smallest such value
- * per resource, so a node's cap is the sum of prices plus those caps. A
- * pair whose cap alone cannot beat the incumbent leaves the root's row.
+ * on j matches the probe (j placed in i for a forced-in probe; placed
+ * elsewhere or rejected for a kept-out one) has resource i's part at most
+ * that probe's value (its job sets are among the probe's); tree.c keeps,
+ * along the path, the smallest such value per resource, so a node's cap
+ * is the sum of prices plus those values. A pair whose cap alone cannot
+ * beat the incumbent leaves the root's row.
  * SPDX-License-Identifier: MIT */
 #include <math.h>
 #include <string.h>
@@ -105,7 +105,8 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
         d->jobs[t].required = 0; /* "exactly once" is priced, not kept */
         /* the incumbent's jobs in i fit i in all but k scenarios: the
          * first round starts from them */
-        d->start.resource[t] = s->have_inc && s->inc_plan[j] == (long)i ? 0 : -1;
+        d->start.resource[t] =
+            s->have_inc && s->inc_plan[j] == (long)i ? 0 : -1;
     }
     d->have_start = s->have_inc;
     d->model.name = full->name;
@@ -250,8 +251,9 @@ static int dec_init(surety_solver *s)
 }
 
 /* One subgradient round. Returns 0 when more rounds may help, 1 when they
- * will not (converged, or the most rounds: 60 by default), 2 when the work should stop (a
- * limit stopped a sub-solve, or the bound no longer beats the cutoff). */
+ * will not (converged, or the most rounds: 60 by default), 2 when the work
+ * should stop (a limit stopped a sub-solve, or the bound no longer beats
+ * the cutoff). */
 static int price_round(surety_solver *s, double deadline)
 {
     size_t n = s->n, m = s->m;
@@ -385,8 +387,8 @@ static void rule_pairs(surety_solver *s, size_t upto)
 /* Probes the pairs of the next job in the branching order: on each
  * resource whose best-round plan holds it, V_i with the job kept out;
  * on the others, V_i with the job forced in; then the pairs of the jobs
- * probed so far are ruled out where they can. Returns 0 while jobs are left, 1 when done, 2 when a limit stopped a
- * sub-solve. */
+ * probed so far are ruled out where they can. Returns 0 while jobs are
+ * left, 1 when done, 2 when a limit stopped a sub-solve. */
 static int probe_next(surety_solver *s, double deadline)
 {
     size_t m = s->m;
