@@ -516,8 +516,7 @@ static void chk_pairs(const surety_solver *s, size_t row)
                 size_t j = s->order[t];
                 if (s->state[j] == SURETY_JOB_FREE)
                     continue;
-                double v = s->state[j] == (long)i ? s->dec_vin[j * m + i]
-                                                  : s->dec_vout[j * m + i];
+                double v = surety_dec_probed(s, j, i, s->state[j]);
                 if (v < c)
                     c = v;
             }

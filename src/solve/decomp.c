@@ -356,8 +356,7 @@ static double single_cap(const surety_solver *s, size_t j, long c)
     size_t m = s->m;
     double v = s->dec_lsum - (c < 0 ? s->dec_lam[j] : 0);
     for (size_t i = 0; i < m; i++) {
-        double w = (long)i == c ? s->dec_vin[j * m + i]
-                                : s->dec_vout[j * m + i];
+        double w = surety_dec_probed(s, j, i, c);
         v += w < s->dec_v[i] ? w : s->dec_v[i];
     }
     return v;

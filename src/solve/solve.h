@@ -291,6 +291,16 @@ surety_code surety_solve_inner(const surety_model *model,
                                const surety_solve_options *opt, int light,
                                surety_result **out, surety_error *err);
 
+/* The probed bound on resource i's part (decomp.c) that deciding job j
+ * selects: c == i places j in i (forced-in table), anything else keeps it
+ * out of i (kept-out table). Only once the tables exist (s->dec_vin). */
+static inline double surety_dec_probed(const surety_solver *s, size_t j,
+                                       size_t i, long c)
+{
+    size_t e = j * s->m + i;
+    return (long)i == c ? s->dec_vin[e] : s->dec_vout[e];
+}
+
 /* decomp.c: one step of the resource-decomposition bound, at the root
  * state (between dives): a price round, or once the rounds are over, the
  * probes of the next job in the branching order (the first call sets it

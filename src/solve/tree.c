@@ -92,8 +92,7 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
         size_t m = s->m;
         memcpy(s->dec_saved_c + d * m, s->dec_c, m * sizeof *s->dec_c);
         for (size_t i = 0; i < m; i++) {
-            double v = (long)i == c ? s->dec_vin[j * m + i]
-                                    : s->dec_vout[j * m + i];
+            double v = surety_dec_probed(s, j, i, c);
             if (v < s->dec_c[i])
                 s->dec_c[i] = v;
         }
@@ -442,8 +441,11 @@ static void dive(surety_solver *s, size_t d, double node_bound)
             t = u; /* out of memory: go on depth first */
         }
         s->open_bound[d] = t + 1 < nc ? node_bound : -INFINITY;
-        if (apply(s, d, j, ch[t].c) && dec_cap(s, INFINITY) > cut) {
-            double b = dec_cap(s, surety_bound_node(s, cut, d + 1));
+        double cap;
+        if (apply(s, d, j, ch[t].c) && (cap = dec_cap(s, INFINITY)) > cut) {
+            double b = surety_bound_node(s, cut, d + 1);
+            if (b > cap)
+                b = cap;
             if (b > node_bound)
                 b = node_bound; /* the parent's bound covers the child */
             if (b > cut) {
@@ -498,11 +500,14 @@ double surety_tree_search(surety_solver *s)
         for (; d < e.depth && ok; d++)
             ok = apply(s, d, s->order[d], e.dec[d]);
         /* d decisions applied (the last one may have failed) */
-        if (ok && dec_cap(s, INFINITY) > cut) {
+        double cap = ok ? dec_cap(s, INFINITY) : -INFINITY;
+        if (cap > cut) {
             s->restart_row = d;
             s->open_bound[d] = e.bound; /* reported while it is evaluated */
             s->depth = d;
-            double nb = dec_cap(s, surety_bound_node(s, cut, d));
+            double nb = surety_bound_node(s, cut, d);
+            if (nb > cap)
+                nb = cap;
             if (nb > e.bound)
                 nb = e.bound;
             if (nb > cut && s->lp_on)
