@@ -715,7 +715,7 @@ Test(solve, decomposition_probes_keep_the_enumerated_optimum)
     for (uint64_t t = 0; t < 120; t++) {
         /* two mixes: high risk with ample room (more probe caps bite),
          * and lower risk with tighter room (more pairs ruled out) */
-        int hi = t < 60;
+        int hi = t % 2 == 0;
         solve_gen_params p = {.n = 9 + t % 2, .m = 2,
                               .N = (hi ? 30 : 40) + (hi ? 10 : 20) * (t % 4),
                               .eps = hi ? (t % 3 ? 0.3 : 0.5)
