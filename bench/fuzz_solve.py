@@ -15,7 +15,7 @@ in KINDS below) the script:
   1. runs `surety solve --json -o plan.json` (single-threaded, no limit);
   2. writes the model's scenarios with `surety sample` and recounts the plan itself, in
      Python, with the project's capacity test (factor * sum of base hours in ascending job
-     order <= capacity; src/plan.h), and checks eligibility and required jobs;
+     order <= capacity * (1 + 1e-12); src/plan.h), and checks eligibility and required jobs;
   3. runs `surety check --json` on the plan: in sample it must fit at least N - k;
   4. solves the plain big-M export (`surety export --plain`) with CBC, single-threaded
      (the reference the project's own tests use; the strengthened file is avoided because
@@ -59,6 +59,7 @@ REL_TOL = 1e-6          # agreement between solvers' objectives, relative
 SELF_TOL = 1e-9         # surety's objective against the recomputed mean profit of its plan
 ENUM_MAX_PLANS = 60000  # exhaustive enumeration up to this many raw plans ((m+1)^n)
 CBC_LIMIT_S = 30        # a CBC run past this is "no reference" rather than a verdict
+CAPACITY_SLACK = 1e-12  # relative slack of the project's capacity test (src/plan.h)
 KINDS = ("mixed", "tight", "loose", "discrete", "table", "infeasible", "empty", "linked")
 EPS_CHOICES = (0.0, 0.01, 0.05, 0.1, 0.2, 0.5)
 # The model file refuses risk 0 (it must lie strictly between 0 and 1), so "eps = 0" is
@@ -344,7 +345,8 @@ def read_scenarios(inst, surety, path):
 def recount(inst, plan):
     """(feasible, objective, fails, detail) of a plan given as a list res-index or -1 per job,
     by the project's own capacity test written out here: factor_i * (sum of the base hours
-    of the jobs in i, added in ascending job order) <= capacity_i (src/plan.h). detail names
+    of the jobs in i, added in ascending job order) <= capacity_i * (1 + 1e-12) (src/plan.h,
+    a slack for decimal values stored in binary). detail names
     the first structural violation (eligibility, required job) or is ''."""
     for j in range(inst.n):
         r = plan[j]
@@ -359,7 +361,7 @@ def recount(inst, plan):
         for j in range(inst.n):
             if plan[j] == i:
                 s = s + inst.H[:, j]
-        over[i] = ~(inst.factor[i] * s <= inst.cap[i])
+        over[i] = ~(inst.factor[i] * s <= inst.cap[i] * (1 + CAPACITY_SLACK))
     if inst.joint:
         fails = int(over.any(axis=0).sum())
         feasible = fails <= inst.k
@@ -403,7 +405,7 @@ def enumerate_optimum(inst):
             s = np.zeros((blk.shape[0], inst.N))
             for j in range(inst.n):
                 s = s + (blk[:, j] == i)[:, None] * inst.H[None, :, j]
-            over[:, i, :] = ~(inst.factor[i] * s <= inst.cap[i])
+            over[:, i, :] = ~(inst.factor[i] * s <= inst.cap[i] * (1 + CAPACITY_SLACK))
         if inst.joint:
             ok = over.any(axis=1).sum(axis=1) <= inst.k
         else:

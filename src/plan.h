@@ -12,14 +12,28 @@ struct surety_plan {
     long *resource; /* n entries, -1 or 0..m-1 */
 };
 
+/* Relative slack of the capacity test. Capacities, hours and factors are
+ * written in decimal and stored in binary, so a load that equals its
+ * capacity in decimal can come out a few units in the last place above it
+ * (1.35 x 11 = 14.850000000000001 > 14.85). A sum of n terms rounds by at
+ * most about n x 1.1e-16 relative, so 1e-12 absorbs that for any plan of
+ * up to several thousand jobs, and it is 3.6 nanoseconds in a 1000-hour
+ * capacity: no load that overloads a resource by anything measurable is
+ * counted as fitting. The search's own load margins (1e-9 relative,
+ * SURETY_SOLVE_LOAD_TOL) are wider, so its bounds still admit every plan
+ * this test admits. The MPS export writes the capacity as given; general
+ * solvers accept far larger violations (about 1e-6) anyway. */
+#define SURETY_CAPACITY_SLACK 1e-12
+
 /* The one capacity test of the project: resource i holds in a scenario iff
  * hours_factor_i * (sum of the base hours of its jobs, added in ascending
- * job order) <= capacity_i. Written as a product on the left, never as
- * sum <= capacity_i / factor_i, which rounds differently; every counter
- * (plan.c, check.c, the solver's recount, the MPS rows) uses this form. */
+ * job order) <= capacity_i * (1 + SURETY_CAPACITY_SLACK). Written as a
+ * product on the left, never as sum <= capacity_i / factor_i, which rounds
+ * differently; every counter (plan.c, check.c, the solver's recount, the
+ * chart) uses this function. */
 static inline int surety_plan_holds(double factor, double sum, double capacity)
 {
-    return factor * sum <= capacity;
+    return factor * sum <= capacity * (1 + SURETY_CAPACITY_SLACK);
 }
 
 #endif

@@ -483,7 +483,7 @@ static size_t recount(const surety_model *model, const surety_plan *plan,
                 if (surety_plan_get(plan, j) == (long)i)
                     s += sc->hours[l * n + j];
             if (model->resources[i].hours_factor * s <=
-                model->resources[i].capacity)
+                model->resources[i].capacity * (1 + 1e-12))
                 per[i]++;
             else
                 all = 0;

@@ -42,7 +42,8 @@ static double plan_value(const surety_scenarios *sc, const long *plan)
 
 /* Whether the plan satisfies the sampled chance constraint, counted
  * scenario by scenario with the capacity test of DESIGN.md: resource i
- * holds iff hours_factor_i * (sum of its jobs' base hours) <= capacity_i. */
+ * holds iff hours_factor_i * (sum of its jobs' base hours) <= capacity_i,
+ * with the relative slack of 1e-12 that src/plan.h allows for rounding. */
 static int plan_ok(const surety_model *md, const surety_scenarios *sc,
                    const long *plan)
 {
@@ -63,7 +64,7 @@ static int plan_ok(const surety_model *md, const surety_scenarios *sc,
                 if (plan[j] == (long)i)
                     sum += sc->hours[l * n + j];
             if (!(md->resources[i].hours_factor * sum <=
-                  md->resources[i].capacity)) {
+                  md->resources[i].capacity * (1 + 1e-12))) {
                 fail = 1;
                 res_fail[i]++;
             }
@@ -236,6 +237,43 @@ Test(solve, toy_instance_of_methods)
         surety_model_destroy(md);
     }
     solve_gen_scenarios_free(sc);
+}
+
+/* A load equal to its capacity in decimal fits (src/plan.h): in binary
+ * 1.35 x 11 = 14.850000000000001 > 14.85, which the test's relative slack
+ * of 1e-12 absorbs. The case is the minimised fuzzer model of
+ * bench/results/fuzz-s21 (rows (3, 6) and (6, 5), k = 0); optima by hand:
+ * both jobs fit in both scenarios, so 5 + 4 = 9; with the capacity 1e-9
+ * relative lower, the scenario of 11 hours overloads and the better job
+ * alone, 5, is optimal. */
+Test(solve, a_load_equal_to_its_capacity_in_decimal_fits)
+{
+    volatile double factor = 1.35, eleven = 11, cap = 14.85;
+    cr_assert(factor * eleven > cap, "the premise: the product rounds up");
+    static const double profit[2] = {5, 4};
+    static const double w[2][2] = {{3, 6}, {6, 5}};
+    static const size_t row[2] = {0, 1};
+    static const char *const rid[1] = {"R0"};
+    static const double expect[2] = {9, 5};
+    for (int low = 0; low < 2; low++) {
+        double c = low ? 14.85 * (1 - 1e-9) : 14.85;
+        surety_model *md = fixed_model("decimal", 0.01, 2, 2, profit, 1,
+                                       rid, &c);
+        md->resources[0].hours_factor = 1.35;
+        surety_scenarios *sc = table_scenarios(2, 2, &w[0][0], row, profit);
+        surety_result *res = solve_ok(md, sc, NULL);
+        cr_assert_eq(surety_result_status(res), SURETY_OPTIMAL);
+        cr_assert_float_eq(surety_result_objective(res), expect[low], 1e-12,
+                           "capacity %.17g: %g", c,
+                           surety_result_objective(res));
+        check_result(md, sc, res);
+        double bf;
+        cr_assert(brute_force(md, sc, &bf));
+        cr_assert_float_eq(bf, expect[low], 1e-12);
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
 }
 
 /* ---- random tiny instances against exhaustive enumeration ---- */
@@ -731,16 +769,16 @@ Test(solve, decomposition_probes_keep_the_enumerated_optimum)
         surety_model *md = solve_gen_model(&p);
         surety_scenarios *sc = solve_gen_scenarios(md, &p);
         if (t % 6 == 5) {
-            /* one job over a capacity by a relative 1e-12 in every
-             * scenario: within the search's load margin, so presolve keeps
-             * the pair, but the exact count rejects it, and a probe that
+            /* one job over a capacity by a relative 1e-10 in every
+             * scenario: within the search's load margin (1e-9), so
+             * presolve keeps the pair, but the count (slack 1e-12) rejects it, and a probe that
              * forces the job in finds no plan (a cap of -infinity) */
             size_t jj = t % p.n, ii = (t / 6) % p.m;
             md->jobs[jj].allowed[ii] = 1;
             const surety_resource *rs = &md->resources[ii];
             for (size_t l = 0; l < sc->N; l++)
                 sc->hours[l * p.n + jj] =
-                    rs->capacity / rs->hours_factor * (1 + 1e-12);
+                    rs->capacity / rs->hours_factor * (1 + 1e-10);
         }
         double bf = 0;
         int feas = brute_force(md, sc, &bf);
