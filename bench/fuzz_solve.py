@@ -58,6 +58,7 @@ ROOT = os.path.dirname(HERE)
 REL_TOL = 1e-6          # agreement between solvers' objectives, relative
 SELF_TOL = 1e-9         # surety's objective against the recomputed mean profit of its plan
 ENUM_MAX_PLANS = 60000  # exhaustive enumeration up to this many raw plans ((m+1)^n)
+ENUM_RECHECK_PLANS = 2000000  # on a disagreement, enumeration settles it up to this many
 CBC_LIMIT_S = 30        # a CBC run past this is "no reference" rather than a verdict
 CAPACITY_SLACK = 1e-12  # relative slack of the project's capacity test (src/plan.h)
 KINDS = ("mixed", "tight", "loose", "discrete", "table", "infeasible", "empty", "linked")
@@ -706,13 +707,24 @@ def run_one(model, table, features, surety, work, limit, stats, rng, do_limits):
     return inst, res, ref, problems, vst, nlim
 
 
+def raw_plan_count(inst):
+    count = 1
+    for j in range(inst.n):
+        count *= len(inst.allowed[j]) + 1
+    return count
+
+
 def recheck(inst, limit):
     """Further references on a disagreement: GLPK and HiGHS on the same export, HiGHS on the
-    formulation written here."""
+    formulation written here, and exhaustive enumeration when the model has at most
+    ENUM_RECHECK_PLANS raw plans (exact, and then the only verdict that counts: the MIP
+    references have been seen to disagree with each other and with it, seed 51 model 836)."""
     out = {}
     out["glpk"] = glpk_plain(inst, limit)
     out["highs-export"] = highs_plain(inst, limit)
     out["highs-own"] = own_milp(inst, limit)
+    if raw_plan_count(inst) <= ENUM_RECHECK_PLANS:
+        out["enum"] = enumerate_optimum(inst)
     return out
 
 
@@ -721,6 +733,8 @@ def reference_fault(inst, res, ref, more, surety, work, stats, a, idx):
     written here) all finished, agree with each other, and surety passes every check against
     them, including the limited runs when this instance had them: then the first reference
     was wrong, not surety. CBC 2.10.8 has been seen to return a wrong "optimal"."""
+    if "enum" in more:
+        more = {"enum": more["enum"]}
     if any(st not in ("optimal", "infeasible") for st, _ in more.values()):
         return False
     v = verdict_of(more)
@@ -914,13 +928,16 @@ def main(argv):
             more = recheck(inst, a.cbc_limit)
             print("    recheck: %s" % more)
             if reference_fault(inst, res, ref, more, surety, work, stats, a, idx):
-                # the three further references agree with each other and with surety, and
-                # every check passes against them: the first reference was wrong
-                print("    REFERENCE FAULT: glpk, highs-export and highs-own agree with each "
-                      "other and with surety, and every check passes against them; the first "
-                      "reference (%s) is wrong here, not counted as a surety disagreement" %
-                      " ".join("%s=%s" % (s, v[1] if v[0] == "optimal" else v[0])
-                               for s, v in ref["sources"].items()))
+                # exhaustive enumeration, or else the three further references agreeing
+                # with each other, agree with surety, and every check passes against them:
+                # the first reference was wrong
+                print("    REFERENCE FAULT: %s with surety, and every check passes against "
+                      "them; the first reference (%s) is wrong here, not counted as a surety "
+                      "disagreement" % (
+                          "exhaustive enumeration agrees" if "enum" in more else
+                          "glpk, highs-export and highs-own agree with each other and",
+                          " ".join("%s=%s" % (s, v[1] if v[0] == "optimal" else v[0])
+                                   for s, v in ref["sources"].items())))
                 ref_faults.append(idx)
                 if not a.keep:
                     shutil.rmtree(work, ignore_errors=True)
@@ -955,8 +972,8 @@ def main(argv):
     print("\n%d instances in %.0f s (seed %d, first %d); %d errors; %d disagreeing" % (
         done, wall, a.seed, a.first, stats["errors"], len(bad)))
     if ref_faults:
-        print("reference faults (the first reference contradicted by three others that agree "
-              "with surety): %d, instances %s" % (len(ref_faults),
+        print("reference faults (the first reference contradicted by exhaustive enumeration, "
+              "or by three others, agreeing with surety): %d, instances %s" % (len(ref_faults),
                                                    " ".join(str(i) for i in ref_faults)))
     print("surety statuses: %s" % ", ".join("%s %d" % (k[7:], v) for k, v in sorted(stats.items())
                                              if k.startswith("status_")))
