@@ -352,10 +352,22 @@ typedef struct surety_solve_options {
     long decomp_after;
     /* most price rounds before the probes; 0 or less: the default (60) */
     int decomp_rounds;
+    /* non-zero: the decomposition prices only the rows "each job once".
+     * By default, with the joint constraint, it also prices each
+     * resource's failures scenario by scenario and adds the k largest
+     * summed scenario prices to its bound, which lines the resources'
+     * failures up (bench/README.md, "Findings"); for comparisons */
+    int decomp_jobs_only;
     /* non-zero: keep the scenarios that every feasible plan fits (dominated
      * by k+1 others, or fitting every plan) in the search instead of
      * setting them aside; for comparisons, default 0 */
     int keep_dominated;
+    /* optional failure cost of each scenario (sc->N entries, finite and
+     * >= 0; joint constraint only): the objective becomes the mean profit
+     * minus the cost of every scenario the plan overloads. For an
+     * embedding solver that prices scenario failures (a Lagrangian
+     * decomposition); NULL: none, the default */
+    const double *scenario_cost;
 } surety_solve_options;
 
 void surety_solve_options_init(surety_solve_options *opt);

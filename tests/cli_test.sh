@@ -73,6 +73,12 @@ expect 4 "decomposition after 1 node" -- "$surety" solve "$src/instances/worksho
 has "$tmp/err" "decomposition bound:" "decomposition bound reported on the progress stream"
 expect 0 "decomposition never" -- "$surety" solve "$tut" --split-after never --quiet
 expect 1 "bad --split-after" -- "$surety" solve "$tut" --split-after -3
+# the split's prices: scenarios (default) or jobs only; the same optimum
+expect 0 "split with scenario prices" -- "$surety" solve "$tut" --split-after 1 --json --quiet
+grep '"objective"' "$tmp/out" >"$tmp/obj0"
+expect 0 "split with job prices only" -- "$surety" solve "$tut" --split-after 1 --split-prices jobs --json --quiet
+has "$tmp/out" "$(cat "$tmp/obj0")" "same objective with job prices only"
+expect 1 "bad --split-prices" -- "$surety" solve "$tut" --split-prices none
 expect 0 "gap tolerance" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --gap 0.3 --quiet
 has "$tmp/out" "optimal within the --gap asked for" "a tolerated gap is spelled out next to the status"
 expect 0 "two threads asked for" -- "$surety" solve "$tut" --threads 2 --quiet

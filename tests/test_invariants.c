@@ -26,10 +26,16 @@
 #include "solve_gen.h"
 #include "surety.h"
 
-static void run(const solve_gen_params *p, long dives, int lp, int split,
-                long limit)
+static void run_prices(const solve_gen_params *p, long dives, int lp,
+                       int split, long limit, int rounds, int prices,
+                       int single)
 {
     surety_model *md = solve_gen_model(p);
+    if (single)
+        /* each job in one resource */
+        for (size_t j = 0; j < md->n; j++)
+            for (size_t i = 0; i < md->m; i++)
+                md->jobs[j].allowed[i] = i == j % md->m;
     surety_scenarios *sc = solve_gen_scenarios(md, p);
     surety_solve_options o;
     surety_solve_options_init(&o);
@@ -43,7 +49,8 @@ static void run(const solve_gen_params *p, long dives, int lp, int split,
      * two of them the probes (decomp.c): they must leave the search state
      * as they found it, and the probed caps must follow the path */
     o.decomp_after = split ? 1 : -1;
-    o.decomp_rounds = 2;
+    o.decomp_rounds = rounds;
+    o.decomp_jobs_only = !prices;
     surety_result *res = NULL;
     surety_error err = {0};
     cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_OK, "%s",
@@ -64,6 +71,12 @@ static void run(const solve_gen_params *p, long dives, int lp, int split,
     solve_gen_scenarios_free(sc);
 }
 
+static void run(const solve_gen_params *p, long dives, int lp, int split,
+                long limit)
+{
+    run_prices(p, dives, lp, split, limit, 2, 1, 0);
+}
+
 /* Scenario counts large enough that a child recomputes only part of its
  * scenarios (the list its parent leaves holds about 2(b+1)+16 of them),
  * with dives of 1 and 5 nodes (nearly every node goes through the pool and
@@ -81,5 +94,22 @@ Test(invariants, hold_at_every_node)
                               .separate = t % 6 == 5, .p_forbid = 0.1 * (t % 2),
                               .seed = 0x5eed0000 + t};
         run(&p, dives[t % 4], t % 3 == 1, t % 3 == 2, 5000);
+    }
+}
+
+/* The decomposition's price rounds, with the scenario prices on most of
+ * them, each round's bound checked against the best plan it covers
+ * (decomp.c, chk_round: the same solver without the decomposition, on the
+ * pairs possible at the root): up to 30 rounds, on models where each job
+ * may enter one resource (the job prices then have nothing to do, and the
+ * scenario prices carry the bound) and on mixed ones. */
+Test(invariants, price_rounds_bound_every_plan_they_cover)
+{
+    for (uint64_t t = 0; t < 8; t++) {
+        solve_gen_params p = {.n = 14 + 2 * (t % 3), .m = 2 + t % 2, .N = 60 + 20 * (t % 3),
+                              .eps = 0.1, .tightness = 0.5,
+                              .dist = t % 2 ? SOLVE_GEN_LOGNORMAL : SOLVE_GEN_NORMAL,
+                              .seed = 0x5eed1003 + t};
+        run_prices(&p, 4, 0, 1, 3000, 30, t % 4 != 3, t % 2 == 0);
     }
 }

@@ -685,6 +685,172 @@ Test(solve, lp_bound_on_larger_trees)
     }
 }
 
+/* ---- scenario costs (surety_solve_options.scenario_cost) ---- */
+
+/* The cost of the scenarios in which the plan overloads some resource,
+ * counted with plan_ok's test. */
+static double plan_fail_cost(const surety_model *md,
+                             const surety_scenarios *sc, const long *plan,
+                             const double *cost)
+{
+    double c = 0;
+    for (size_t l = 0; l < sc->N; l++) {
+        int fail = 0;
+        for (size_t i = 0; i < md->m; i++) {
+            double sum = 0;
+            for (size_t j = 0; j < md->n; j++)
+                if (plan[j] == (long)i)
+                    sum += sc->hours[l * md->n + j];
+            if (!(md->resources[i].hours_factor * sum <=
+                  md->resources[i].capacity * (1 + 1e-12)))
+                fail = 1;
+        }
+        if (fail)
+            c += cost[l];
+    }
+    return c;
+}
+
+/* Exhaustive enumeration with costs: the best mean profit minus the cost
+ * of the failed scenarios over the feasible plans. */
+static int brute_force_cost(const surety_model *md,
+                            const surety_scenarios *sc, const double *cost,
+                            double *best)
+{
+    size_t n = md->n, m = md->m, total = 1;
+    long plan[16];
+    for (size_t j = 0; j < n; j++)
+        total *= m + 1;
+    int found = 0;
+    for (size_t code = 0; code < total; code++) {
+        size_t c = code;
+        for (size_t j = 0; j < n; j++) {
+            plan[j] = (long)(c % (m + 1)) - 1;
+            c /= m + 1;
+        }
+        if (!plan_ok(md, sc, plan))
+            continue;
+        double v = plan_value(sc, plan) - plan_fail_cost(md, sc, plan, cost);
+        if (!found || v > *best)
+            *best = v;
+        found = 1;
+    }
+    return found;
+}
+
+/* Random instances (joint; one to three resources) with random costs on a
+ * random share of the scenarios, against enumeration, under every search
+ * order, with the decomposition from the first node, and under node
+ * limits (then the plan must be feasible and no better than the optimum,
+ * its objective its own value, the bound at least the optimum). Costs
+ * are of the order of a job's profit, so they change the optimum on many
+ * instances; the test requires that on at least 30. */
+Test(solve, scenario_costs_keep_the_enumerated_optimum)
+{
+    int changed = 0;
+    for (uint64_t t = 0; t < 150; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(31000 + t), 8, 3, t % 5 == 0 ? 80 : 30);
+        p.separate = 0;
+        if (p.n == 8 && p.m == 3)
+            p.n = 7;
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        solve_gen_rng r;
+        solve_gen_seed(&r, mix(32000 + t));
+        double scale = 0;
+        for (size_t j = 0; j < md->n; j++)
+            scale += fabs(job_value(sc, j)) / (double)md->n;
+        double share = solve_gen_unif(&r), *cost = surety_xmalloc(sc->N, sizeof *cost);
+        for (size_t l = 0; l < sc->N; l++)
+            cost[l] = solve_gen_unif(&r) < share
+                          ? 2 * scale * solve_gen_unif(&r)
+                          : 0;
+        if (t % 7 == 3 && sc->N > 1)
+            /* a duplicate of scenario 0 with its own cost: merged rows
+             * carry the sum */
+            memcpy(sc->hours + 1 * md->n, sc->hours, md->n * sizeof *sc->hours);
+        double bf = 0, plain = 0;
+        int feas = brute_force_cost(md, sc, cost, &bf);
+        brute_force(md, sc, &plain);
+        changed += feas && fabs(plain - bf) > 1e-9 * (1 + fabs(bf));
+        for (int v = 0; v < 5; v++) {
+            surety_solve_options o;
+            surety_solve_options_init(&o);
+            o.scenario_cost = cost;
+            static const long dives[3] = {0, 1, -1};
+            o.dive_nodes = dives[v % 3];
+            if (v == 3 && md->m >= 2) {
+                o.dive_nodes = 1;
+                o.decomp_after = 1;
+                o.decomp_rounds = 2;
+            }
+            long lim = v == 4 ? 1 + (long)(t % 9) : 0;
+            o.node_limit = lim;
+            surety_result *res = solve_ok(md, sc, &o);
+            surety_status st = surety_result_status(res);
+            const surety_plan *pl = surety_result_plan(res);
+            if (!feas) {
+                cr_assert(st == SURETY_INFEASIBLE || (lim > 0 && !pl),
+                          "instance %lu: no feasible plan, status %d",
+                          (unsigned long)t, (int)st);
+            } else if (lim == 0) {
+                cr_assert_eq(st, SURETY_OPTIMAL, "instance %lu v %d",
+                             (unsigned long)t, v);
+                cr_assert(fabs(surety_result_objective(res) - bf) <=
+                              1e-9 * (1 + fabs(bf)),
+                          "instance %lu v %d: %.12g, enumeration %.12g",
+                          (unsigned long)t, v,
+                          surety_result_objective(res), bf);
+            }
+            if (pl) {
+                cr_assert(plan_ok(md, sc, pl->resource));
+                double own = plan_value(sc, pl->resource) -
+                             plan_fail_cost(md, sc, pl->resource, cost);
+                cr_assert(fabs(own - surety_result_objective(res)) <=
+                              1e-9 * (1 + fabs(own)),
+                          "instance %lu v %d: objective %.12g, plan's own "
+                          "value %.12g", (unsigned long)t, v,
+                          surety_result_objective(res), own);
+                cr_assert(own <= bf + 1e-9 * (1 + fabs(bf)));
+            }
+            if (feas)
+                cr_assert(surety_result_bound(res) >=
+                              bf - 1e-9 * (1 + fabs(bf)),
+                          "instance %lu v %d: bound %.12g below the "
+                          "optimum %.12g", (unsigned long)t, v,
+                          surety_result_bound(res), bf);
+            surety_result_free(res);
+        }
+        surety_xfree(cost);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_assert(changed >= 30, "costs changed the optimum of only %d", changed);
+}
+
+Test(solve, scenario_costs_are_checked)
+{
+    surety_scenarios *sc = toy_scenarios();
+    surety_model *md = toy_model(0.2);
+    double cost[6] = {0, 1, 2, NAN, 0, 0};
+    surety_solve_options o;
+    surety_solve_options_init(&o);
+    o.scenario_cost = cost;
+    surety_result *res = NULL;
+    surety_error err;
+    surety_error_clear(&err);
+    cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_EUSAGE);
+    cost[3] = -1;
+    cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_EUSAGE);
+    cost[3] = 3;
+    md->constraint = SURETY_SEPARATE;
+    cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_EUSAGE);
+    cr_assert_null(res);
+    surety_model_destroy(md);
+    solve_gen_scenarios_free(sc);
+}
+
 /* ---- the resource-decomposition bound (decomp.c) ---- */
 
 /* Catches two log lines' values. */
@@ -722,6 +888,7 @@ Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
         o.dive_nodes = 1;
         o.decomp_after = 1;
         o.decomp_rounds = 1 + (int)(t % 3); /* soon to the probes */
+        o.decomp_jobs_only = t % 2 == 0;
         o.lp_after = -1;
         two_logs g = {{"decomposition bound: %lf", 0, 0},
                       {"decomposition probes: %lf", 0, 0}};
@@ -787,6 +954,7 @@ Test(solve, decomposition_probes_keep_the_enumerated_optimum)
         o.dive_nodes = 1 + (long)(t % 2) * 6;
         o.decomp_after = 1;
         o.decomp_rounds = 1 + (int)(t % 2);
+        o.decomp_jobs_only = t % 4 < 2;
         o.lp_after = -1;
         two_logs g = {{"decomposition probes: %lf", 0, 0},
                       {"decomposition probes: %*f one-resource solves with "
@@ -861,6 +1029,117 @@ Test(solve, decomposition_bound_caps_a_stopped_search)
     cr_assert(stopped >= 6, "only %d stopped searches with the rounds", stopped);
     cr_assert(tighter >= 4, "the rounds lowered a stopped search's bound by "
               "0.1%% in only %d of 12 node-limited pairs", tighter);
+}
+
+/* Scenario prices (decomp.c): with the joint constraint the rounds also
+ * price each resource's failures scenario by scenario, and the bound adds
+ * the k largest summed prices. Stopped searches on instances where the
+ * rounds run many times (up to 40 rounds, node limits of thousands) must
+ * report a bound at least the optimum, the same with every round's
+ * prices; and the prices must do their job: the stopped bound with them
+ * must be clearly lower than with the assignment prices alone on some
+ * instances (it is on most, measured: see the log). */
+Test(solve, scenario_prices_cap_a_stopped_search)
+{
+    int tighter = 0, pairs = 0;
+    for (uint64_t t = 0; t < 10; t++) {
+        solve_gen_params p = {.n = 26 + 3 * (t % 3), .m = 2 + t % 2, .N = 100 + 50 * (t % 2),
+                              .eps = t % 2 ? 0.1 : 0.05, .tightness = 0.5,
+                              .dist = t % 2 ? SOLVE_GEN_LOGNORMAL : SOLVE_GEN_NORMAL,
+                              .p_required = t == 5 ? 0.1 : 0,
+                              .seed = mix(26000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        /* each job in one resource: the job prices have nothing to do,
+         * and what the split misses is only the failures' alignment */
+        for (size_t j = 0; j < md->n; j++)
+            for (size_t i = 0; i < md->m; i++)
+                md->jobs[j].allowed[i] = i == j % md->m;
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_result *full = solve_ok(md, sc, NULL);
+        cr_assert_eq(surety_result_status(full), SURETY_OPTIMAL);
+        double opt = surety_result_objective(full), tol = 1e-9 * (1 + fabs(opt));
+        for (int v = 0; v < 3; v++) {
+            double b2[2];
+            for (int on = 0; on < 2; on++) {
+                surety_solve_options o;
+                surety_solve_options_init(&o);
+                o.dive_nodes = 16;
+                o.lp_after = -1;
+                o.decomp_after = 1;
+                o.decomp_rounds = 6;
+                o.decomp_jobs_only = !on;
+                o.node_limit = v == 0 ? 100 : v == 1 ? 300 : 1500;
+                surety_result *res = solve_ok(md, sc, &o);
+                check_result(md, sc, res);
+                double b = surety_result_bound(res);
+                cr_assert(b >= opt - tol, "instance %lu, limit %ld, %s: bound "
+                          "%.10g below the optimum %.10g", (unsigned long)t,
+                          o.node_limit, on ? "scenario prices" : "assignment only",
+                          b, opt);
+                if (surety_result_status(res) == SURETY_OPTIMAL)
+                    cr_assert(fabs(surety_result_objective(res) - opt) <= tol);
+                b2[on] = b;
+                surety_result_free(res);
+            }
+            if (b2[0] > opt + 1e-3 * fabs(opt)) {
+                pairs++;
+                tighter += b2[1] < b2[0] - 0.1 * (b2[0] - opt);
+            }
+            cr_log_info("instance %lu limit %d: optimum %.2f, bound %.2f with "
+                        "scenario prices, %.2f without", (unsigned long)t, v,
+                        opt, b2[1], b2[0]);
+        }
+        surety_result_free(full);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_assert(tighter >= 3, "scenario prices closed a tenth of the gap in only "
+              "%d of %d stopped pairs", tighter, pairs);
+}
+
+/* The same on small instances with each job in one resource and many
+ * rounds (up to 40): there the scenario prices bring the split's bound
+ * close to the enumerated optimum, so a stopped search's bound, which the
+ * split caps, must not fall below it. */
+Test(solve, scenario_prices_keep_a_stopped_bound_above_the_optimum)
+{
+    int close = 0;
+    for (uint64_t t = 0; t < 60; t++) {
+        solve_gen_params p = {.n = 9 + t % 2, .m = 2, .N = 12 + 4 * (t % 4),
+                              .eps = t % 3 ? 0.1 : 0.2, .tightness = 0.4 + 0.1 * (t % 3),
+                              .dist = t % 2 ? SOLVE_GEN_LOGNORMAL : SOLVE_GEN_NORMAL,
+                              .seed = mix(27000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        for (size_t j = 0; j < md->n; j++)
+            for (size_t i = 0; i < md->m; i++)
+                md->jobs[j].allowed[i] = i == j % md->m;
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        for (long lim = 4; lim <= 64 && feas; lim *= 4) {
+            surety_solve_options o;
+            surety_solve_options_init(&o);
+            o.dive_nodes = 1;
+            o.lp_after = -1;
+            o.decomp_after = 1;
+            o.decomp_rounds = 40;
+            
+            o.node_limit = lim;
+            surety_result *res = solve_ok(md, sc, &o);
+            check_result(md, sc, res);
+            double b = surety_result_bound(res), tol = 1e-9 * (1 + fabs(bf));
+            cr_assert(b >= bf - tol, "instance %lu, limit %ld: bound %.10g below "
+                      "the optimum %.10g", (unsigned long)t, lim, b, bf);
+            if (surety_result_status(res) == SURETY_OPTIMAL)
+                cr_assert(fabs(surety_result_objective(res) - bf) <= tol);
+            else
+                close += b < bf + 0.01 * fabs(bf);
+            surety_result_free(res);
+        }
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("%d stopped searches within 1%% of the optimum", close);
 }
 
 /* ---- random small instances against CBC ---- */

@@ -15,7 +15,7 @@ static const char solve_help[] =
     "usage: surety solve MODEL [-n N] [--seed S] [--risk EPS] [-o PLAN.json]\n"
     "                    [--time-limit SEC] [--gap G] [--node-limit K]\n"
     "                    [--lp-after K|never] [--split-after K|never]\n"
-    "                    [--keep-dominated]\n"
+    "                    [--split-prices jobs|scenarios] [--keep-dominated]\n"
     "                    [--threads T] [--progress] [--quiet] [--json]\n"
     "\n"
     "Finds the most profitable plan that fits all but at most floor(eps*N) of\n"
@@ -36,6 +36,11 @@ static const char solve_help[] =
     "                    on jobs wanted twice, then each job's placements\n"
     "                    tried there one by one (default 65536; 'never'\n"
     "                    turns it off)\n"
+    "  --split-prices P  what the split prices: 'scenarios' (default: the jobs\n"
+    "                    wanted twice, and with the joint constraint each\n"
+    "                    resource's failures scenario by scenario, so that\n"
+    "                    the resources' failures line up), or 'jobs' only\n"
+    "                    (for comparisons)\n"
     "  --keep-dominated  search every distinct scenario, also those that every\n"
     "                    feasible plan fits (set aside by default; same answer,\n"
     "                    for comparisons)\n"
@@ -258,6 +263,7 @@ int cmd_solve(int argc, char **argv)
         {"lp-after", required_argument, 0, 'L'},
         {"split-after", required_argument, 0, 'S'},
         {"keep-dominated", no_argument, 0, 'D'},
+        {"split-prices", required_argument, 0, 'P'},
         {"progress", no_argument, 0, 'p'},
         {"quiet", no_argument, 0, 'q'},
         {"json", no_argument, 0, 'j'},
@@ -301,6 +307,11 @@ int cmd_solve(int argc, char **argv)
         case 'S':
             if (parse_after(optarg, &sopt.decomp_after))
                 return cli_usage_error("solve", "--split-after needs a positive whole number or 'never'");
+            break;
+        case 'P':
+            if (strcmp(optarg, "jobs") != 0 && strcmp(optarg, "scenarios") != 0)
+                return cli_usage_error("solve", "--split-prices needs 'jobs' or 'scenarios'");
+            sopt.decomp_jobs_only = strcmp(optarg, "jobs") == 0;
             break;
         case 'T':
             if (cli_parse_size(optarg, &v) || v == 0 || v > 1024)

@@ -558,6 +558,55 @@ static void children_list(surety_solver *s, size_t row, size_t c, size_t w,
     set_list(s, row, s->rix, c, w, want, s->ub, s->ubw, slack, cap);
 }
 
+static int cmp_cq(const void *a, const void *b)
+{
+    double x = ((const solve_cq *)a)->v, y = ((const solve_cq *)b)->v;
+    return (x > y) - (x < y);
+}
+
+/* The node's bound with scenario costs (surety_solve_options.scenario_cost,
+ * joint constraint), from `bound`, a valid bound on the mean profit of the
+ * completions that beat the cutoff, and cap, the profit of every open job.
+ * Such a completion fails every dead scenario, so it pays their costs.
+ * Among the live ones it fails a set F of weight at most b = k - dead
+ * weight; sort the live scenarios by their bounds ubv (values of this node
+ * or an ancestor, plus rounding slack: upper bounds on the profit of a
+ * completion that fits the scenario) and let t be the first not in F: all
+ * before t are in F, and the completion fits t, so its value is at most
+ * ubv_t minus the costs of the scenarios before t, whose weight is at most
+ * b; or, when F holds every live scenario, cap minus all their costs.
+ * Hence value <= min(bound, max over those t) - dead costs. */
+static double cost_bound(surety_solver *s, double bound, double cap)
+{
+    size_t N = s->N, c = 0, b = s->k - s->dead_w[0];
+    double slack = 1e-12 * (s->pscale + 1), dead_mu = 0;
+    for (size_t l = 0; l < N; l++) {
+        if (s->dead[l] != SURETY_LIVE) {
+            dead_mu += s->mu[l];
+            continue;
+        }
+        double v = s->ubv[l] + slack;
+        s->cq[c].v = v < cap ? v : cap;
+        s->cq[c].mu = s->mu[l];
+        s->cq[c++].w = s->cnt[l];
+    }
+    qsort(s->cq, c, sizeof *s->cq, cmp_cq);
+    double best = -INFINITY, paid = 0;
+    size_t wsum = 0, t = 0;
+    for (; t < c && wsum <= b; t++) {
+        double v = s->cq[t].v - paid;
+        if (v > best)
+            best = v;
+        paid += s->cq[t].mu;
+        wsum += s->cq[t].w;
+    }
+    if (t == c && wsum <= b && cap - paid > best)
+        best = cap - paid;
+    /* costs are summed in another order than plan_cost's: a margin */
+    double v = (best < bound ? best : bound) - dead_mu;
+    return v + 1e-12 * (fabs(v) + dead_mu + paid + s->pscale + 1);
+}
+
 /* The node bound is the smaller of two valid bounds:
  *  - aggregated (joint only; METHODS.md s.7 rule 3): a completion that
  *    beats the cutoff fits all but at most b = k - dead of the live
@@ -686,7 +735,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         if (s->dead_w[0] > k)
             return -INFINITY;
         children_list(s, row, lst_c, lst_w, lst_want, lst_slack, lst_cap);
-        return bound;
+        return s->mu ? cost_bound(s, bound, base + unc) : bound;
     }
     /* values may come from an ancestor: plus rounding slack */
     double slack = 1e-12 * (s->pscale + 1);
@@ -712,7 +761,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
             return -INFINITY;
     }
     children_list(s, row, lst_c, lst_w, lst_want, lst_slack, lst_cap);
-    return bound;
+    return s->mu ? cost_bound(s, bound, base + unc) : bound;
 }
 
 typedef struct lctx {

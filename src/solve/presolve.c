@@ -86,6 +86,14 @@ static int merge_scenarios(surety_solver *s)
         surety_xfree(rep);
         return -1;
     }
+    const double *cost = s->opt->scenario_cost;
+    if (cost)
+        s->mu = surety_xcalloc(N, sizeof *s->mu);
+    if (cost && !s->mu) {
+        surety_xfree(pos);
+        surety_xfree(rep);
+        return -1;
+    }
     size_t c = 0;
     for (size_t l = 0; l < N0; l++) {
         if (rep[l] == l) {
@@ -93,6 +101,9 @@ static int merge_scenarios(surety_solver *s)
             pos[l] = c++;
         }
         s->cnt[pos[rep[l]]]++;
+        /* copies fail together: the merged row carries all their costs */
+        if (cost)
+            s->mu[pos[rep[l]]] += cost[l];
     }
     surety_xfree(pos);
     surety_xfree(rep);
@@ -415,6 +426,10 @@ static int set_aside_fitted(surety_solver *s)
         if (c != l) {
             memmove(s->w + c * n, s->w + l * n, n * sizeof *s->w);
             s->cnt[c] = s->cnt[l];
+            /* a scenario set aside fits every feasible plan: it never
+             * costs anything */
+            if (s->mu)
+                s->mu[c] = s->mu[l];
         }
         c++;
     }
@@ -458,6 +473,8 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
     s->rclass = surety_xmalloc(m, sizeof *s->rclass);
     if (!s->p || !s->cap || !s->cap_hi || !s->allowed || !s->required ||
         !s->cand || !s->order || !s->rclass || merge_scenarios(s) != 0)
+        goto oom;
+    if (s->mu && !(s->cq = surety_xmalloc(s->N, sizeof *s->cq)))
         goto oom;
 
     /* the job's value: its mean profit, summed as plan.c does */
@@ -599,6 +616,8 @@ void surety_presolve_free(surety_solver *s)
     surety_xfree(s->w);
     surety_xfree(s->wt);
     surety_xfree(s->cnt);
+    surety_xfree(s->mu);
+    surety_xfree(s->cq);
     surety_xfree(s->cap);
     surety_xfree(s->cap_hi);
     surety_xfree(s->p);

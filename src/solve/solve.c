@@ -183,11 +183,42 @@ static int plan_valid(const surety_solver *s, const long *plan, size_t *fit)
     return 1;
 }
 
+/* With scenario costs: the cost of the scenarios as given that the plan
+ * overloads, by the capacity test of plan.h on each resource's sum in
+ * ascending job order (as plan.c counts). */
+static double plan_cost(const surety_solver *s, const long *plan)
+{
+    const surety_model *model = s->model;
+    const double *cost = s->opt->scenario_cost;
+    size_t n = s->n, m = s->m;
+    double c = 0;
+    for (size_t l = 0; l < s->N0; l++) {
+        const double *row = s->sc->hours + l * n;
+        int fails = 0;
+        for (size_t i = 0; i < m && !fails; i++) {
+            double sum = 0;
+            for (size_t j = 0; j < n; j++)
+                if (plan[j] == (long)i)
+                    sum += row[j];
+            fails = !surety_plan_holds(model->resources[i].hours_factor, sum,
+                                       model->resources[i].capacity);
+        }
+        if (fails)
+            c += cost[l];
+    }
+    return c;
+}
+
 int surety_solve_offer(surety_solver *s, const long *plan)
 {
     double v = plan_value(s, plan);
     if (s->have_inc && !(v > s->inc))
         return 0;
+    if (s->opt->scenario_cost) {
+        v -= plan_cost(s, plan);
+        if (s->have_inc && !(v > s->inc))
+            return 0;
+    }
     size_t fit = 0;
     if (!plan_valid(s, plan, &fit))
         return 0;
@@ -208,6 +239,7 @@ static void solver_free(surety_solver *s)
     surety_decomp_free(s);
     surety_xfree(s->dec_lam);
     surety_xfree(s->dec_v);
+    surety_xfree(s->dec_mu);
     surety_xfree(s->dec_vin);
     surety_xfree(s->dec_vout);
     surety_xfree(s->dec_c);
@@ -374,6 +406,22 @@ surety_code surety_solve_inner(const surety_model *model,
     if (!opt) {
         surety_solve_options_init(&defaults);
         opt = &defaults;
+    }
+    if (opt->scenario_cost) {
+        if (model->constraint != SURETY_JOINT) {
+            surety_error_set(err, NULL, 0, 0, "scenario_cost",
+                             "scenario costs need the joint constraint");
+            return SURETY_EUSAGE;
+        }
+        for (size_t l = 0; l < sc->N; l++)
+            if (!(opt->scenario_cost[l] >= 0 &&
+                  opt->scenario_cost[l] < INFINITY)) {
+                surety_error_set(err, NULL, 0, 0, "scenario_cost",
+                                 "scenario %zu has cost %g; costs must be "
+                                 "finite and at least 0",
+                                 l + 1, opt->scenario_cost[l]);
+                return SURETY_EUSAGE;
+            }
     }
 
     surety_solver s;

@@ -43,6 +43,12 @@ enum { SURETY_JK_DECIDED = 0, SURETY_JK_ALL = 1, SURETY_JK_SOME = 2 };
 enum { SURETY_LIVE = 0, SURETY_DEAD_LOAD = 1, SURETY_DEAD_BOUND = 2 };
 
 typedef struct surety_solver surety_solver;
+
+/* A live scenario in the cost bound (bound.c): its bound, weight, cost. */
+typedef struct solve_cq {
+    double v, mu;
+    size_t w;
+} solve_cq;
 typedef struct solve_lp solve_lp; /* lpbound.c */
 typedef struct solve_dec solve_dec; /* decomp.c */
 
@@ -87,6 +93,9 @@ struct surety_solver {
     double *w;           /* N*n base hours, scenario-major, merged rows */
     double *wt;          /* n*N the same, job-major (load updates) */
     unsigned *cnt;       /* N multiplicities (sum = W <= N0) */
+    double *mu;          /* N failure costs (the copies' sum), with
+                          * opt->scenario_cost; else NULL */
+    solve_cq *cq;        /* N: scratch of the cost bound (bound.c) */
     double *cap;         /* m capacities in base hours, C_i / f_i */
     double *cap_hi;      /* m: above this a load is clearly overloaded */
     double *p;           /* n mean profits (sum over l / N0) */
@@ -224,6 +233,8 @@ struct surety_solver {
                           * current path: a node's bound is at most
                           * dec_root - rej_lam (tree.c, dec_cap) */
     double *dec_v;       /* m: the best round's V_i bounds */
+    double *dec_mu;      /* m*N0: the best round's scenario prices, or
+                          * NULL (joint constraint only) */
     double dec_lsum;     /* its sum of prices (dec_root = dec_lsum + the
                           * sum of dec_v) */
     /* after the rounds, probes (decomp.c): n x m bounds on V_i at the best
