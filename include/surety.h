@@ -340,8 +340,10 @@ typedef struct surety_solve_options {
     int lp_restored;
     /* nodes searched before the resource-decomposition bound is computed
      * at the root (each resource's own chance-constrained problem solved
-     * by the same search, with prices on "each job once"; it caps every
-     * bound from then on); 0: the default (65536); < 0: never. Needs the
+     * by the same search, with prices on "each job once" and, unless
+     * decomp_jobs_only, on each resource's failures scenario by scenario;
+     * it caps every bound from then on); 0: the default (65536); < 0:
+     * never. Needs the
      * best-bound pool and at least two resources. Its rounds then take
      * about as many nodes as the tree (not counted in the result's nodes,
      * nor limited by node_limit; each one-resource solve stops after

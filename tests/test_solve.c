@@ -1142,6 +1142,50 @@ Test(solve, scenario_prices_keep_a_stopped_bound_above_the_optimum)
     cr_log_info("%d stopped searches within 1%% of the optimum", close);
 }
 
+/* The slow suite (SURETY_SLOW=1, meson test --suite slow): searches long
+ * enough for the scenario prices to grow (up to 60 rounds), whose bounds
+ * must stay at least the optimum found without the decomposition. The term
+ * of the k largest
+ * summed prices matters only here: the unit tests' trees are too small. */
+Test(slow_prices, long_searches_keep_their_bounds_above_the_optimum)
+{
+    if (!getenv("SURETY_SLOW"))
+        cr_skip_test("set SURETY_SLOW=1 (meson test --suite slow)");
+    for (uint64_t t = 0; t < 6; t++) {
+        solve_gen_params p = {.n = 26 + 2 * (t % 3), .m = 3, .N = 100,
+                              .eps = 0.05, .tightness = 0.5,
+                              .dist = t % 2 ? SOLVE_GEN_LOGNORMAL : SOLVE_GEN_NORMAL,
+                              .seed = mix(28000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.decomp_after = -1;
+        surety_result *full = solve_ok(md, sc, &o);
+        cr_assert_eq(surety_result_status(full), SURETY_OPTIMAL);
+        double opt = surety_result_objective(full), tol = 1e-9 * (1 + fabs(opt));
+        for (long lim = 20000; lim <= 320000; lim *= 4) {
+            surety_solve_options_init(&o);
+            o.dive_nodes = 16;
+            o.decomp_after = 1;
+            o.node_limit = lim;
+            surety_result *res = solve_ok(md, sc, &o);
+            check_result(md, sc, res);
+            double b = surety_result_bound(res);
+            cr_assert(b >= opt - tol, "instance %lu, limit %ld: bound %.10g below "
+                      "the optimum %.10g", (unsigned long)t, lim, b, opt);
+            if (surety_result_status(res) == SURETY_OPTIMAL)
+                cr_assert(fabs(surety_result_objective(res) - opt) <= tol);
+            cr_log_info("instance %lu limit %ld: optimum %.2f, bound %.2f",
+                        (unsigned long)t, lim, opt, b);
+            surety_result_free(res);
+        }
+        surety_result_free(full);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+}
+
 /* ---- random small instances against CBC ---- */
 
 #include <time.h>
