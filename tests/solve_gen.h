@@ -193,6 +193,15 @@ static inline surety_scenarios *solve_gen_scenarios(const surety_model *md,
     return sc;
 }
 
+/* Each job may enter one resource only (job j: resource j mod m), so that
+ * the decomposition's job prices have nothing to do. */
+static inline void solve_gen_one_resource_each(surety_model *md)
+{
+    for (size_t j = 0; j < md->n; j++)
+        for (size_t i = 0; i < md->m; i++)
+            md->jobs[j].allowed[i] = i == j % md->m;
+}
+
 static inline void solve_gen_scenarios_free(surety_scenarios *sc)
 {
     if (!sc)

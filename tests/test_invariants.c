@@ -33,9 +33,7 @@ static void run_prices(const solve_gen_params *p, long dives, int lp,
     surety_model *md = solve_gen_model(p);
     if (single)
         /* each job in one resource */
-        for (size_t j = 0; j < md->n; j++)
-            for (size_t i = 0; i < md->m; i++)
-                md->jobs[j].allowed[i] = i == j % md->m;
+        solve_gen_one_resource_each(md);
     surety_scenarios *sc = solve_gen_scenarios(md, p);
     surety_solve_options o;
     surety_solve_options_init(&o);

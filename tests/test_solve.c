@@ -79,14 +79,39 @@ static int plan_ok(const surety_model *md, const surety_scenarios *sc,
     return 1;
 }
 
-/* Exhaustive enumeration of all (m+1)^n plans; returns 1 and the best value
- * when some plan is feasible. */
-static int brute_force(const surety_model *md, const surety_scenarios *sc,
-                       double *best)
+/* The cost of the scenarios in which the plan overloads some resource,
+ * counted with plan_ok's test (0 without costs). */
+static double plan_fail_cost(const surety_model *md,
+                             const surety_scenarios *sc, const long *plan,
+                             const double *cost)
 {
-    size_t n = md->n, m = md->m;
+    double c = 0;
+    for (size_t l = 0; cost && l < sc->N; l++) {
+        int fail = 0;
+        for (size_t i = 0; i < md->m; i++) {
+            double sum = 0;
+            for (size_t j = 0; j < md->n; j++)
+                if (plan[j] == (long)i)
+                    sum += sc->hours[l * md->n + j];
+            if (!(md->resources[i].hours_factor * sum <=
+                  md->resources[i].capacity * (1 + 1e-12)))
+                fail = 1;
+        }
+        if (fail)
+            c += cost[l];
+    }
+    return c;
+}
+
+/* Exhaustive enumeration of all (m+1)^n plans; returns 1 and the best value
+ * (mean profit, less the costs of the failed scenarios when `cost` is
+ * given) when some plan is feasible. */
+static int brute_force_cost(const surety_model *md,
+                            const surety_scenarios *sc, const double *cost,
+                            double *best)
+{
+    size_t n = md->n, m = md->m, total = 1;
     long plan[16];
-    size_t total = 1;
     for (size_t j = 0; j < n; j++)
         total *= m + 1;
     int found = 0;
@@ -98,12 +123,18 @@ static int brute_force(const surety_model *md, const surety_scenarios *sc,
         }
         if (!plan_ok(md, sc, plan))
             continue;
-        double v = plan_value(sc, plan);
+        double v = plan_value(sc, plan) - plan_fail_cost(md, sc, plan, cost);
         if (!found || v > *best)
             *best = v;
         found = 1;
     }
     return found;
+}
+
+static int brute_force(const surety_model *md, const surety_scenarios *sc,
+                       double *best)
+{
+    return brute_force_cost(md, sc, NULL, best);
 }
 
 static surety_result *solve_ok(const surety_model *md,
@@ -687,57 +718,6 @@ Test(solve, lp_bound_on_larger_trees)
 
 /* ---- scenario costs (surety_solve_options.scenario_cost) ---- */
 
-/* The cost of the scenarios in which the plan overloads some resource,
- * counted with plan_ok's test. */
-static double plan_fail_cost(const surety_model *md,
-                             const surety_scenarios *sc, const long *plan,
-                             const double *cost)
-{
-    double c = 0;
-    for (size_t l = 0; l < sc->N; l++) {
-        int fail = 0;
-        for (size_t i = 0; i < md->m; i++) {
-            double sum = 0;
-            for (size_t j = 0; j < md->n; j++)
-                if (plan[j] == (long)i)
-                    sum += sc->hours[l * md->n + j];
-            if (!(md->resources[i].hours_factor * sum <=
-                  md->resources[i].capacity * (1 + 1e-12)))
-                fail = 1;
-        }
-        if (fail)
-            c += cost[l];
-    }
-    return c;
-}
-
-/* Exhaustive enumeration with costs: the best mean profit minus the cost
- * of the failed scenarios over the feasible plans. */
-static int brute_force_cost(const surety_model *md,
-                            const surety_scenarios *sc, const double *cost,
-                            double *best)
-{
-    size_t n = md->n, m = md->m, total = 1;
-    long plan[16];
-    for (size_t j = 0; j < n; j++)
-        total *= m + 1;
-    int found = 0;
-    for (size_t code = 0; code < total; code++) {
-        size_t c = code;
-        for (size_t j = 0; j < n; j++) {
-            plan[j] = (long)(c % (m + 1)) - 1;
-            c /= m + 1;
-        }
-        if (!plan_ok(md, sc, plan))
-            continue;
-        double v = plan_value(sc, plan) - plan_fail_cost(md, sc, plan, cost);
-        if (!found || v > *best)
-            *best = v;
-        found = 1;
-    }
-    return found;
-}
-
 /* Random instances (joint; one to three resources) with random costs on a
  * random share of the scenarios, against enumeration, under every search
  * order, with the decomposition from the first node, and under node
@@ -1051,9 +1031,7 @@ Test(solve, scenario_prices_cap_a_stopped_search)
         surety_model *md = solve_gen_model(&p);
         /* each job in one resource: the job prices have nothing to do,
          * and what the split misses is only the failures' alignment */
-        for (size_t j = 0; j < md->n; j++)
-            for (size_t i = 0; i < md->m; i++)
-                md->jobs[j].allowed[i] = i == j % md->m;
+        solve_gen_one_resource_each(md);
         surety_scenarios *sc = solve_gen_scenarios(md, &p);
         surety_result *full = solve_ok(md, sc, NULL);
         cr_assert_eq(surety_result_status(full), SURETY_OPTIMAL);
@@ -1110,9 +1088,7 @@ Test(solve, scenario_prices_keep_a_stopped_bound_above_the_optimum)
                               .dist = t % 2 ? SOLVE_GEN_LOGNORMAL : SOLVE_GEN_NORMAL,
                               .seed = mix(27000 + t)};
         surety_model *md = solve_gen_model(&p);
-        for (size_t j = 0; j < md->n; j++)
-            for (size_t i = 0; i < md->m; i++)
-                md->jobs[j].allowed[i] = i == j % md->m;
+        solve_gen_one_resource_each(md);
         surety_scenarios *sc = solve_gen_scenarios(md, &p);
         double bf = 0;
         int feas = brute_force(md, sc, &bf);
