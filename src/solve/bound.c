@@ -575,33 +575,54 @@ static int cmp_cq(const void *a, const void *b)
  * before t are in F, and the completion fits t, so its value is at most
  * ubv_t minus the costs of the scenarios before t, whose weight is at most
  * b; or, when F holds every live scenario, cap minus all their costs.
- * Hence value <= min(bound, max over those t) - dead costs. */
-static double cost_bound(surety_solver *s, double bound, double cap)
+ * Hence value <= min(bound, max over those t) - dead costs.
+ * Only the scenarios up to the first t past weight b are read, so only
+ * values at most thr are sorted, thr being at least the (b+1)-th smallest
+ * by weight (the node's quantile, computed over these values or fewer:
+ * fewer can only raise an order statistic); if they do not reach past
+ * weight b after all, every live scenario is sorted. */
+static double cost_bound(surety_solver *s, double bound, double cap,
+                         double thr)
 {
-    size_t N = s->N, c = 0, b = s->k - s->dead_w[0];
-    double slack = 1e-12 * (s->pscale + 1), dead_mu = 0;
+    size_t N = s->N, c, b = s->k - s->dead_w[0], live;
+    double slack = 1e-12 * (s->pscale + 1), dead_mu, best, paid;
+    size_t wsum, t;
+again:
+    c = live = 0;
+    dead_mu = 0;
     for (size_t l = 0; l < N; l++) {
         if (s->dead[l] != SURETY_LIVE) {
             dead_mu += s->mu[l];
             continue;
         }
+        live++;
         double v = s->ubv[l] + slack;
-        s->cq[c].v = v < cap ? v : cap;
+        v = v < cap ? v : cap;
+        if (v > thr)
+            continue;
+        s->cq[c].v = v;
         s->cq[c].mu = s->mu[l];
         s->cq[c++].w = s->cnt[l];
     }
     qsort(s->cq, c, sizeof *s->cq, cmp_cq);
-    double best = -INFINITY, paid = 0;
-    size_t wsum = 0, t = 0;
-    for (; t < c && wsum <= b; t++) {
+    best = -INFINITY;
+    paid = 0;
+    wsum = 0;
+    for (t = 0; t < c && wsum <= b; t++) {
         double v = s->cq[t].v - paid;
         if (v > best)
             best = v;
         paid += s->cq[t].mu;
         wsum += s->cq[t].w;
     }
-    if (t == c && wsum <= b && cap - paid > best)
-        best = cap - paid;
+    if (t == c && wsum <= b) {
+        if (c < live) {
+            thr = INFINITY; /* the threshold fell short: sort them all */
+            goto again;
+        }
+        if (cap - paid > best)
+            best = cap - paid;
+    }
     /* costs are summed in another order than plan_cost's: a margin */
     double v = (best < bound ? best : bound) - dead_mu;
     return v + 1e-12 * (fabs(v) + dead_mu + paid + s->pscale + 1);
@@ -735,7 +756,9 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         if (s->dead_w[0] > k)
             return -INFINITY;
         children_list(s, row, lst_c, lst_w, lst_want, lst_slack, lst_cap);
-        return s->mu ? cost_bound(s, bound, base + unc) : bound;
+        return s->mu ? cost_bound(s, bound, base + unc,
+                                  qa + 4e-12 * (s->pscale + 1))
+                     : bound;
     }
     /* values may come from an ancestor: plus rounding slack */
     double slack = 1e-12 * (s->pscale + 1);
@@ -761,7 +784,9 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
             return -INFINITY;
     }
     children_list(s, row, lst_c, lst_w, lst_want, lst_slack, lst_cap);
-    return s->mu ? cost_bound(s, bound, base + unc) : bound;
+    return s->mu ? cost_bound(s, bound, base + unc,
+                              s->separate ? INFINITY : qa + 4 * slack)
+                 : bound;
 }
 
 typedef struct lctx {
