@@ -39,14 +39,15 @@
  * subgradient of mu_il is z_l - z_il: the k scenarios of largest summed
  * price less resource i's failures in this round's plan. Measured on the
  * 40-job instances: the n=40, m=4, N=1000 gap after 600 s halves, and
- * 40-job, 100-scenario instances close about 3.5 times sooner
+ * 40-job, 100-scenario instances close 2 to 3.5 times sooner
  * (bench/README.md, "Findings").
  *
  * Prices by subgradient steps from bound.c's prices (Polyak's step toward
  * the incumbent, halved when the bound stalls: Held, Wolfe & Crowder
  * 1974; with scenario prices, the predicted decrease split evenly between
- * the two blocks of prices). The pairs used are those still possible at the root (row 0 of
- * pxs: a pair ruled out there is in no plan that beats the incumbent), so
+ * the two blocks of prices). The pairs used are those still possible at
+ * the root (row 0 of pxs: a pair ruled out there is in no plan that beats
+ * the incumbent), so
  * the bound holds for every plan that beats the cutoff, which is all the
  * search needs.
  *
@@ -275,7 +276,7 @@ static int dec_init(surety_solver *s)
         d->mtot = surety_xmalloc(N0, sizeof *d->mtot);
         d->srt = surety_xmalloc(N0, sizeof *d->srt);
         d->zf = surety_xcalloc(m * N0, 1);
-        d->nf = surety_xmalloc(N0, sizeof *d->nf);
+        d->nf = surety_xcalloc(N0, sizeof *d->nf);
         if (!s->dec_mu)
             s->dec_mu = surety_xcalloc(m * N0, sizeof *s->dec_mu);
         if (!d->mu || !d->mtot || !d->srt || !d->zf || !d->nf || !s->dec_mu)
