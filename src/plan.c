@@ -116,13 +116,12 @@ static double load_scan(const surety_plan *plan, size_t n, long i,
     return sum;
 }
 
-size_t surety_plan_count_fit(const surety_model *model,
-                             const surety_plan *plan,
-                             const surety_scenarios *sc,
-                             size_t *per_resource)
+/* The joint count of surety_plan_count_fit; with `cost`, also the summed
+ * cost of the scenarios in which some resource overloads, into *paid. */
+static size_t count_fit(const surety_model *model, const surety_plan *plan,
+                        const surety_scenarios *sc, size_t *per_resource,
+                        const double *cost, double *paid)
 {
-    if (!model || !plan || !sc)
-        return 0;
     size_t m = model->m, N = sc->N, n = sc->n;
     size_t jn = model->n < plan->n ? model->n : plan->n;
     if (jn > n)
@@ -157,10 +156,32 @@ size_t surety_plan_count_fit(const surety_model *model,
             }
         }
         fit += (size_t)all;
+        if (cost && !all)
+            *paid += cost[l];
     }
     surety_xfree(jobs);
     surety_xfree(start);
     return fit;
+}
+
+size_t surety_plan_count_fit(const surety_model *model,
+                             const surety_plan *plan,
+                             const surety_scenarios *sc,
+                             size_t *per_resource)
+{
+    if (!model || !plan || !sc)
+        return 0;
+    return count_fit(model, plan, sc, per_resource, NULL, NULL);
+}
+
+double surety_plan_fail_cost(const surety_model *model,
+                             const surety_plan *plan,
+                             const surety_scenarios *sc, const double *cost)
+{
+    double paid = 0;
+    if (model && plan && sc && cost)
+        count_fit(model, plan, sc, NULL, cost, &paid);
+    return paid;
 }
 
 int surety_plan_feasible(const surety_model *model, const surety_plan *plan,

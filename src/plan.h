@@ -36,4 +36,11 @@ static inline int surety_plan_holds(double factor, double sum, double capacity)
     return factor * sum <= capacity * (1 + SURETY_CAPACITY_SLACK);
 }
 
+/* The summed cost[l] of the scenarios of `sc` in which the plan overloads
+ * some resource, counted as surety_plan_count_fit counts (for the solver's
+ * scenario_cost option). */
+double surety_plan_fail_cost(const surety_model *model,
+                             const surety_plan *plan,
+                             const surety_scenarios *sc, const double *cost);
+
 #endif

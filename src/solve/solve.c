@@ -183,39 +183,15 @@ static int plan_valid(const surety_solver *s, const long *plan, size_t *fit)
     return 1;
 }
 
-/* With scenario costs: the cost of the scenarios as given that the plan
- * overloads, by the capacity test of plan.h on each resource's sum in
- * ascending job order (as plan.c counts). */
-static double plan_cost(const surety_solver *s, const long *plan)
-{
-    const surety_model *model = s->model;
-    const double *cost = s->opt->scenario_cost;
-    size_t n = s->n, m = s->m;
-    double c = 0;
-    for (size_t l = 0; l < s->N0; l++) {
-        const double *row = s->sc->hours + l * n;
-        int fails = 0;
-        for (size_t i = 0; i < m && !fails; i++) {
-            double sum = 0;
-            for (size_t j = 0; j < n; j++)
-                if (plan[j] == (long)i)
-                    sum += row[j];
-            fails = !surety_plan_holds(model->resources[i].hours_factor, sum,
-                                       model->resources[i].capacity);
-        }
-        if (fails)
-            c += cost[l];
-    }
-    return c;
-}
-
 int surety_solve_offer(surety_solver *s, const long *plan)
 {
     double v = plan_value(s, plan);
     if (s->have_inc && !(v > s->inc))
         return 0;
     if (s->opt->scenario_cost) {
-        v -= plan_cost(s, plan);
+        surety_plan pl = {s->n, (long *)plan};
+        v -= surety_plan_fail_cost(s->model, &pl, s->sc,
+                                   s->opt->scenario_cost);
         if (s->have_inc && !(v > s->inc))
             return 0;
     }
