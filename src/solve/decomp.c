@@ -397,6 +397,24 @@ static void chk_round(const surety_solver *s, double L)
 }
 #endif
 
+/* Shows a round to the caller's watcher (solve.h): its prices and value,
+ * and the pairs its one-resource problems hold. */
+static void watch_round(const surety_solver *s, double L)
+{
+    size_t n = s->n, m = s->m;
+    const solve_dec *d = s->dec;
+    unsigned char *pairs = surety_xcalloc(n * m, 1);
+    if (!pairs)
+        return;
+    for (size_t i = 0; i < m; i++)
+        for (size_t t = 0; t < d->sub[i].nj; t++)
+            pairs[d->sub[i].job[t] * m + i] = 1;
+    surety_dec_round w = {.n = n, .m = m, .N = s->N0, .pairs = pairs,
+                          .lam = d->lam, .mu = d->mu, .bound = L};
+    s->dec_watch(s->dec_watch_ctx, &w);
+    surety_xfree(pairs);
+}
+
 /* One subgradient round. Returns 0 when more rounds may help, 1 when they
  * will not (converged, or the most rounds: 60 by default), 2 when the work
  * should stop (a limit stopped a sub-solve, or the bound no longer beats
@@ -432,6 +450,8 @@ static int price_round(surety_solver *s, double deadline)
 #ifdef SURETY_CHECK_INVARIANTS
     chk_round(s, L);
 #endif
+    if (s->dec_watch)
+        watch_round(s, L);
     if (L < s->dec_root - slack) {
         s->dec_root = L;
         s->dec_lsum = lsum;

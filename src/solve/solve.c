@@ -350,10 +350,11 @@ surety_code surety_solve(const surety_model *model, const surety_scenarios *sc,
     return surety_solve_inner(model, sc, opt, 0, out, err);
 }
 
-surety_code surety_solve_inner(const surety_model *model,
-                               const surety_scenarios *sc,
-                               const surety_solve_options *opt, int light,
-                               surety_result **out, surety_error *err)
+static surety_code solve_run(const surety_model *model,
+                             const surety_scenarios *sc,
+                             const surety_solve_options *opt, int light,
+                             surety_dec_watch watch, void *watch_ctx,
+                             surety_result **out, surety_error *err)
 {
     if (out)
         *out = NULL;
@@ -412,6 +413,8 @@ surety_code surety_solve_inner(const surety_model *model,
     s.dec_root = INFINITY;
     s.dec_rule_inc = -INFINITY;
     s.root_cap = INFINITY;
+    s.dec_watch = watch;
+    s.dec_watch_ctx = watch_ctx;
 
     surety_result *res = result_new();
     if (!res) {
@@ -598,6 +601,23 @@ fail:
     solver_free(&s);
     surety_result_free(res);
     return rc;
+}
+
+surety_code surety_solve_inner(const surety_model *model,
+                               const surety_scenarios *sc,
+                               const surety_solve_options *opt, int light,
+                               surety_result **out, surety_error *err)
+{
+    return solve_run(model, sc, opt, light, NULL, NULL, out, err);
+}
+
+surety_code surety_solve_watched(const surety_model *model,
+                                 const surety_scenarios *sc,
+                                 const surety_solve_options *opt,
+                                 surety_dec_watch watch, void *watch_ctx,
+                                 surety_result **out, surety_error *err)
+{
+    return solve_run(model, sc, opt, 0, watch, watch_ctx, out, err);
 }
 
 void surety_result_free(surety_result *res)

@@ -52,6 +52,18 @@ typedef struct solve_cq {
 typedef struct solve_lp solve_lp; /* lpbound.c */
 typedef struct solve_dec solve_dec; /* decomp.c */
 
+/* A price round of the decomposition (decomp.c) as a watcher sees it,
+ * indexed as the caller's model and scenarios; tests/test_solve.c
+ * evaluates the bound at the round's prices on its own. */
+typedef struct surety_dec_round {
+    size_t n, m, N;    /* jobs, resources, scenarios as given */
+    const unsigned char *pairs; /* n*m: (j, i) is in resource i's problem */
+    const double *lam; /* n job prices; 0 for a job decided at the root */
+    const double *mu;  /* m*N scenario prices (mu[i*N + l]), or NULL */
+    double bound;      /* the round's value */
+} surety_dec_round;
+typedef void (*surety_dec_watch)(void *ctx, const surety_dec_round *r);
+
 /* An open node waiting in the best-bound pool (tree.c): the resources
  * (or SURETY_JOB_OUT) of the first `depth` jobs of the branching order,
  * and a bound on every completion of it (its parent's). */
@@ -244,6 +256,8 @@ struct surety_solver {
     double *dec_vin, *dec_vout, *dec_c, *dec_saved_c;
     long dec_probes, dec_ruled; /* one-resource probes; pairs ruled out */
     double dec_rule_inc; /* the incumbent when pairs were last ruled out */
+    surety_dec_watch dec_watch; /* called after each price round, or NULL */
+    void *dec_watch_ctx;
     /* the smaller of lp_root and dec_root: caps every open node */
     double root_cap;
     double lp_deadline;  /* monotonic seconds after which an LP call stops */
@@ -301,6 +315,14 @@ surety_code surety_solve_inner(const surety_model *model,
                                const surety_scenarios *sc,
                                const surety_solve_options *opt, int light,
                                surety_result **out, surety_error *err);
+
+/* solve.c: surety_solve with `watch` called after each price round of the
+ * decomposition (for tests). */
+surety_code surety_solve_watched(const surety_model *model,
+                                 const surety_scenarios *sc,
+                                 const surety_solve_options *opt,
+                                 surety_dec_watch watch, void *watch_ctx,
+                                 surety_result **out, surety_error *err);
 
 /* The probed bound on resource i's part (decomp.c) that deciding job j
  * selects: c == i places j in i (forced-in table), anything else keeps it
