@@ -45,7 +45,11 @@
  * Prices by subgradient steps from bound.c's prices (Polyak's step toward
  * the incumbent, halved when the bound stalls: Held, Wolfe & Crowder
  * 1974; with scenario prices, the predicted decrease split evenly between
- * the two blocks of prices). The pairs used are those still possible at
+ * the two blocks of prices), each block's direction deflected by its last
+ * one where the two point apart (Camerini, Fratta & Maffioli 1975), which
+ * damps the zigzag of plain steps: on the n=40, N=1000 instance the bound
+ * after 49 rounds is 31 655 against 31 714 (bench/README.md, "Findings").
+ * The pairs used are those still possible at
  * the root (row 0 of pxs: a pair ruled out there is in no plan that beats
  * the incumbent), so
  * the bound holds for every plan that beats the cutoff, which is all the
@@ -218,6 +222,7 @@ struct solve_dec {
                           * most jobs of a resource */
     surety_plan pstart;  /* a probe's starting plan, as long as sc's rows */
     double *mu;    /* m*N0 scenario prices, or NULL (not priced) */
+    double *dj, *dm; /* the last step's directions: n for lam, m*N0 for mu */
     int best_priced; /* the best round had scenario prices */
     double *mtot;  /* N0: the sum over resources of mu */
     size_t *srt;   /* N0: scenarios by mtot, for the top k */
@@ -242,6 +247,8 @@ void surety_decomp_free(surety_solver *s)
     surety_xfree(d->xs);
     surety_xfree(d->v);
     surety_xfree(d->mu);
+    surety_xfree(d->dj);
+    surety_xfree(d->dm);
     surety_xfree(d->mtot);
     surety_xfree(d->srt);
     surety_xfree(d->zf);
@@ -264,22 +271,26 @@ static int dec_init(surety_solver *s)
     d->lam = surety_xmalloc(n, sizeof *d->lam);
     d->xs = surety_xmalloc(n, sizeof *d->xs);
     d->v = surety_xmalloc(m, sizeof *d->v);
+    d->dj = surety_xcalloc(n, sizeof *d->dj);
     if (!s->dec_lam)
         s->dec_lam = surety_xcalloc(n, sizeof *s->dec_lam);
     if (!s->dec_v)
         s->dec_v = surety_xcalloc(m, sizeof *s->dec_v);
-    if (!d->sub || !d->lam || !d->xs || !d->v || !s->dec_lam || !s->dec_v)
+    if (!d->sub || !d->lam || !d->xs || !d->v || !d->dj || !s->dec_lam ||
+        !s->dec_v)
         return -1;
     if (!s->separate && !s->opt->decomp_jobs_only) {
         size_t N0 = s->N0;
         d->mu = surety_xcalloc(m * N0, sizeof *d->mu);
+        d->dm = surety_xcalloc(m * N0, sizeof *d->dm);
         d->mtot = surety_xmalloc(N0, sizeof *d->mtot);
         d->srt = surety_xmalloc(N0, sizeof *d->srt);
         d->zf = surety_xcalloc(m * N0, 1);
         d->nf = surety_xcalloc(N0, sizeof *d->nf);
         if (!s->dec_mu)
             s->dec_mu = surety_xcalloc(m * N0, sizeof *s->dec_mu);
-        if (!d->mu || !d->mtot || !d->srt || !d->zf || !d->nf || !s->dec_mu)
+        if (!d->mu || !d->dm || !d->mtot || !d->srt || !d->zf || !d->nf ||
+            !s->dec_mu)
             return -1;
     }
     size_t most = 1;
@@ -511,6 +522,43 @@ static int price_round(surety_solver *s, double deadline)
     if (norm <= 0 && nmu <= 0)
         return 1; /* a zero subgradient (exact when every sub-solve
                    * finished): no prices do better */
+    /* the step's direction, deflected by the last one where they point
+     * apart (Camerini, Fratta & Maffioli 1975, "On improving relaxation
+     * methods by modified gradient techniques", cited from memory):
+     * d = g + beta d', beta = max(0, -1.5 g.d' / |d'|^2), per block */
+    {
+        double gd = 0, dd = 0;
+        for (size_t j = 0; j < n; j++)
+            if (s->state[j] == SURETY_JOB_FREE) {
+                gd += xs[j] * d->dj[j];
+                dd += d->dj[j] * d->dj[j];
+            }
+        double beta = dd > 0 && gd < 0 ? -1.5 * gd / dd : 0;
+        norm = 0;
+        for (size_t j = 0; j < n; j++)
+            if (s->state[j] == SURETY_JOB_FREE) {
+                xs[j] += beta * d->dj[j];
+                d->dj[j] = xs[j];
+                norm += xs[j] * xs[j];
+            }
+    }
+    if (priced) {
+        double gd = 0, dd = 0;
+        for (size_t i = 0; i < m; i++)
+            for (size_t l = 0; l < N0; l++) {
+                double g = d->mtot[l] - d->zf[i * N0 + l];
+                gd += g * d->dm[i * N0 + l];
+                dd += d->dm[i * N0 + l] * d->dm[i * N0 + l];
+            }
+        double beta = dd > 0 && gd < 0 ? -1.5 * gd / dd : 0;
+        nmu = 0;
+        for (size_t i = 0; i < m; i++)
+            for (size_t l = 0; l < N0; l++) {
+                double *e = &d->dm[i * N0 + l];
+                *e = d->mtot[l] - d->zf[i * N0 + l] + beta * *e;
+                nmu += *e * *e;
+            }
+    }
     /* Polyak's step, the predicted decrease split between the two blocks
      * of prices when both move (there are m*N0 scenario prices against n
      * job prices: one step over both would leave the job prices still) */
@@ -531,8 +579,7 @@ static int price_round(surety_solver *s, double deadline)
     if (priced)
         for (size_t i = 0; i < m; i++)
             for (size_t l = 0; l < N0; l++) {
-                double g = d->mtot[l] - d->zf[i * N0 + l];
-                double v = d->mu[i * N0 + l] - mstep * g;
+                double v = d->mu[i * N0 + l] - mstep * d->dm[i * N0 + l];
                 d->mu[i * N0 + l] = v > 0 ? v : 0;
             }
     return 0;
