@@ -79,6 +79,11 @@ grep '"objective"' "$tmp/out" >"$tmp/obj0"
 expect 0 "split with job prices only" -- "$surety" solve "$tut" --split-after 1 --split-prices jobs --json --quiet
 has "$tmp/out" "$(cat "$tmp/obj0")" "same objective with job prices only"
 expect 1 "bad --split-prices" -- "$surety" solve "$tut" --split-prices none
+# the most price rounds: the log counts them (4 by then without the cap)
+expect 4 "two price rounds" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --split-after 1 --split-rounds 2 --node-limit 20000 --progress
+has "$tmp/err" ", 2 price rounds," "--split-rounds caps the rounds"
+has "$tmp/err" "decomposition probes:" "the probes follow the capped rounds"
+expect 1 "bad --split-rounds" -- "$surety" solve "$tut" --split-rounds 0
 expect 0 "gap tolerance" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --gap 0.3 --quiet
 has "$tmp/out" "optimal within the --gap asked for" "a tolerated gap is spelled out next to the status"
 expect 0 "two threads asked for" -- "$surety" solve "$tut" --threads 2 --quiet

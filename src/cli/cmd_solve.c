@@ -15,7 +15,8 @@ static const char solve_help[] =
     "usage: surety solve MODEL [-n N] [--seed S] [--risk EPS] [-o PLAN.json]\n"
     "                    [--time-limit SEC] [--gap G] [--node-limit K]\n"
     "                    [--lp-after K|never] [--split-after K|never]\n"
-    "                    [--split-prices jobs|scenarios] [--keep-dominated]\n"
+    "                    [--split-prices jobs|scenarios] [--split-rounds K]\n"
+    "                    [--keep-dominated]\n"
     "                    [--threads T] [--progress] [--quiet] [--json]\n"
     "\n"
     "Finds the most profitable plan that fits all but at most floor(eps*N) of\n"
@@ -41,6 +42,10 @@ static const char solve_help[] =
     "                    resource's failures scenario by scenario, so that\n"
     "                    the resources' failures line up), or 'jobs' only\n"
     "                    (for comparisons)\n"
+    "  --split-rounds K  most price rounds of the split before its placements\n"
+    "                    are tried (default 60; fewer if the prices settle);\n"
+    "                    more tighten the bound on long runs of thousands of\n"
+    "                    scenarios, and slow short ones\n"
     "  --keep-dominated  search every distinct scenario, also those that every\n"
     "                    feasible plan fits (set aside by default; same answer,\n"
     "                    for comparisons)\n"
@@ -264,6 +269,7 @@ int cmd_solve(int argc, char **argv)
         {"split-after", required_argument, 0, 'S'},
         {"keep-dominated", no_argument, 0, 'D'},
         {"split-prices", required_argument, 0, 'P'},
+        {"split-rounds", required_argument, 0, 'R'},
         {"progress", no_argument, 0, 'p'},
         {"quiet", no_argument, 0, 'q'},
         {"json", no_argument, 0, 'j'},
@@ -312,6 +318,11 @@ int cmd_solve(int argc, char **argv)
             if (strcmp(optarg, "jobs") != 0 && strcmp(optarg, "scenarios") != 0)
                 return cli_usage_error("solve", "--split-prices needs 'jobs' or 'scenarios'");
             sopt.decomp_jobs_only = strcmp(optarg, "jobs") == 0;
+            break;
+        case 'R':
+            if (cli_parse_size(optarg, &v) || v == 0 || v > 100000)
+                return cli_usage_error("solve", "--split-rounds needs a whole number from 1 to 100000");
+            sopt.decomp_rounds = (int)v;
             break;
         case 'T':
             if (cli_parse_size(optarg, &v) || v == 0 || v > 1024)
