@@ -288,7 +288,8 @@ static int search_alloc(surety_solver *s)
     s->rlcap = 2 * (s->k + 1) + 16 < N ? 2 * (s->k + 1) + 16 : N;
     s->rl = surety_xmalloc((nb + 2) * (s->rlcap ? s->rlcap : 1), sizeof *s->rl);
     s->rln = surety_xmalloc(nb + 2, sizeof *s->rln);
-    s->pxs = surety_xmalloc((nb + 2) * n * m, 1);
+    /* zeroed: possible_pairs writes only the rows of the order's jobs */
+    s->pxs = surety_xcalloc((nb + 2) * n * m, 1);
     s->pxo = surety_xmalloc((nb + 2) * n * m, sizeof *s->pxo);
     s->ppmark = surety_xmalloc(nb + 2, sizeof *s->ppmark);
     s->died = surety_xmalloc(s->trail_cap, sizeof *s->died);
