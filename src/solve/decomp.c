@@ -49,10 +49,9 @@
  * one where the two point apart (Camerini, Fratta & Maffioli 1975), which
  * damps the zigzag of plain steps: on the n=40, N=1000 instance the bound
  * after 49 rounds is 31 655 against 31 714 (bench/README.md, "Findings").
- * The pairs used are those still possible at
- * the root (row 0 of pxs: a pair ruled out there is in no plan that beats
- * the incumbent), so
- * the bound holds for every plan that beats the cutoff, which is all the
+ * The pairs used are those still possible at the root (row 0 of pxs: a
+ * pair ruled out there is in no plan that beats the incumbent), so the
+ * bound holds for every plan that beats the cutoff, which is all the
  * search needs.
  *
  * After the rounds, probes at the best round's prices (the reduction tests
