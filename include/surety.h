@@ -342,12 +342,14 @@ typedef struct surety_solve_options {
      * at the root (each resource's own chance-constrained problem solved
      * by the same search, with prices on "each job once" and, unless
      * decomp_jobs_only, on each resource's failures scenario by scenario;
-     * it caps every bound from then on); 0: the default (65536); < 0:
-     * never. Needs the
+     * it caps every bound from then on), or the node bounds' work of that
+     * many nodes of a joint search where nodes cost more (separate
+     * constraints); 0: the default (65536); < 0: never. Needs the
      * best-bound pool and at least two resources. Its rounds then take
-     * about as many nodes as the tree (not counted in the result's nodes,
-     * nor limited by node_limit; each one-resource solve stops after
-     * 200 000 nodes and at the time limit). After its price rounds it
+     * about as much bound work as the tree, counted in scenario knapsacks
+     * (their nodes are not counted in the result's nodes, nor limited by
+     * node_limit; each one-resource solve stops after 200 000 nodes and
+     * at the time limit). After its price rounds it
      * probes each (job, resource) pair once: the resource's problem with
      * the job forced in, or kept out when its best plan holds it, which
      * caps every node that takes that decision. */

@@ -1373,6 +1373,74 @@ Test(solve, price_rounds_keep_the_bound_their_prices_give)
               "solves) had a material T(mu)", priced, with);
 }
 
+/* Counts the price rounds a solve shows its watcher. */
+static void count_round(void *ctx, const surety_dec_round *r)
+{
+    (void)r;
+    (*(long *)ctx)++;
+}
+
+/* Under separate constraints a node's bound evaluates a knapsack per
+ * resource and live scenario, many times a joint node's work, so the
+ * decomposition's first step comes after the knapsacks of decomp_after
+ * joint nodes (tree.c, decomp_round), long before decomp_after nodes:
+ * here every solve stops at 200 nodes, half of decomp_after, and still
+ * runs price rounds (with the share counted in nodes it runs none), and
+ * the rounds keep their share of the work from then on. Its bounds stay
+ * above the optimum found without the decomposition. */
+Test(solve, separate_searches_reach_the_split_by_its_work)
+{
+    long with = 0, stopped = 0;
+    for (uint64_t t = 0; t < 6; t++) {
+        solve_gen_params p = {.n = 16 + t % 2, .m = 4, .N = 400, .eps = 0.05,
+                              .tightness = 0.5, .separate = 1,
+                              .dist = SOLVE_GEN_LOGNORMAL,
+                              .seed = mix(33000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.decomp_after = -1;
+        surety_result *ref = solve_ok(md, sc, &o);
+        cr_assert_eq(surety_result_status(ref), SURETY_OPTIMAL);
+        double opt = surety_result_objective(ref);
+        o.decomp_after = 400;
+        o.dive_nodes = 8;
+        o.node_limit = 200;
+        long rounds = 0;
+        surety_result *res = NULL;
+        surety_error err;
+        surety_error_clear(&err);
+        cr_assert_eq(surety_solve_watched(md, sc, &o, count_round, &rounds,
+                                          &res, &err),
+                     SURETY_OK, "%s", err.message);
+        check_result(md, sc, res);
+        cr_assert(surety_result_nodes(res) <= 200);
+        cr_assert(surety_result_bound(res) >= opt - 1e-9 * (1 + fabs(opt)),
+                  "instance %lu: bound %.12g below the optimum %.12g",
+                  (unsigned long)t, surety_result_bound(res), opt);
+        if (surety_result_status(res) != SURETY_OPTIMAL) {
+            stopped++;
+            with += rounds > 0;
+            /* and the share: the rounds' knapsacks keep up with the
+             * tree's (measured 16-23 rounds; a share counted in nodes
+             * from the first round on gives a few) */
+            cr_assert(rounds == 0 || rounds >= 8,
+                      "instance %lu: %ld price rounds in 200 nodes",
+                      (unsigned long)t, rounds);
+        }
+        surety_result_free(res);
+        surety_result_free(ref);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    /* power: the node limit must stop most of them */
+    cr_assert(stopped >= 4, "only %ld of 6 solves reached the node limit",
+              stopped);
+    cr_assert_eq(with, stopped, "%ld of %ld stopped solves ran no price "
+                 "round before 200 nodes", stopped - with, stopped);
+}
+
 /* The slow suite (SURETY_SLOW=1, meson test --suite slow): searches long
  * enough for the scenario prices to grow (up to 60 rounds), whose bounds
  * must stay at least the optimum found without the decomposition. The

@@ -287,6 +287,7 @@ static double lagr_quantiles(surety_solver *s)
         if (q > unc)
             q = unc;
         s->ql[i] = q;
+        s->knaps += c;
         qsum += q;
     }
     return qsum;
@@ -711,6 +712,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
          * true one (fewer values can only raise an order statistic), hence
          * still a valid bound */
         s->nrix = nr;
+        s->knaps += nr;
         s->rix_all = nr == 0 || livew == rw;
         if (rw > b) {
             qa = select_weighted(s->ub, s->ubw, c, b);

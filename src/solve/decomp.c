@@ -159,12 +159,14 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
  * is the resource's (N0 entries): each scenario it overloads costs that
  * much. `start` is a hint; with
  * `out`, the sub's plan goes there (have_start set) and its jobs are
- * counted into xs. */
+ * counted into xs. The sub-solve's nodes and knapsacks are added to
+ * *nodes and *knaps. */
 static double sub_solve(const surety_solver *s, dec_sub *d,
                         surety_scenarios *sc, const double *lam,
                         const double *cost, double deadline,
                         const surety_plan *start, surety_plan *out,
-                        double *xs, long *nodes)
+                        double *xs, long *nodes,
+                        unsigned long long *knaps)
 {
     if (d->nj == 0)
         return 0;
@@ -199,6 +201,7 @@ static double sub_solve(const surety_solver *s, dec_sub *d,
                    ? -INFINITY
                    : surety_result_bound(r);
     *nodes += surety_result_nodes(r);
+    *knaps += surety_result_knaps(r);
     const surety_plan *pl = surety_result_plan(r);
     if (pl && out) {
         for (size_t t = 0; t < nj; t++) {
@@ -451,7 +454,8 @@ static int price_round(surety_solver *s, double deadline)
         dec_sub *u = &d->sub[i];
         d->v[i] = sub_solve(s, u, &d->sc, lam, priced ? d->mu + i * N0 : NULL,
                             deadline, u->have_start ? &u->start : NULL,
-                            &u->start, xs, &s->dec_nodes);
+                            &u->start, xs, &s->dec_nodes,
+                            &s->dec_knaps);
         L += d->v[i];
     }
     if (!(L < INFINITY))
@@ -680,7 +684,8 @@ static int probe_next(surety_solver *s, double deadline)
         double v = sub_solve(s, u, &d->sc, s->dec_lam,
                              d->best_priced ? s->dec_mu + i * s->N0 : NULL,
                              deadline,
-                             &d->pstart, NULL, NULL, &s->dec_nodes);
+                             &d->pstart, NULL, NULL, &s->dec_nodes,
+                             &s->dec_knaps);
         u->jobs[q].allowed = &u->one;
         u->jobs[q].required = 0;
         if (!(v < INFINITY))

@@ -19,6 +19,7 @@ struct surety_result {
     double gap;        /* relative; INFINITY when unknown */
     double seconds;
     long nodes;
+    unsigned long long knaps; /* scenario knapsacks of the node bounds */
     surety_plan *plan; /* owned; NULL without a plan */
     size_t fit;        /* scenarios where the plan fits (joint) */
     size_t k;          /* allowance */
@@ -575,6 +576,7 @@ static surety_code solve_run(const surety_model *model,
         res->status = SURETY_UNKNOWN;
     }
     res->nodes = s.nodes;
+    res->knaps = s.knaps;
     res->seconds = surety_solve_now() - s.t0;
     if (s.lp_solves)
         logf_(&s, SURETY_LOG_INFO,
@@ -652,6 +654,11 @@ double surety_result_gap(const surety_result *res)
 {
     return res ? res->gap : INFINITY;
 }
+unsigned long long surety_result_knaps(const surety_result *res)
+{
+    return res ? res->knaps : 0;
+}
+
 long surety_result_nodes(const surety_result *res)
 {
     return res ? res->nodes : 0;

@@ -176,6 +176,9 @@ struct surety_solver {
     double *chk_ub;      /* (nb+2)*N: the values ubv must hold per depth */
 #endif
     unsigned long evals; /* bound evaluations (refresh schedule) */
+    /* scenario knapsacks evaluated by the node bounds (bound.c): the
+     * work in which the decomposition's share is counted (tree.c) */
+    unsigned long long knaps;
     size_t *rix;         /* N: scenarios recomputed by the last evaluation */
     size_t nrix;
     int rix_all;         /* the last evaluation recomputed every scenario */
@@ -239,6 +242,9 @@ struct surety_solver {
     int dec_done;        /* no more rounds or probes */
     double dec_root;     /* the best round's value, or INFINITY */
     long dec_iters, dec_nodes; /* price rounds, nodes of the sub-solves */
+    unsigned long long dec_knaps; /* knapsacks of the sub-solves */
+    unsigned long long dec_knaps0; /* knaps when the first step came */
+    int dec_started;     /* the first step has come */
     double dec_secs;     /* their time */
     double *dec_lam;     /* n: the prices of the best round (dec_root) */
     double rej_lam;      /* sum of dec_lam over the jobs rejected on the
@@ -323,6 +329,10 @@ surety_code surety_solve_watched(const surety_model *model,
                                  const surety_solve_options *opt,
                                  surety_dec_watch watch, void *watch_ctx,
                                  surety_result **out, surety_error *err);
+
+/* solve.c: the scenario knapsacks a solve's node bounds evaluated (the
+ * work unit of tree.c's decomposition share). */
+unsigned long long surety_result_knaps(const surety_result *res);
 
 /* The probed bound on resource i's part (decomp.c) that deciding job j
  * selects: c == i places j in i (forced-in table), anything else keeps it
