@@ -466,24 +466,29 @@ static surety_code solve_run(const surety_model *model,
         memcpy(s.tfix, s.state, s.n * sizeof *s.tfix);
         if (surety_heur_complete(&s, s.tfix, s.tplan, !light))
             surety_solve_offer(&s, s.tplan);
-        {
-            /* improvement runs in the tree: about 15% of the work of the
-             * 1024 nodes between two runs, taking a node as the knapsacks
-             * of the quantile window (bound.c) and an iteration as a
-             * greedy repair over every resource and scenario */
-            double node = (2.0 * (double)(s.k + 1) + 16 + (double)s.N / 32) *
-                          (double)(s.ncand + 1);
-            double iter = 2.0 * (double)s.m * (double)s.N * (double)(s.ncand + 1);
-            double it = 0.15 * 1024 * node / iter;
-            s.hiters = it < 1 ? 1 : it > 64 ? 64 : (size_t)it;
-            s.hseed = 0x1a5eedULL ^ (uint64_t)s.N * 0x9e3779b97f4a7c15ULL;
-        }
         if (surety_bound_init(&s) != 0) {
             surety_error_set(err, NULL, 0, 0, NULL,
                              "out of memory for the bound (%zu jobs, %zu "
                              "scenarios)", s.n, s.N);
             rc = SURETY_EINTERNAL;
             goto fail;
+        }
+        {
+            /* improvement runs in the tree: about 15% of the work of the
+             * 1024 nodes between two runs, taking a node as the knapsacks
+             * its bound evaluates (bound.c: the quantile window of the
+             * joint bound, and with the per-resource bound one per
+             * resource and scenario) and an iteration as a greedy repair
+             * over every resource and scenario */
+            double win = s.separate ? 0
+                                    : 2.0 * (double)(s.k + 1) + 16 +
+                                          (double)s.N / 32;
+            double per = s.use_lagr ? (double)s.m * (double)s.N : 0;
+            double node = (win + per) * (double)(s.ncand + 1);
+            double iter = 2.0 * (double)s.m * (double)s.N * (double)(s.ncand + 1);
+            double it = 0.15 * 1024 * node / iter;
+            s.hiters = it < 1 ? 1 : it > 64 ? 64 : (size_t)it;
+            s.hseed = 0x1a5eedULL ^ (uint64_t)s.N * 0x9e3779b97f4a7c15ULL;
         }
         {
             s.lp_after = opt->lp_after == 0 ? 65536 : opt->lp_after;
