@@ -75,6 +75,7 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
     solve_frame *f = &s->frames[d];
     f->trail_mark = s->trail_len;
     f->ubt_mark = s->ubt_len;
+    f->klt_mark = s->klt_len;
     f->res = c;
     f->job = j;
     f->fixed_profit = s->fixed_profit;
@@ -103,6 +104,10 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
         return 1;
     }
     size_t i = (size_t)c, g = group_of(s, i);
+    if (s->klv) {
+        f->kp = s->kp[i];
+        s->kp[i] += s->rp[j];
+    }
     s->fixed_profit += s->p[j];
     s->nin[i]++;
     f->ltot = s->ltot[i];
@@ -126,12 +131,18 @@ static void undo(surety_solver *s, size_t d)
         s->ubt_len--;
         s->ubv[s->ubt_l[s->ubt_len]] = s->ubt_v[s->ubt_len];
     }
+    while (s->klt_len > f->klt_mark) {
+        s->klt_len--;
+        s->klv[s->klt_e[s->klt_len]] = s->klt_v[s->klt_len];
+    }
     memcpy(s->dead_w, s->saved_dead_w + d * G, G * sizeof *s->dead_w);
     if (f->res >= 0) {
         memcpy(s->load + (size_t)f->res * N, s->saved_load + d * N,
                N * sizeof *s->load);
         s->nin[f->res]--;
         s->ltot[f->res] = f->ltot;
+        if (s->klv)
+            s->kp[f->res] = f->kp;
     }
     if (s->dec_c)
         memcpy(s->dec_c, s->dec_saved_c + d * s->m, s->m * sizeof *s->dec_c);
