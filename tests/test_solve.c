@@ -1423,8 +1423,8 @@ Test(solve, separate_searches_reach_the_split_by_its_work)
             stopped++;
             with += rounds > 0;
             /* and the share: the rounds' knapsacks keep up with the
-             * tree's (measured 16-23 rounds; a share counted in nodes
-             * from the first round on gives a few) */
+             * tree's (measured 16-23 rounds; given a tenth of the
+             * tree's knapsacks, the rounds run 3) */
             cr_assert(rounds == 0 || rounds >= 8,
                       "instance %lu: %ld price rounds in 200 nodes",
                       (unsigned long)t, rounds);
