@@ -151,6 +151,18 @@ static surety_result *solve_ok(const surety_model *md,
     return res;
 }
 
+/* The objective of a solve that must end proven optimal. */
+static double proven_optimum(const surety_model *md,
+                             const surety_scenarios *sc,
+                             const surety_solve_options *opt)
+{
+    surety_result *res = solve_ok(md, sc, opt);
+    cr_assert_eq(surety_result_status(res), SURETY_OPTIMAL);
+    double v = surety_result_objective(res);
+    surety_result_free(res);
+    return v;
+}
+
 /* The result is consistent: a reported plan passes the independent count
  * and its value is the reported objective; the bound is not below it. */
 static void check_result(const surety_model *md, const surety_scenarios *sc,
@@ -598,9 +610,7 @@ Test(solve, best_bound_pool_keeps_the_optimum_on_larger_trees)
         surety_solve_options o;
         surety_solve_options_init(&o);
         o.dive_nodes = -1;
-        surety_result *dfs = solve_ok(md, sc, &o);
-        cr_assert_eq(surety_result_status(dfs), SURETY_OPTIMAL);
-        double opt = surety_result_objective(dfs);
+        double opt = proven_optimum(md, sc, &o);
         for (size_t v = 0; v < sizeof dives / sizeof *dives; v++) {
             o.dive_nodes = dives[v];
             surety_result *res = solve_ok(md, sc, &o);
@@ -613,7 +623,6 @@ Test(solve, best_bound_pool_keeps_the_optimum_on_larger_trees)
                       opt);
             surety_result_free(res);
         }
-        surety_result_free(dfs);
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);
     }
@@ -1404,9 +1413,7 @@ Test(solve, separate_searches_reach_the_split_by_its_work)
         surety_solve_options o;
         surety_solve_options_init(&o);
         o.decomp_after = -1;
-        surety_result *ref = solve_ok(md, sc, &o);
-        cr_assert_eq(surety_result_status(ref), SURETY_OPTIMAL);
-        double opt = surety_result_objective(ref);
+        double opt = proven_optimum(md, sc, &o);
         o.decomp_after = 400;
         o.dive_nodes = 8;
         o.node_limit = 200;
@@ -1433,7 +1440,6 @@ Test(solve, separate_searches_reach_the_split_by_its_work)
                       (unsigned long)t, rounds);
         }
         surety_result_free(res);
-        surety_result_free(ref);
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);
     }

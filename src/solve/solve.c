@@ -659,6 +659,7 @@ double surety_result_gap(const surety_result *res)
 {
     return res ? res->gap : INFINITY;
 }
+
 unsigned long long surety_result_knaps(const surety_result *res)
 {
     return res ? res->knaps : 0;
