@@ -644,6 +644,33 @@ static void rule_pairs(surety_solver *s, size_t upto)
     }
 }
 
+/* Shows the probe tables, as the search reads them, to the caller's
+ * watcher (solve.h) after job j's probes. */
+static void watch_probes(const surety_solver *s, size_t j)
+{
+    size_t n = s->n, m = s->m;
+    const solve_dec *d = s->dec;
+    unsigned char *pairs = surety_xcalloc(n * m, 1);
+    double *probed = surety_xmalloc(n * m * (m + 1), sizeof *probed);
+    if (pairs && probed) {
+        for (size_t i = 0; i < m; i++)
+            for (size_t t = 0; t < d->sub[i].nj; t++)
+                pairs[d->sub[i].job[t] * m + i] = 1;
+        for (size_t e = 0; e < n * m; e++)
+            for (long c = -1; c < (long)m; c++)
+                probed[e * (m + 1) + (size_t)(c + 1)] =
+                    surety_dec_probed(s, e / m, e % m, c);
+        surety_dec_round w = {.n = n, .m = m, .N = s->N0, .pairs = pairs,
+                              .lam = s->dec_lam,
+                              .mu = d->best_priced ? s->dec_mu : NULL,
+                              .bound = s->dec_root, .probed = probed,
+                              .v = s->dec_v, .job = j};
+        s->dec_watch(s->dec_watch_ctx, &w);
+    }
+    surety_xfree(pairs);
+    surety_xfree(probed);
+}
+
 /* Probes the pairs of the next job in the branching order: on each
  * resource whose best-round plan holds it, V_i with the job kept out;
  * on the others, V_i with the job forced in; then the pairs of the jobs
@@ -690,6 +717,8 @@ static int probe_next(surety_solver *s, double deadline)
         if (v < tab[j * m + i])
             tab[j * m + i] = v;
     }
+    if (s->dec_watch)
+        watch_probes(s, j);
     rule_pairs(s, d->next);
     return d->next >= s->nb;
 }
