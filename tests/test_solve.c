@@ -1165,6 +1165,10 @@ typedef struct round_ref {
     double red[16], *load;
     const double *mu;
     double best;
+    /* a decision on one job of the set (for the probes): position fix in
+     * job[] always in the set (fix_in) or always out; fix = nj: none */
+    size_t fix;
+    int fix_in;
 } round_ref;
 
 /* Scenarios in which resource e->i with loads ld is overloaded (plan_ok's
@@ -1195,7 +1199,10 @@ static void sub_walk(round_ref *e, size_t t, double v, const double *ld)
             e->best = v - c;
         return;
     }
-    sub_walk(e, t + 1, v, ld);
+    if (e->fix != t || !e->fix_in)
+        sub_walk(e, t + 1, v, ld);
+    if (e->fix == t && !e->fix_in)
+        return;
     size_t N = e->sc->N, n = e->sc->n;
     double *nl = e->load + (t + 1) * N, c;
     for (size_t l = 0; l < N; l++)
@@ -1232,6 +1239,8 @@ static void check_round(void *ctx, const surety_dec_round *r)
     round_ref *e = ctx;
     const surety_model *md = e->md;
     size_t n = md->n, m = md->m, N = e->sc->N;
+    if (r->probed)
+        return; /* the probes after the rounds: checked on their own */
     cr_assert(r->n == n && r->m == m && r->N == N && r->mu);
     if (e->rounds == 0 || memcmp(e->pairs, r->pairs, n * m) != 0) {
         memcpy(e->pairs, r->pairs, n * m);
@@ -1270,6 +1279,7 @@ static void check_round(void *ctx, const surety_dec_round *r)
                 e->job[e->nj++] = j;
             }
         e->mu = r->mu + i * N;
+        e->fix = e->nj;
         e->best = 0; /* the empty set */
         memset(e->load, 0, N * sizeof *e->load);
         sub_walk(e, 0, 0, e->load);
@@ -1384,11 +1394,191 @@ Test(solve, price_rounds_keep_the_bound_their_prices_give)
               "solves) had a material T(mu)", priced, with);
 }
 
+/* The probe tables against enumeration: after job j's probes, every cap
+ * the search would read for a decision on j (surety_dec_probed, through
+ * the watcher) must be at least the best job set of resource i at the
+ * best round's prices that the decision allows: with j in the set when j
+ * is placed in i, without it otherwise (rejected, or placed elsewhere). */
+typedef struct probe_ref {
+    round_ref e;
+    const double *zero; /* N zero prices: probes without scenario prices */
+    long calls, checked;
+    long swap_caught; /* checks the two tables swapped would fail */
+    double short_by;  /* the most a cap fell below its best set */
+    size_t bad_j, bad_i;
+    long bad_c;
+    double over_by;   /* the most a cap rose above it */
+    double part_short; /* the most a best round's part fell below one */
+} probe_ref;
+
+/* Resource i's best job set at the round's prices with job j always in
+ * (in) or always out, by enumeration; -INFINITY when none fits. */
+static double probe_set(round_ref *e, const surety_dec_round *r,
+                        const double *mu, size_t i, size_t j, int in)
+{
+    size_t n = e->md->n, m = e->md->m, N = e->sc->N;
+    e->i = i;
+    e->nj = 0;
+    e->fix = SIZE_MAX;
+    for (size_t q = 0; q < n; q++)
+        if (r->pairs[q * m + i]) {
+            if (q == j)
+                e->fix = e->nj;
+            e->red[e->nj] = job_value(e->sc, q) - r->lam[q];
+            e->job[e->nj++] = q;
+        }
+    cr_assert(e->fix < e->nj, "job %zu was probed on resource %zu, which "
+              "is not among its pairs", j, i);
+    e->fix_in = in;
+    e->mu = mu + i * N;
+    double c;
+    memset(e->load, 0, N * sizeof *e->load);
+    /* the empty set, when it is allowed: its failures are those of no load
+     * (a negative capacity) */
+    e->best = !in && sub_over(e, e->load, &c) <= e->k ? -c : -INFINITY;
+    sub_walk(e, 0, 0, e->load);
+    return e->best;
+}
+
+static void check_probes(void *ctx, const surety_dec_round *r)
+{
+    probe_ref *q = ctx;
+    round_ref *e = &q->e;
+    size_t m = e->md->m;
+    if (!r->probed)
+        return; /* a price round: checked by the test above */
+    cr_assert(r->n == e->md->n && r->m == m && r->N == e->sc->N && r->v);
+    q->calls++;
+    size_t j = r->job;
+    const double *mu = r->mu ? r->mu : q->zero;
+    for (size_t i = 0; i < m; i++) {
+        if (!r->pairs[j * m + i])
+            continue;
+        double vin = probe_set(e, r, mu, i, j, 1);
+        double vout = probe_set(e, r, mu, i, j, 0);
+        double best = vin > vout ? vin : vout;
+        if (best - r->v[i] > q->part_short)
+            q->part_short = best - r->v[i];
+        const double *row = r->probed + (j * m + i) * (m + 1);
+        for (long c = -1; c < (long)m; c++) {
+            double ref = c == (long)i ? vin : vout;
+            double cap = row[c + 1];
+            q->checked++;
+            if (ref - cap > q->short_by) {
+                q->short_by = ref - cap;
+                q->bad_j = j;
+                q->bad_i = i;
+                q->bad_c = c;
+            }
+            if (ref > -INFINITY && cap - ref > q->over_by)
+                q->over_by = cap - ref;
+        }
+        /* read the other way round, the tables would fail here */
+        double gap = 1e-6 * (1 + fabs(best));
+        q->swap_caught += row[i + 1] > -INFINITY && row[0] < vin - gap;
+        q->swap_caught += row[0] > -INFINITY && row[i + 1] < vout - gap;
+    }
+}
+
+/* After the rounds the probes solve one resource's problem again with a
+ * job forced in or kept out, and the search caps a node's part of that
+ * resource by the table its decision on the job selects. Small joint
+ * (with and without scenario prices) and separate models, the probes from
+ * the first dives on: every cap the search would read must be at least
+ * the best job set its decision allows, enumerated at the best round's
+ * prices, and the answer must be the enumerated optimum. The check looks
+ * at the tables' direction itself, so it does not need the probes to
+ * decide the search: enough probes must have lowered a table so far that
+ * the two tables read the other way round would fail it. */
+Test(solve, probe_tables_cap_the_sets_their_decisions_allow)
+{
+    long calls = 0, checked = 0, caught = 0;
+    int solves = 0;
+    for (uint64_t t = 0; t < 48; t++) {
+        int three = t % 4 == 3, sep = t % 3 == 2;
+        solve_gen_params p = {.n = three ? 8 : 9 + t % 2, .m = three ? 3 : 2,
+                              .N = 30 + 10 * (t % 3),
+                              .eps = t % 2 ? 0.2 : 0.3,
+                              .tightness = 0.45 + 0.15 * (double)(t % 3),
+                              .dist = (solve_gen_dist)(t % 3),
+                              .separate = sep,
+                              .p_required = t % 5 == 2 ? 0.15 : 0,
+                              .p_forbid = t % 6 == 1 ? 0.2 : 0,
+                              .p_negative = t % 7 == 3 ? 0.3 : 0,
+                              .seed = mix(31000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        if (t % 4 == 1)
+            solve_gen_one_resource_each(md);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        double scale = 0;
+        for (size_t j = 0; j < md->n; j++)
+            scale += fabs(job_value(sc, j));
+        probe_ref q = {.e = {.md = md, .sc = sc,
+                             .k = surety_allowance(p.eps, p.N),
+                             .tol = 1e-9 * (1 + scale)}};
+        q.e.load = surety_xmalloc((md->n + 1) * sc->N, sizeof *q.e.load);
+        double *zero = surety_xcalloc(md->m * sc->N, sizeof *zero);
+        q.zero = zero;
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = 1;
+        o.lp_after = -1;
+        o.decomp_after = 1;
+        o.decomp_rounds = 1 + (int)(t % 3);
+        o.decomp_jobs_only = t % 6 < 3;
+        surety_result *res = NULL;
+        surety_error err;
+        surety_error_clear(&err);
+        cr_assert_eq(surety_solve_watched(md, sc, &o, check_probes, &q, &res,
+                                          &err),
+                     SURETY_OK, "%s", err.message);
+        check_result(md, sc, res);
+        cr_assert_eq(surety_result_status(res),
+                     feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE);
+        if (feas)
+            cr_assert(fabs(surety_result_objective(res) - bf) <= q.e.tol,
+                      "instance %lu: solver %.12g, enumeration %.12g",
+                      (unsigned long)t, surety_result_objective(res), bf);
+        cr_assert(q.short_by <= q.e.tol,
+                  "instance %lu: the cap of job %zu decided as %ld on "
+                  "resource %zu is %.10g below the best set it allows",
+                  (unsigned long)t, q.bad_j, q.bad_c, q.bad_i, q.short_by);
+        /* and no looser: the probed direction is solved again, and the
+         * other one is the best round's part, whose plan takes that
+         * direction (the sub-solves finish, to the slack of the test
+         * above) */
+        cr_assert(q.over_by <= 1e3 * q.e.tol,
+                  "instance %lu: a cap is %.10g above the best set its "
+                  "decision allows", (unsigned long)t, q.over_by);
+        cr_assert(q.part_short <= q.e.tol,
+                  "instance %lu: the best round's part of a resource is "
+                  "%.10g below one of its job sets", (unsigned long)t,
+                  q.part_short);
+        calls += q.calls;
+        checked += q.checked;
+        caught += q.swap_caught;
+        solves += q.calls > 0;
+        surety_xfree(zero);
+        surety_xfree(q.e.load);
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("%ld probed jobs in %d solves, %ld caps checked; %ld checks "
+                "would fail with the tables swapped", calls, solves, checked,
+                caught);
+    cr_assert(solves >= 16 && caught >= 20,
+              "the probes ran in %d solves and lowered too few tables (%ld "
+              "checks would catch a swap)", solves, caught);
+}
+
 /* Counts the price rounds a solve shows its watcher. */
 static void count_round(void *ctx, const surety_dec_round *r)
 {
-    (void)r;
-    (*(long *)ctx)++;
+    if (!r->probed)
+        (*(long *)ctx)++;
 }
 
 /* Under separate constraints a node's bound evaluates a knapsack per

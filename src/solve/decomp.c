@@ -225,6 +225,7 @@ struct solve_dec {
     surety_plan pstart;  /* a probe's starting plan, as long as sc's rows */
     double *mu;    /* m*N0 scenario prices, or NULL (not priced) */
     double *dj, *dm; /* the last step's directions: n for lam, m*N0 for mu */
+    double *gm;    /* m*N0: this round's subgradient of mu */
     int best_priced; /* the best round had scenario prices */
     double *mtot;  /* N0: the sum over resources of mu */
     size_t *srt;   /* N0: scenarios by mtot, for the top k */
@@ -251,6 +252,7 @@ void surety_decomp_free(surety_solver *s)
     surety_xfree(d->mu);
     surety_xfree(d->dj);
     surety_xfree(d->dm);
+    surety_xfree(d->gm);
     surety_xfree(d->mtot);
     surety_xfree(d->srt);
     surety_xfree(d->zf);
@@ -285,14 +287,15 @@ static int dec_init(surety_solver *s)
         size_t N0 = s->N0;
         d->mu = surety_xcalloc(m * N0, sizeof *d->mu);
         d->dm = surety_xcalloc(m * N0, sizeof *d->dm);
+        d->gm = surety_xmalloc(m * N0, sizeof *d->gm);
         d->mtot = surety_xmalloc(N0, sizeof *d->mtot);
         d->srt = surety_xmalloc(N0, sizeof *d->srt);
         d->zf = surety_xcalloc(m * N0, 1);
         d->nf = surety_xcalloc(N0, sizeof *d->nf);
         if (!s->dec_mu)
             s->dec_mu = surety_xcalloc(m * N0, sizeof *s->dec_mu);
-        if (!d->mu || !d->dm || !d->mtot || !d->srt || !d->zf || !d->nf ||
-            !s->dec_mu)
+        if (!d->mu || !d->dm || !d->gm || !d->mtot || !d->srt || !d->zf ||
+            !d->nf || !s->dec_mu)
             return -1;
     }
     size_t most = 1;
@@ -428,6 +431,28 @@ static void watch_round(const surety_solver *s, double L)
     surety_xfree(pairs);
 }
 
+/* The step's direction, deflected by the last one where they point apart
+ * (Camerini, Fratta & Maffioli 1975, "On improving relaxation methods by
+ * modified gradient techniques", cited from memory):
+ *     d = g + beta d', beta = max(0, -1.5 g.d' / |d'|^2).
+ * g (the subgradient) and dir (d', the last direction) both become d;
+ * returns |d|^2. */
+static double deflect(double *g, double *dir, size_t len)
+{
+    double gd = 0, dd = 0;
+    for (size_t t = 0; t < len; t++) {
+        gd += g[t] * dir[t];
+        dd += dir[t] * dir[t];
+    }
+    double beta = dd > 0 && gd < 0 ? -1.5 * gd / dd : 0, nn = 0;
+    for (size_t t = 0; t < len; t++) {
+        dir[t] = g[t] + beta * dir[t];
+        g[t] = dir[t];
+        nn += dir[t] * dir[t];
+    }
+    return nn;
+}
+
 /* One subgradient round. Returns 0 when more rounds may help, 1 when they
  * will not (converged, or the most rounds: 60 by default), 2 when the work
  * should stop (a limit stopped a sub-solve, or the bound no longer beats
@@ -519,49 +544,19 @@ static int price_round(surety_solver *s, double deadline)
         for (size_t i = 0; i < m; i++)
             for (size_t l = 0; l < N0; l++) {
                 double g = d->mtot[l] - d->zf[i * N0 + l];
+                d->gm[i * N0 + l] = g;
                 nmu += g * g;
             }
     }
     if (norm <= 0 && nmu <= 0)
         return 1; /* a zero subgradient (exact when every sub-solve
                    * finished): no prices do better */
-    /* the step's direction, deflected by the last one where they point
-     * apart (Camerini, Fratta & Maffioli 1975, "On improving relaxation
-     * methods by modified gradient techniques", cited from memory):
-     * d = g + beta d', beta = max(0, -1.5 g.d' / |d'|^2), per block */
-    {
-        double gd = 0, dd = 0;
-        for (size_t j = 0; j < n; j++)
-            if (s->state[j] == SURETY_JOB_FREE) {
-                gd += xs[j] * d->dj[j];
-                dd += d->dj[j] * d->dj[j];
-            }
-        double beta = dd > 0 && gd < 0 ? -1.5 * gd / dd : 0;
-        norm = 0;
-        for (size_t j = 0; j < n; j++)
-            if (s->state[j] == SURETY_JOB_FREE) {
-                xs[j] += beta * d->dj[j];
-                d->dj[j] = xs[j];
-                norm += xs[j] * xs[j];
-            }
-    }
-    if (priced) {
-        double gd = 0, dd = 0;
-        for (size_t i = 0; i < m; i++)
-            for (size_t l = 0; l < N0; l++) {
-                double g = d->mtot[l] - d->zf[i * N0 + l];
-                gd += g * d->dm[i * N0 + l];
-                dd += d->dm[i * N0 + l] * d->dm[i * N0 + l];
-            }
-        double beta = dd > 0 && gd < 0 ? -1.5 * gd / dd : 0;
-        nmu = 0;
-        for (size_t i = 0; i < m; i++)
-            for (size_t l = 0; l < N0; l++) {
-                double *e = &d->dm[i * N0 + l];
-                *e = d->mtot[l] - d->zf[i * N0 + l] + beta * *e;
-                nmu += *e * *e;
-            }
-    }
+    /* each block's direction deflected by its last one (deflect); a job
+     * decided at the root has g = 0 and direction 0 (xs counts only the
+     * sub-solves' jobs, the root's open ones) */
+    norm = deflect(xs, d->dj, n);
+    if (priced)
+        nmu = deflect(d->gm, d->dm, m * N0);
     /* Polyak's step, the predicted decrease split between the two blocks
      * of prices when both move (there are m*N0 scenario prices against n
      * job prices: one step over both would leave the job prices still) */
@@ -649,6 +644,33 @@ static void rule_pairs(surety_solver *s, size_t upto)
     }
 }
 
+/* Shows the probe tables, as the search reads them, to the caller's
+ * watcher (solve.h) after job j's probes. */
+static void watch_probes(const surety_solver *s, size_t j)
+{
+    size_t n = s->n, m = s->m;
+    const solve_dec *d = s->dec;
+    unsigned char *pairs = surety_xcalloc(n * m, 1);
+    double *probed = surety_xmalloc(n * m * (m + 1), sizeof *probed);
+    if (pairs && probed) {
+        for (size_t i = 0; i < m; i++)
+            for (size_t t = 0; t < d->sub[i].nj; t++)
+                pairs[d->sub[i].job[t] * m + i] = 1;
+        for (size_t e = 0; e < n * m; e++)
+            for (long c = -1; c < (long)m; c++)
+                probed[e * (m + 1) + (size_t)(c + 1)] =
+                    surety_dec_probed(s, e / m, e % m, c);
+        surety_dec_round w = {.n = n, .m = m, .N = s->N0, .pairs = pairs,
+                              .lam = s->dec_lam,
+                              .mu = d->best_priced ? s->dec_mu : NULL,
+                              .bound = s->dec_root, .probed = probed,
+                              .v = s->dec_v, .job = j};
+        s->dec_watch(s->dec_watch_ctx, &w);
+    }
+    surety_xfree(pairs);
+    surety_xfree(probed);
+}
+
 /* Probes the pairs of the next job in the branching order: on each
  * resource whose best-round plan holds it, V_i with the job kept out;
  * on the others, V_i with the job forced in; then the pairs of the jobs
@@ -695,6 +717,8 @@ static int probe_next(surety_solver *s, double deadline)
         if (v < tab[j * m + i])
             tab[j * m + i] = v;
     }
+    if (s->dec_watch)
+        watch_probes(s, j);
     rule_pairs(s, d->next);
     return d->next >= s->nb;
 }

@@ -61,6 +61,14 @@ typedef struct surety_dec_round {
     const double *lam; /* n job prices; 0 for a job decided at the root */
     const double *mu;  /* m*N scenario prices (mu[i*N + l]), or NULL */
     double bound;      /* the round's value */
+    /* NULL during the rounds. After them, once per probed job, with the
+     * best round's prices and value above: probed[(j*m + i)*(m + 1) +
+     * c + 1] is what surety_dec_probed gives for every job j, resource i
+     * and decision c (-1: rejected), the cap on resource i's part that
+     * deciding j as c selects; v[i] is the best round's part of i. */
+    const double *probed;
+    const double *v;
+    size_t job;        /* the job just probed */
 } surety_dec_round;
 typedef void (*surety_dec_watch)(void *ctx, const surety_dec_round *r);
 
