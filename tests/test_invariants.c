@@ -111,3 +111,25 @@ Test(invariants, price_rounds_bound_every_plan_they_cover)
         run_prices(&p, 4, 0, 1, 3000, 30, t % 4 != 3, t % 2 == 0);
     }
 }
+
+/* The decomposition's caps at every node against the node's best
+ * completion on the root's pairs (tree.c, chk_cap: the same solver
+ * without the decomposition), whatever the cutoff. Ten-job models, one or
+ * two price rounds so that the probes come early; with each job in one
+ * resource under separate constraints the decomposition is exact, so a
+ * cap from the wrong probe table falls below the completion. */
+Test(invariants, split_caps_bound_every_completion)
+{
+    for (uint64_t t = 0; t < 40; t++) {
+        solve_gen_params p = {.n = 9 + t % 2, .m = 2 + t % 2,
+                              .N = 40 + 20 * (t % 3),
+                              .eps = t % 3 ? 0.2 : 0.3,
+                              .tightness = 0.4 + 0.1 * (double)(t % 3),
+                              .dist = (solve_gen_dist)(t % 3),
+                              .separate = t % 2 == 1,
+                              .seed = 0x5eed2000 + t};
+        int single = t % 3 != 2;
+        run_prices(&p, 1 + (long)(t % 4 / 2) * 6, 0, 1, 0,
+                   single ? 30 : 1 + (int)(t % 2), t % 4 < 2, single);
+    }
+}

@@ -247,6 +247,68 @@ static double knap_lagr(const surety_solver *s, size_t i, size_t l, double *x)
     return v;
 }
 
+#ifdef SURETY_CHECK_INVARIANTS
+#include <stdio.h>
+/* Built only for tests/test_invariants.c: every per-resource value in use
+ * (kept from an ancestor or not) is at least the knapsack it bounds, and
+ * kp is the path's sum. Aborts otherwise. */
+static void chk_lagr(const surety_solver *s)
+{
+    size_t N = s->N, m = s->m;
+    double tol = 1e-9 * (s->pscale + 1);
+    for (size_t i = 0; i < m; i++) {
+        size_t g = s->separate ? i : 0;
+        if (s->klv) {
+            double p = 0;
+            for (size_t j = 0; j < s->n; j++)
+                if (s->state[j] == (long)i)
+                    p += s->rp[j];
+            if (fabs(p - s->kp[i]) > tol) {
+                fprintf(stderr, "invariant: kp of resource %zu is %.12g, "
+                        "the path's %.12g\n", i, s->kp[i], p);
+                abort();
+            }
+        }
+        for (size_t l = 0; l < N; l++) {
+            if (s->dead[g * N + l] != SURETY_LIVE)
+                continue;
+            double v = knap_lagr(s, i, l, NULL);
+            if (s->kl[i * N + l] < v - tol) {
+                fprintf(stderr, "invariant: resource %zu scenario %zu: "
+                        "value %.12g below its knapsack %.12g\n", i, l,
+                        s->kl[i * N + l], v);
+                abort();
+            }
+        }
+    }
+}
+#endif
+
+/* Frees the kept per-resource values (each node then recomputes them). */
+static void lagr_keep_free(surety_solver *s)
+{
+    surety_xfree(s->klv);
+    surety_xfree(s->kp);
+    surety_xfree(s->klt_e);
+    surety_xfree(s->klt_v);
+    s->klv = s->kp = s->klt_v = NULL;
+    s->klt_e = NULL;
+    s->klt_len = 0;
+}
+
+/* Sets resource i's kept value of scenario l (kl plus kp_i), keeping the
+ * old one on the trail when the node has a parent to return to. */
+static void klv_set(surety_solver *s, size_t row, size_t i, size_t l,
+                    double v)
+{
+    size_t e = i * s->N + l;
+    if (row > 0) {
+        s->klt_e[s->klt_len] = (uint32_t)e;
+        s->klt_v[s->klt_len++] = s->klv[e];
+    }
+    s->klv[e] = v + s->kp[i];
+}
+
 /* Per-resource quantiles of the Lagrangian bound. Why it holds: for prices
  * lam >= 0 and y_j = sum_i x_ij <= 1,
  *   sum_j p_j y_j <= sum_j lam_j + sum_i sum_j (p_j - lam_j)^+ x_ij,
@@ -256,10 +318,28 @@ static double knap_lagr(const surety_solver *s, size_t i, size_t l, double *x)
  * i holds, its reduced profit is at most the knapsack value kl_il, hence at
  * most the (b+1)-th smallest kl_il (METHODS.md s.7 rule 3 per resource;
  * Lagrangian relaxation of the assignment rows as for the multiple
- * knapsack problem, Martello & Toth's bound). Returns sum_i q_i. */
-static double lagr_quantiles(surety_solver *s)
+ * knapsack problem, Martello & Toth's bound). Returns sum_i q_i.
+ *
+ * Any upper bounds on the kl_il give an upper bound on each quantile, so
+ * values computed at an ancestor serve, corrected by kp_i: kl_il is the
+ * LP optimum of a knapsack over the open jobs possible in i that fit the
+ * residual capacity alone, and a child's item set and capacity are within
+ * its parent's, so its value is at most the parent's, and at most the
+ * parent's less rp_j when the child places job j in i (the child's
+ * solution plus j is feasible for the parent: a scenario where j no
+ * longer fits is overloaded, dead for resource i's group). Hence
+ * kl_il <= klv_il - kp_i, klv kept as the computed value plus the kp_i of
+ * its node. Each node recomputes only the scenarios whose kept value is
+ * at most the kept quantile (the ones that can lower it), and every 32nd
+ * evaluation, and the root, all of them, as the joint bound's window
+ * does. Measured under separate constraints (bench/README.md,
+ * "Findings"). */
+static double lagr_quantiles(surety_solver *s, size_t row)
 {
     size_t N = s->N, m = s->m, k = s->k;
+    int all = !s->klv || row == 0 || (s->kevals++ & 31) == 0;
+    /* kept values went through other sums: rounding slack */
+    double slack = 1e-12 * (s->pscale + 1);
     double qsum = 0;
     for (size_t i = 0; i < m; i++) {
         size_t g = s->separate ? i : 0;
@@ -271,25 +351,53 @@ static double lagr_quantiles(surety_solver *s)
             if (s->state[j] == SURETY_JOB_FREE && s->pxcur[j * m + i])
                 unc += s->rp[j];
         }
-        size_t c = 0, livew = 0;
+        size_t b = k - s->dead_w[g];
+        size_t c = 0, livew = 0, nk = 0;
+        double over = INFINITY; /* recompute the values at most this */
+        if (!all) {
+            const double *kv = s->klv + i * N;
+            double kp = s->kp[i];
+            for (size_t l = 0; l < N; l++) {
+                if (dead[l] != SURETY_LIVE)
+                    continue;
+                double v = kv[l] - kp + slack;
+                kl[l] = v;
+                s->ub[c] = v;
+                s->ubw[c++] = s->cnt[l];
+                livew += s->cnt[l];
+            }
+            /* with no more than b live, the quantile is unc anyway */
+            over = livew > b ? select_weighted(s->ub, s->ubw, c, b)
+                             : -INFINITY;
+        }
+        c = 0;
+        livew = 0;
         for (size_t l = 0; l < N; l++) {
             if (dead[l] != SURETY_LIVE)
                 continue;
-            double v = knap_lagr(s, i, l, NULL);
-            kl[l] = v;
-            s->ub[c] = v;
-            s->ubw[c] = s->cnt[l];
+            if (all || kl[l] <= over) {
+                double v = knap_lagr(s, i, l, NULL);
+                kl[l] = v;
+                if (s->klv)
+                    klv_set(s, row, i, l, v);
+                nk++;
+            }
+            s->ub[c] = kl[l];
+            s->ubw[c++] = s->cnt[l];
             livew += s->cnt[l];
-            c++;
         }
-        size_t b = k - s->dead_w[g];
         double q = livew > b ? select_weighted(s->ub, s->ubw, c, b) : unc;
         if (q > unc)
             q = unc;
         s->ql[i] = q;
-        s->knaps += c;
+        /* the work: the knapsacks, and the scan of the kept values at
+         * about an eighth of one each (measured at N=1000) */
+        s->knaps += nk + (all ? 0 : c / 8);
         qsum += q;
     }
+#ifdef SURETY_CHECK_INVARIANTS
+    chk_lagr(s);
+#endif
     return qsum;
 }
 
@@ -662,7 +770,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
     double lf = 0, lsum = 0, bound = base + unc;
     if (s->use_lagr) {
         lf = lam_free(s);
-        lsum = lagr_quantiles(s);
+        lsum = lagr_quantiles(s, row);
         if (base + lf + lsum < bound)
             bound = base + lf + lsum;
     }
@@ -848,6 +956,21 @@ int surety_bound_init(surety_solver *s)
         surety_xfree(g);
         return -1;
     }
+    /* the per-resource values kept down the tree, when their trail takes
+     * at most about 256 MB (else each node recomputes them all) */
+    size_t mn = m * N, depth = s->nb + 1;
+    if (mn <= UINT32_MAX && depth * mn <= ((size_t)256 << 20) / 12) {
+        s->klv = surety_xmalloc(mn, sizeof *s->klv);
+        s->kp = surety_xcalloc(m, sizeof *s->kp);
+        s->klt_e = surety_xmalloc(depth * mn, sizeof *s->klt_e);
+        s->klt_v = surety_xmalloc(depth * mn, sizeof *s->klt_v);
+        if (!s->klv || !s->kp || !s->klt_e || !s->klt_v) {
+            lagr_keep_free(s);
+        } else {
+            for (size_t e = 0; e < mn; e++)
+                s->klv[e] = INFINITY;
+        }
+    }
     possible_pairs(s, 0);
     double bestL = INFINITY, theta = 1;
     int stall = 0;
@@ -857,7 +980,7 @@ int surety_bound_init(surety_solver *s)
         lagr_prepare(s);
         for (size_t j = 0; j < n; j++)
             g[j] = s->cand[j] ? 1 : 0;
-        lagr_quantiles(s);
+        lagr_quantiles(s, 0);
         /* subgradient: 1 - sum over resources of the fraction of j taken
          * in that resource's critical scenario */
         double lsum;
@@ -926,6 +1049,7 @@ void surety_bound_free(surety_solver *s)
     free(s->chk_ub);
     s->chk_ub = NULL;
 #endif
+    lagr_keep_free(s);
     surety_xfree(s->lam);
     surety_xfree(s->rp);
     surety_xfree(s->leff);

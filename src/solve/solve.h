@@ -85,6 +85,8 @@ typedef struct solve_open {
 typedef struct solve_frame {
     size_t trail_mark;   /* trail length before this depth's changes */
     size_t ubt_mark;     /* the same for the trail of scenario bounds */
+    size_t klt_mark;     /* the same for the per-resource values */
+    double kp;           /* kp of the resource placed in, before */
     long res;            /* resource whose load column was saved, or -1 */
     double ltot;         /* that resource's total load before */
     size_t job;          /* job decided at this depth */
@@ -195,7 +197,19 @@ struct surety_solver {
     double *rp;          /* n reduced profits max(p_j - lam_j, 0) */
     uint32_t *leff;      /* N*nl: per scenario, jobs with rp > 0 by rp/w */
     size_t nl;
-    double *kl;          /* m*N per-resource knapsack values */
+    double *kl;          /* m*N per-resource knapsack values (upper bounds
+                          * where kept from an ancestor: lagr_quantiles) */
+    /* the per-resource values kept down the tree (bound.c, lagr_quantiles),
+     * or klv NULL when they would take too much memory (then every node
+     * evaluates them all): klv holds a value plus kp_i of the node that
+     * computed it, kp the reduced profits of the jobs the path placed in
+     * each resource, and the trail the values a node overwrote */
+    double *klv;         /* m*N */
+    double *kp;          /* m */
+    uint32_t *klt_e;     /* (nb+1)*m*N trail: entry i*N + l */
+    double *klt_v;       /* (nb+1)*m*N trail: its value before */
+    size_t klt_len;
+    unsigned long kevals; /* per-resource evaluations (refresh schedule) */
     double *ql;          /* m per-resource quantiles */
     double *lx;          /* n scratch: fractions taken */
     int use_lagr;        /* evaluate the per-resource bound at nodes */

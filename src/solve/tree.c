@@ -75,6 +75,7 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
     solve_frame *f = &s->frames[d];
     f->trail_mark = s->trail_len;
     f->ubt_mark = s->ubt_len;
+    f->klt_mark = s->klt_len;
     f->res = c;
     f->job = j;
     f->fixed_profit = s->fixed_profit;
@@ -103,6 +104,10 @@ static int apply(surety_solver *s, size_t d, size_t j, long c)
         return 1;
     }
     size_t i = (size_t)c, g = group_of(s, i);
+    if (s->klv) {
+        f->kp = s->kp[i];
+        s->kp[i] += s->rp[j];
+    }
     s->fixed_profit += s->p[j];
     s->nin[i]++;
     f->ltot = s->ltot[i];
@@ -126,12 +131,18 @@ static void undo(surety_solver *s, size_t d)
         s->ubt_len--;
         s->ubv[s->ubt_l[s->ubt_len]] = s->ubt_v[s->ubt_len];
     }
+    while (s->klt_len > f->klt_mark) {
+        s->klt_len--;
+        s->klv[s->klt_e[s->klt_len]] = s->klt_v[s->klt_len];
+    }
     memcpy(s->dead_w, s->saved_dead_w + d * G, G * sizeof *s->dead_w);
     if (f->res >= 0) {
         memcpy(s->load + (size_t)f->res * N, s->saved_load + d * N,
                N * sizeof *s->load);
         s->nin[f->res]--;
         s->ltot[f->res] = f->ltot;
+        if (s->klv)
+            s->kp[f->res] = f->kp;
     }
     if (s->dec_c)
         memcpy(s->dec_c, s->dec_saved_c + d * s->m, s->m * sizeof *s->dec_c);
@@ -358,6 +369,61 @@ static double dec_cap(const surety_solver *s, double b)
     return b < c ? b : c;
 }
 
+#ifdef SURETY_CHECK_INVARIANTS
+#include <stdio.h>
+#include <stdlib.h>
+/* Built only for tests/test_invariants.c: a node's decomposition cap
+ * against its best completion on the pairs possible at the root (the
+ * node's decisions kept), found by this solver without the
+ * decomposition. The rounds and the probes bound every plan on those
+ * pairs, whatever the cutoff, so the cap must not be below it; small
+ * models only. Aborts. */
+static void chk_cap(const surety_solver *s, double cap)
+{
+    size_t n = s->n, m = s->m;
+    if (n > 12 || !(cap < INFINITY))
+        return;
+    const surety_model *full = s->model;
+    surety_job *jobs = surety_xcalloc(n, sizeof *jobs);
+    unsigned char *al = surety_xcalloc(n * m, 1);
+    if (!jobs || !al) {
+        surety_xfree(jobs);
+        surety_xfree(al);
+        return;
+    }
+    for (size_t j = 0; j < n; j++) {
+        long st = s->state[j];
+        jobs[j] = full->jobs[j];
+        jobs[j].allowed = al + j * m;
+        for (size_t i = 0; i < m; i++)
+            al[j * m + i] = st == SURETY_JOB_FREE
+                                ? full->jobs[j].allowed[i] && s->pxs[j * m + i]
+                                : st == (long)i;
+        if (st >= 0)
+            jobs[j].required = 1;
+    }
+    surety_model copy = *full;
+    copy.jobs = jobs;
+    surety_solve_options o;
+    surety_solve_options_init(&o);
+    o.decomp_after = -1;
+    o.scenario_cost = s->opt->scenario_cost;
+    surety_result *r = NULL;
+    if (surety_solve(&copy, s->sc, &o, &r, NULL) == SURETY_OK &&
+        surety_result_status(r) == SURETY_OPTIMAL) {
+        double best = surety_result_objective(r);
+        if (cap < best - 1e-9 * (s->pscale + 1)) {
+            fprintf(stderr, "invariant: a node's decomposition cap %.12g "
+                    "is below its best completion %.12g\n", cap, best);
+            abort();
+        }
+    }
+    surety_result_free(r);
+    surety_xfree(jobs);
+    surety_xfree(al);
+}
+#endif
+
 typedef struct child {
     long c;
     double b;
@@ -456,7 +522,12 @@ static void dive(surety_solver *s, size_t d, double node_bound)
         }
         s->open_bound[d] = t + 1 < nc ? node_bound : -INFINITY;
         double cap;
-        if (apply(s, d, j, ch[t].c) && (cap = dec_cap(s, INFINITY)) > cut) {
+        int ok = apply(s, d, j, ch[t].c);
+#ifdef SURETY_CHECK_INVARIANTS
+        if (ok)
+            chk_cap(s, dec_cap(s, INFINITY));
+#endif
+        if (ok && (cap = dec_cap(s, INFINITY)) > cut) {
             double b = surety_bound_node(s, cut, d + 1);
             if (b > cap)
                 b = cap;
