@@ -146,6 +146,8 @@ static double knap_joint(const surety_solver *s, size_t l)
      * from the node's short list of open candidates */
     double hsum = 0, psum = 0;
     unsigned char *fits = s->kfit; /* open jobs: fits a resource alone */
+    const unsigned char *rk = s->erank ? s->erank + l * n : NULL;
+    uint64_t bits = 0; /* with rk: the fitting jobs' positions in eff */
     for (size_t t = 0; t < s->nfree; t++) {
         size_t j = s->freec[t];
         double wj = row[j], fit = rmax;
@@ -166,6 +168,8 @@ static double knap_joint(const surety_solver *s, size_t l)
         if (fits[j]) {
             hsum += wj;
             psum += s->p[j];
+            if (rk)
+                bits |= (uint64_t)1 << rk[j];
         }
     }
     if (hsum <= agg)
@@ -179,10 +183,22 @@ static double knap_joint(const surety_solver *s, size_t l)
     const uint32_t *e = s->eff + l * s->ncand;
     double v = 0, c = agg, elast = INFINITY;
     long brk = -1;
-    for (size_t t = 0; t < s->ncand; t++) {
-        uint32_t j = e[t];
-        if (!fits[j])
-            continue; /* decided, or fits no resource on its own here */
+    for (size_t t = 0;;) {
+        /* the next fitting job by efficiency (the others are decided, or
+         * fit no resource on its own here) */
+        uint32_t j;
+        if (rk) {
+            if (!bits)
+                break;
+            j = e[__builtin_ctzll(bits)];
+            bits &= bits - 1;
+        } else {
+            while (t < s->ncand && !fits[e[t]])
+                t++;
+            if (t == s->ncand)
+                break;
+            j = e[t++];
+        }
         double wj = row[j];
         if (brk < 0) {
             if (wj <= c) {

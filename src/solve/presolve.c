@@ -571,6 +571,17 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
         eff_ctx ctx = {s->p, s->w + l * n};
         qsort_r(e, c, sizeof *e, cmp_eff, &ctx);
     }
+    /* and each candidate's position there, so that a node's knapsack
+     * walks only the jobs that still fit, as bits of one word */
+    if (s->ncand <= 64) {
+        s->erank = surety_xcalloc(s->N * (n ? n : 1), 1);
+        if (!s->erank)
+            goto oom;
+        for (size_t l = 0; l < s->N; l++)
+            for (size_t t = 0; t < s->ncand; t++)
+                s->erank[l * n + s->eff[l * s->ncand + t]] =
+                    (unsigned char)t;
+    }
     /* per scenario, the jobs to decide by hours ascending: a node finds
      * the lightest open job of a scenario in a few steps, not O(n) */
     s->light = surety_xmalloc(s->N * (s->nb ? s->nb : 1), sizeof *s->light);
@@ -627,6 +638,7 @@ void surety_presolve_free(surety_solver *s)
     surety_xfree(s->order);
     surety_xfree(s->bkey);
     surety_xfree(s->eff);
+    surety_xfree(s->erank);
     surety_xfree(s->light);
     surety_xfree(s->rclass);
 }

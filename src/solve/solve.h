@@ -129,6 +129,8 @@ struct surety_solver {
     size_t nb;
     size_t ncand;        /* candidate jobs */
     uint32_t *eff;       /* N*ncand: per scenario, candidates by p/w desc */
+    unsigned char *erank; /* N*n: a candidate's position in its scenario's
+                           * eff, or NULL (more than 64 candidates) */
     /* (job, resource) pairs still possible at a node: a pair that alone
      * overloads more live scenarios than the node may still fail is out
      * for the whole subtree (bound.c, possible_pairs) */
