@@ -10,7 +10,10 @@
  *  - the per-scenario bounds a node starts from against a per-depth copy
  *    (the undo trail must bring its parent's values back exactly);
  *  - the decomposition prices of the rejected jobs and the probed caps
- *    of the path's decisions against a recount.
+ *    of the path's decisions against a recount;
+ *  - the per-resource values in use against their knapsacks, and each
+ *    per-resource quantile against the job sets it bounds, enumerated
+ *    (bound.c, chk_lagr and chk_quant).
  * These are internal checks: an optimum that survives a broken trail is
  * still wrong on other instances, and the optimum tests (test_solve.c,
  * against CBC, GLPK and enumeration) do not always see it. The plans are

@@ -298,6 +298,71 @@ static void chk_lagr(const surety_solver *s)
         }
     }
 }
+
+/* The job sets of resource i that extend one of loads ld (N) and reduced
+ * profit v with the open jobs job[t..nj), while they overload at most
+ * weight b of the live scenarios (knap_lagr's capacity test); the best
+ * profit into *best. */
+static void chk_sets(const surety_solver *s, size_t i, const uint32_t *job,
+                     size_t t, size_t nj, double v, const double *ld,
+                     double *lds, size_t b, double *best)
+{
+    size_t N = s->N, n = s->n;
+    const unsigned char *dead = s->dead + (s->separate ? i : 0) * N;
+    if (v > *best)
+        *best = v;
+    for (; t < nj; t++) {
+        double *nl = lds + t * N;
+        size_t over = 0;
+        for (size_t l = 0; l < N; l++) {
+            nl[l] = ld[l] + s->w[l * n + job[t]];
+            if (dead[l] == SURETY_LIVE &&
+                nl[l] > s->cap_hi[i] - s->load[i * N + l])
+                over += s->cnt[l];
+        }
+        if (over <= b)
+            chk_sets(s, i, job, t + 1, nj, v + s->rp[job[t]], nl, lds, b,
+                     best);
+    }
+}
+
+/* Built only for tests/test_invariants.c: each per-resource quantile q_i
+ * against the job sets it bounds, by enumeration (nodes with at most 12
+ * open jobs possible in i): a set of open jobs possible in i that
+ * overloads live scenarios of weight at most b (the allowance left) fits
+ * one of the b+1 lightest-valued ones, whose knapsack holds it, so its
+ * reduced profit is at most q_i. Aborts otherwise. */
+static void chk_quant(const surety_solver *s)
+{
+    size_t N = s->N, m = s->m, n = s->n;
+    uint32_t job[12];
+    double *ld = surety_xcalloc(N * 13, sizeof *ld);
+    if (!ld)
+        return;
+    for (size_t i = 0; i < m; i++) {
+        size_t nj = 0;
+        for (size_t j = 0; j < n && nj <= 12; j++)
+            if (s->state[j] == SURETY_JOB_FREE && s->pxcur[j * m + i] &&
+                s->rp[j] > 0) {
+                if (nj < 12)
+                    job[nj] = (uint32_t)j;
+                nj++;
+            }
+        size_t g = s->separate ? i : 0;
+        if (nj > 12 || s->dead_w[g] > s->k)
+            continue;
+        double best = 0;
+        chk_sets(s, i, job, 0, nj, 0, ld, ld + N, s->k - s->dead_w[g],
+                 &best);
+        if (best > s->ql[i] + 1e-9 * (s->pscale + 1)) {
+            fprintf(stderr, "invariant: resource %zu's quantile %.12g is "
+                    "below a job set it bounds, %.12g\n", i, s->ql[i],
+                    best);
+            abort();
+        }
+    }
+    surety_xfree(ld);
+}
 #endif
 
 /* Frees the kept per-resource values (each node then recomputes them). */
@@ -413,6 +478,7 @@ static double lagr_quantiles(surety_solver *s, size_t row)
     }
 #ifdef SURETY_CHECK_INVARIANTS
     chk_lagr(s);
+    chk_quant(s);
 #endif
     return qsum;
 }
