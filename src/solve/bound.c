@@ -451,21 +451,29 @@ static double lagr_quantiles(surety_solver *s, size_t row)
             over = livew > b ? select_weighted(s->ub, s->ubw, c, b)
                              : -INFINITY;
         }
+        /* Without `all` the quantile is among the recomputed scenarios:
+         * their values are at most `over`, the others' kept values above
+         * it, and those at most `over` weigh more than b (it is their
+         * quantile); so only they enter the second selection. */
+        size_t live = c; /* without `all`: the live ones, counted above */
         c = 0;
-        livew = 0;
+        if (all)
+            livew = 0;
         for (size_t l = 0; l < N; l++) {
             if (dead[l] != SURETY_LIVE)
                 continue;
-            if (all || kl[l] <= over) {
+            int fresh = all || kl[l] <= over;
+            if (fresh) {
                 double v = knap_lagr(s, i, l, NULL);
                 kl[l] = v;
                 if (s->klv)
                     klv_set(s, row, i, l, v);
                 nk++;
+                s->ub[c] = v;
+                s->ubw[c++] = s->cnt[l];
             }
-            s->ub[c] = kl[l];
-            s->ubw[c++] = s->cnt[l];
-            livew += s->cnt[l];
+            if (all)
+                livew += s->cnt[l];
         }
         double q = livew > b ? select_weighted(s->ub, s->ubw, c, b) : unc;
         if (q > unc)
@@ -473,7 +481,7 @@ static double lagr_quantiles(surety_solver *s, size_t row)
         s->ql[i] = q;
         /* the work: the knapsacks, and the scan of the kept values at
          * about an eighth of one each (measured at N=1000) */
-        s->knaps += nk + (all ? 0 : c / 8);
+        s->knaps += nk + (all ? 0 : live / 8);
         qsum += q;
     }
 #ifdef SURETY_CHECK_INVARIANTS
