@@ -366,50 +366,22 @@ static double top_k(const surety_solver *s, solve_dec *d)
 #ifdef SURETY_CHECK_INVARIANTS
 #include <stdio.h>
 /* A round's bound against the best plan it covers: the plans whose pairs
- * are all possible at the root (row 0 of pxs), found by this solver
- * without the decomposition (a path tested against enumeration and CBC on
- * its own). Prices of any value must leave the bound at least that plan's
- * value. Aborts otherwise. */
+ * are all possible at the root (surety_chk_completion at the root state).
+ * Prices of any value must leave the bound at least that plan's value.
+ * Aborts otherwise. */
 static void chk_round(const surety_solver *s, double L)
 {
-    size_t n = s->n, m = s->m;
-    const surety_model *full = s->model;
-    if (n > 20)
+    if (s->n > 20)
         return; /* a full solve per round: small models only */
-    for (size_t j = 0; j < n; j++)
+    for (size_t j = 0; j < s->n; j++)
         if (s->state[j] != SURETY_JOB_FREE)
             return; /* the rounds bound the root's completions */
-    surety_job *jobs = surety_xcalloc(n, sizeof *jobs);
-    unsigned char *al = surety_xcalloc(n * m, 1);
-    if (!jobs || !al) {
-        surety_xfree(jobs);
-        surety_xfree(al);
-        return;
+    double best = surety_chk_completion(s);
+    if (L < best - 1e-9 * (s->pscale + 1)) {
+        fprintf(stderr, "invariant: a price round's bound %.12g is below "
+                "a plan it covers, %.12g\n", L, best);
+        abort();
     }
-    for (size_t j = 0; j < n; j++) {
-        jobs[j] = full->jobs[j];
-        jobs[j].allowed = al + j * m;
-        for (size_t i = 0; i < m; i++)
-            al[j * m + i] = full->jobs[j].allowed[i] && s->pxs[j * m + i];
-    }
-    surety_model copy = *full;
-    copy.jobs = jobs;
-    surety_solve_options o;
-    surety_solve_options_init(&o);
-    o.decomp_after = -1;
-    surety_result *r = NULL;
-    if (surety_solve(&copy, s->sc, &o, &r, NULL) == SURETY_OK &&
-        surety_result_status(r) == SURETY_OPTIMAL) {
-        double best = surety_result_objective(r);
-        if (L < best - 1e-9 * (s->pscale + 1)) {
-            fprintf(stderr, "invariant: a price round's bound %.12g is below "
-                    "a plan it covers, %.12g\n", L, best);
-            abort();
-        }
-    }
-    surety_result_free(r);
-    surety_xfree(jobs);
-    surety_xfree(al);
 }
 #endif
 

@@ -619,6 +619,45 @@ surety_code surety_solve_inner(const surety_model *model,
     return solve_run(model, sc, opt, light, NULL, NULL, out, err);
 }
 
+#ifdef SURETY_CHECK_INVARIANTS
+double surety_chk_completion(const surety_solver *s)
+{
+    size_t n = s->n, m = s->m;
+    const surety_model *full = s->model;
+    surety_job *jobs = surety_xcalloc(n, sizeof *jobs);
+    unsigned char *al = surety_xcalloc(n * m, 1);
+    double best = NAN;
+    if (!jobs || !al)
+        goto done;
+    for (size_t j = 0; j < n; j++) {
+        long st = s->state[j];
+        jobs[j] = full->jobs[j];
+        jobs[j].allowed = al + j * m;
+        for (size_t i = 0; i < m; i++)
+            al[j * m + i] = st == SURETY_JOB_FREE
+                                ? full->jobs[j].allowed[i] && s->pxs[j * m + i]
+                                : st == (long)i;
+        if (st >= 0)
+            jobs[j].required = 1;
+    }
+    surety_model copy = *full;
+    copy.jobs = jobs;
+    surety_solve_options o;
+    surety_solve_options_init(&o);
+    o.decomp_after = -1;
+    o.scenario_cost = s->opt->scenario_cost;
+    surety_result *r = NULL;
+    if (surety_solve(&copy, s->sc, &o, &r, NULL) == SURETY_OK &&
+        surety_result_status(r) == SURETY_OPTIMAL)
+        best = surety_result_objective(r);
+    surety_result_free(r);
+done:
+    surety_xfree(jobs);
+    surety_xfree(al);
+    return best;
+}
+#endif
+
 surety_code surety_solve_watched(const surety_model *model,
                                  const surety_scenarios *sc,
                                  const surety_solve_options *opt,

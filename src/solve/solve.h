@@ -354,6 +354,15 @@ surety_code surety_solve_watched(const surety_model *model,
                                  surety_dec_watch watch, void *watch_ctx,
                                  surety_result **out, surety_error *err);
 
+#ifdef SURETY_CHECK_INVARIANTS
+/* solve.c, invariant build only: the best completion of the current node
+ * on the pairs possible at the root (row 0 of pxs; decided jobs kept
+ * where they are), found by this solver without the decomposition (a
+ * path tested against enumeration and CBC on its own); NAN when that
+ * solve does not prove an optimum. */
+double surety_chk_completion(const surety_solver *s);
+#endif
+
 /* solve.c: the scenario knapsacks a solve's node bounds evaluated (the
  * work unit of tree.c's decomposition share). */
 unsigned long long surety_result_knaps(const surety_result *res);

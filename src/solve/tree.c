@@ -373,54 +373,20 @@ static double dec_cap(const surety_solver *s, double b)
 #include <stdio.h>
 #include <stdlib.h>
 /* Built only for tests/test_invariants.c: a node's decomposition cap
- * against its best completion on the pairs possible at the root (the
- * node's decisions kept), found by this solver without the
- * decomposition. The rounds and the probes bound every plan on those
- * pairs, whatever the cutoff, so the cap must not be below it; small
- * models only. Aborts. */
+ * against its best completion on the pairs possible at the root
+ * (surety_chk_completion). The rounds and the probes bound every plan on
+ * those pairs, whatever the cutoff, so the cap must not be below it;
+ * small models only. Aborts. */
 static void chk_cap(const surety_solver *s, double cap)
 {
-    size_t n = s->n, m = s->m;
-    if (n > 12 || !(cap < INFINITY))
+    if (s->n > 12 || !(cap < INFINITY))
         return;
-    const surety_model *full = s->model;
-    surety_job *jobs = surety_xcalloc(n, sizeof *jobs);
-    unsigned char *al = surety_xcalloc(n * m, 1);
-    if (!jobs || !al) {
-        surety_xfree(jobs);
-        surety_xfree(al);
-        return;
+    double best = surety_chk_completion(s);
+    if (cap < best - 1e-9 * (s->pscale + 1)) {
+        fprintf(stderr, "invariant: a node's decomposition cap %.12g "
+                "is below its best completion %.12g\n", cap, best);
+        abort();
     }
-    for (size_t j = 0; j < n; j++) {
-        long st = s->state[j];
-        jobs[j] = full->jobs[j];
-        jobs[j].allowed = al + j * m;
-        for (size_t i = 0; i < m; i++)
-            al[j * m + i] = st == SURETY_JOB_FREE
-                                ? full->jobs[j].allowed[i] && s->pxs[j * m + i]
-                                : st == (long)i;
-        if (st >= 0)
-            jobs[j].required = 1;
-    }
-    surety_model copy = *full;
-    copy.jobs = jobs;
-    surety_solve_options o;
-    surety_solve_options_init(&o);
-    o.decomp_after = -1;
-    o.scenario_cost = s->opt->scenario_cost;
-    surety_result *r = NULL;
-    if (surety_solve(&copy, s->sc, &o, &r, NULL) == SURETY_OK &&
-        surety_result_status(r) == SURETY_OPTIMAL) {
-        double best = surety_result_objective(r);
-        if (cap < best - 1e-9 * (s->pscale + 1)) {
-            fprintf(stderr, "invariant: a node's decomposition cap %.12g "
-                    "is below its best completion %.12g\n", cap, best);
-            abort();
-        }
-    }
-    surety_result_free(r);
-    surety_xfree(jobs);
-    surety_xfree(al);
 }
 #endif
 
