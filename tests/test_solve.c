@@ -1234,6 +1234,15 @@ static double pair_optimum(const surety_model *md, const surety_scenarios *sc,
     return best;
 }
 
+/* The summed absolute mean profits: the scale of the tolerances. */
+static double profit_scale(const surety_scenarios *sc)
+{
+    double scale = 0;
+    for (size_t j = 0; j < sc->n; j++)
+        scale += fabs(job_value(sc, j));
+    return scale;
+}
+
 static void check_round(void *ctx, const surety_dec_round *r)
 {
     round_ref *e = ctx;
@@ -1332,9 +1341,7 @@ Test(solve, price_rounds_keep_the_bound_their_prices_give)
         surety_scenarios *sc = solve_gen_scenarios(md, &p);
         double bf = 0;
         int feas = brute_force(md, sc, &bf);
-        double scale = 0;
-        for (size_t j = 0; j < md->n; j++)
-            scale += fabs(job_value(sc, j));
+        double scale = profit_scale(sc);
         round_ref e = {.md = md, .sc = sc, .k = surety_allowance(p.eps, p.N),
                        .opt = feas ? bf : 0, .tol = 1e-9 * (1 + scale)};
         e.load = surety_xmalloc((md->n + 1) * sc->N, sizeof *e.load);
@@ -1512,9 +1519,7 @@ Test(solve, probe_tables_cap_the_sets_their_decisions_allow)
         surety_scenarios *sc = solve_gen_scenarios(md, &p);
         double bf = 0;
         int feas = brute_force(md, sc, &bf);
-        double scale = 0;
-        for (size_t j = 0; j < md->n; j++)
-            scale += fabs(job_value(sc, j));
+        double scale = profit_scale(sc);
         probe_ref q = {.e = {.md = md, .sc = sc,
                              .k = surety_allowance(p.eps, p.N),
                              .tol = 1e-9 * (1 + scale)}};
