@@ -372,7 +372,8 @@ static void lagr_keep_free(surety_solver *s)
     surety_xfree(s->kp);
     surety_xfree(s->klt_e);
     surety_xfree(s->klt_v);
-    s->klv = s->kp = s->klt_v = NULL;
+    surety_xfree(s->qk);
+    s->klv = s->kp = s->klt_v = s->qk = NULL;
     s->klt_e = NULL;
     s->klt_len = 0;
 }
@@ -419,6 +420,8 @@ static double lagr_quantiles(surety_solver *s, size_t row)
 {
     size_t N = s->N, m = s->m, k = s->k;
     int all = !s->klv || row == 0 || (s->kevals++ & 31) == 0;
+    /* the parent was evaluated on this path, its values are the kept ones */
+    int parent = !all && row > 0 && row != s->restart_row;
     /* kept values went through other sums: rounding slack */
     double slack = 1e-12 * (s->pscale + 1);
     double qsum = 0;
@@ -443,19 +446,32 @@ static double lagr_quantiles(surety_solver *s, size_t row)
                     continue;
                 double v = kv[l] - kp + slack;
                 kl[l] = v;
-                s->ub[c] = v;
+                if (!parent)
+                    s->ub[c] = v;
                 s->ubw[c++] = s->cnt[l];
                 livew += s->cnt[l];
             }
-            /* with no more than b live, the quantile is unc anyway */
-            over = livew > b ? select_weighted(s->ub, s->ubw, c, b)
-                             : -INFINITY;
+            /* with no more than b live, the quantile is unc anyway; with
+             * its parent just evaluated, a node's kept values are the
+             * parent's final ones shifted alike by kp, less the newly
+             * dead scenarios, whose weight also leaves the allowance, so
+             * the kept quantile is at most the parent's, shifted; else
+             * it is selected */
+            if (livew <= b)
+                over = -INFINITY;
+            else if (parent)
+                over = s->qk[(row - 1) * m + i] - kp + slack;
+            else
+                over = select_weighted(s->ub, s->ubw, c, b);
         }
         /* Without `all` the quantile is among the recomputed scenarios:
          * their values are at most `over`, the others' kept values above
-         * it, and those at most `over` weigh more than b (it is their
-         * quantile); so only they enter the second selection. */
+         * it. Any set of them that weighs more than b gives a quantile
+         * at least the one over all live scenarios, so a valid one; those
+         * at most the kept quantile do (that is its definition), and so
+         * do those at most a larger `over`. */
         size_t live = c; /* without `all`: the live ones, counted above */
+        size_t wfresh = 0;
         c = 0;
         if (all)
             livew = 0;
@@ -471,11 +487,27 @@ static double lagr_quantiles(surety_solver *s, size_t row)
                 nk++;
                 s->ub[c] = v;
                 s->ubw[c++] = s->cnt[l];
+                wfresh += s->cnt[l];
             }
             if (all)
                 livew += s->cnt[l];
         }
-        double q = livew > b ? select_weighted(s->ub, s->ubw, c, b) : unc;
+        double q = INFINITY;
+        if (livew > b) {
+            if (wfresh <= b) {
+                /* too few recomputed (rounding in the parent's
+                 * threshold): the quantile over every live value */
+                c = 0;
+                for (size_t l = 0; l < N; l++)
+                    if (dead[l] == SURETY_LIVE) {
+                        s->ub[c] = kl[l];
+                        s->ubw[c++] = s->cnt[l];
+                    }
+            }
+            q = select_weighted(s->ub, s->ubw, c, b);
+        }
+        if (s->qk)
+            s->qk[row * m + i] = q + s->kp[i];
         if (q > unc)
             q = unc;
         s->ql[i] = q;
@@ -1054,7 +1086,8 @@ int surety_bound_init(surety_solver *s)
         s->kp = surety_xcalloc(m, sizeof *s->kp);
         s->klt_e = surety_xmalloc(depth * mn, sizeof *s->klt_e);
         s->klt_v = surety_xmalloc(depth * mn, sizeof *s->klt_v);
-        if (!s->klv || !s->kp || !s->klt_e || !s->klt_v) {
+        s->qk = surety_xmalloc(depth * m, sizeof *s->qk);
+        if (!s->klv || !s->kp || !s->klt_e || !s->klt_v || !s->qk) {
             lagr_keep_free(s);
         } else {
             for (size_t e = 0; e < mn; e++)

@@ -208,6 +208,8 @@ struct surety_solver {
      * each resource, and the trail the values a node overwrote */
     double *klv;         /* m*N */
     double *kp;          /* m */
+    double *qk;          /* (nb+1)*m: each row's per-resource quantile plus
+                          * its kp, the next row's threshold */
     uint32_t *klt_e;     /* (nb+1)*m*N trail: entry i*N + l */
     double *klt_v;       /* (nb+1)*m*N trail: its value before */
     size_t klt_len;
