@@ -446,9 +446,11 @@ static double lagr_quantiles(surety_solver *s, size_t row)
                     continue;
                 double v = kv[l] - kp + slack;
                 kl[l] = v;
-                if (!parent)
+                if (!parent) { /* for the selection below */
                     s->ub[c] = v;
-                s->ubw[c++] = s->cnt[l];
+                    s->ubw[c] = s->cnt[l];
+                }
+                c++;
                 livew += s->cnt[l];
             }
             /* with no more than b live, the quantile is unc anyway; with

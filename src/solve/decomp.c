@@ -385,18 +385,29 @@ static void chk_round(const surety_solver *s, double L)
 }
 #endif
 
+/* The pairs the one-resource problems hold (n*m flags), for a watcher;
+ * NULL when out of memory. */
+static unsigned char *sub_pairs(const surety_solver *s)
+{
+    size_t m = s->m;
+    const solve_dec *d = s->dec;
+    unsigned char *pairs = surety_xcalloc(s->n * m, 1);
+    if (pairs)
+        for (size_t i = 0; i < m; i++)
+            for (size_t t = 0; t < d->sub[i].nj; t++)
+                pairs[d->sub[i].job[t] * m + i] = 1;
+    return pairs;
+}
+
 /* Shows a round to the caller's watcher (solve.h): its prices and value,
  * and the pairs its one-resource problems hold. */
 static void watch_round(const surety_solver *s, double L)
 {
     size_t n = s->n, m = s->m;
     const solve_dec *d = s->dec;
-    unsigned char *pairs = surety_xcalloc(n * m, 1);
+    unsigned char *pairs = sub_pairs(s);
     if (!pairs)
         return;
-    for (size_t i = 0; i < m; i++)
-        for (size_t t = 0; t < d->sub[i].nj; t++)
-            pairs[d->sub[i].job[t] * m + i] = 1;
     surety_dec_round w = {.n = n, .m = m, .N = s->N0, .pairs = pairs,
                           .lam = d->lam, .mu = d->mu, .bound = L};
     s->dec_watch(s->dec_watch_ctx, &w);
@@ -622,12 +633,9 @@ static void watch_probes(const surety_solver *s, size_t j)
 {
     size_t n = s->n, m = s->m;
     const solve_dec *d = s->dec;
-    unsigned char *pairs = surety_xcalloc(n * m, 1);
+    unsigned char *pairs = sub_pairs(s);
     double *probed = surety_xmalloc(n * m * (m + 1), sizeof *probed);
     if (pairs && probed) {
-        for (size_t i = 0; i < m; i++)
-            for (size_t t = 0; t < d->sub[i].nj; t++)
-                pairs[d->sub[i].job[t] * m + i] = 1;
         for (size_t e = 0; e < n * m; e++)
             for (long c = -1; c < (long)m; c++)
                 probed[e * (m + 1) + (size_t)(c + 1)] =
