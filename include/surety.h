@@ -352,10 +352,18 @@ typedef struct surety_solve_options {
      * at the time limit). After its price rounds it
      * probes each (job, resource) pair once: the resource's problem with
      * the job forced in, or kept out when its best plan holds it, which
-     * caps every node that takes that decision. */
+     * caps every node that takes that decision. From then on each node
+     * restored from the pool solves each resource's problem with all of
+     * its decisions at once, which caps its subtree, as long as those
+     * solves have taken no more scenario knapsacks than the tree since the
+     * first round. */
     long decomp_after;
     /* most price rounds before the probes; 0 or less: the default (60) */
     int decomp_rounds;
+    /* non-zero: after the probes, no restored node solves its own
+     * resources' problems (the decomposition bounds the root and its
+     * probes only); for comparisons, default 0 */
+    int decomp_root_only;
     /* non-zero: the decomposition prices only the rows "each job once".
      * By default, with the joint constraint, it also prices each
      * resource's failures scenario by scenario and adds the k largest

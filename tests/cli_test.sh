@@ -84,6 +84,17 @@ expect 4 "two price rounds" -- "$surety" solve "$src/instances/workshops-30.json
 has "$tmp/err" ", 2 price rounds," "--split-rounds caps the rounds"
 has "$tmp/err" "decomposition probes:" "the probes follow the capped rounds"
 expect 1 "bad --split-rounds" -- "$surety" solve "$tut" --split-rounds 0
+# after the probes, nodes taken up again solve the split with all their
+# placements, unless --split-root-only; the same optimum either way
+d20=$src/instances/bench/diff-n20-m3-N100-e050-t05-s1.json
+expect 0 "split at restored nodes" -- "$surety" solve "$d20" --split-after 1 --split-rounds 2 --json --progress
+has "$tmp/err" "decomposition at restored nodes:" "restored nodes solve the split by default"
+grep '"objective"' "$tmp/out" >"$tmp/obj1"
+expect 0 "split at the root only" -- "$surety" solve "$d20" --split-after 1 --split-rounds 2 --split-root-only --json --progress
+if grep -qF "decomposition at restored nodes:" "$tmp/err"; then
+    failed=$((failed + 1)); echo "FAIL: --split-root-only still split restored nodes"
+else passed=$((passed + 1)); fi
+has "$tmp/out" "$(cat "$tmp/obj1")" "same objective with the split at the root only"
 expect 0 "gap tolerance" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --gap 0.3 --quiet
 has "$tmp/out" "optimal within the --gap asked for" "a tolerated gap is spelled out next to the status"
 expect 0 "two threads asked for" -- "$surety" solve "$tut" --threads 2 --quiet

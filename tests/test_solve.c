@@ -855,6 +855,18 @@ static void catch_two(void *ctx, surety_log_level level, const char *line)
     catch_line(&g->b, level, line);
 }
 
+typedef struct three_logs {
+    lp_log a, b, c;
+} three_logs;
+
+static void catch_three(void *ctx, surety_log_level level, const char *line)
+{
+    three_logs *g = ctx;
+    catch_line(&g->a, level, line);
+    catch_line(&g->b, level, line);
+    catch_line(&g->c, level, line);
+}
+
 /* Price rounds from the first node on, with dives of one node (every node
  * goes through the pool, where the rounds run): every answer must be the
  * enumerated one, joint and separate, with required jobs and forbidden
@@ -898,15 +910,18 @@ Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
 /* The probes after the price rounds (one or two rounds here, so they come
  * soon): each pair's one-resource problem with the job forced in or kept
  * out caps every node that takes that decision, and pairs whose cap alone
- * cannot beat the incumbent leave the root's row. On ten-job instances
- * with trees large enough for the probes to run, every answer must be the
- * enumerated one; enough solves must probe, and some must rule pairs out
- * (the log lines say so). Some instances hold a job that no resource
- * takes by the exact count, though the search's margin lets it in. */
+ * cannot beat the incumbent leave the root's row. After them each node
+ * restored from the pool may solve the resources' problems with all of
+ * its decisions, which caps its subtree. On ten-job instances with trees
+ * large enough for the probes to run, every answer must be the enumerated
+ * one; enough solves must probe, some must rule pairs out, and restored
+ * nodes must solve their own problems and prune by them (the log lines
+ * say so). Some instances hold a job that no resource takes by the exact
+ * count, though the search's margin lets it in. */
 Test(solve, decomposition_probes_keep_the_enumerated_optimum)
 {
-    int probed = 0;
-    double ruled = 0;
+    int probed = 0, restored = 0;
+    double ruled = 0, pruned = 0;
     for (uint64_t t = 0; t < 160; t++) {
         /* two mixes: high risk with ample room (more probe caps bite),
          * and lower risk with tighter room (more pairs ruled out); the
@@ -948,20 +963,29 @@ Test(solve, decomposition_probes_keep_the_enumerated_optimum)
         o.decomp_rounds = 1 + (int)(t % 2);
         o.decomp_jobs_only = t % 4 < 2;
         o.lp_after = -1;
-        two_logs g = {{"decomposition probes: %lf", 0, 0},
-                      {"decomposition probes: %*f one-resource solves with "
-                       "one job forced in or kept out, %lf", 0, 0}};
-        o.log = catch_two;
+        three_logs g = {{"decomposition probes: %lf", 0, 0},
+                        {"decomposition probes: %*f one-resource solves with "
+                         "one job forced in or kept out, %lf", 0, 0},
+                        {"decomposition at restored nodes: %*f one-resource "
+                         "solves, %lf", 0, 0}};
+        o.log = catch_three;
         o.log_ctx = &g;
         expect_enumerated(md, sc, &o, &p, t, feas, bf, "probes, ");
         probed += g.a.seen;
         ruled += g.b.seen ? g.b.value : 0;
+        restored += g.c.seen;
+        pruned += g.c.seen ? g.c.value : 0;
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);
     }
-    cr_log_info("probed %d solves, ruled out %g pairs", probed, ruled);
+    cr_log_info("probed %d solves, ruled out %g pairs; restored nodes "
+                "solved in %d, %g pruned", probed, ruled, restored, pruned);
     cr_assert(probed >= 40, "the probes ran in only %d solves", probed);
     cr_assert(ruled >= 4, "probes ruled out only %g pairs", ruled);
+    cr_assert(restored >= 5, "restored nodes solved in only %d solves",
+              restored);
+    cr_assert(pruned >= 50, "restored nodes' solves pruned only %g",
+              pruned);
 }
 
 /* Searches stopped by node and time limits soon after the rounds begin

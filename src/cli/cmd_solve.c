@@ -16,7 +16,7 @@ static const char solve_help[] =
     "                    [--time-limit SEC] [--gap G] [--node-limit K]\n"
     "                    [--lp-after K|never] [--split-after K|never]\n"
     "                    [--split-prices jobs|scenarios] [--split-rounds K]\n"
-    "                    [--keep-dominated]\n"
+    "                    [--split-root-only] [--keep-dominated]\n"
     "                    [--threads T] [--progress] [--quiet] [--json]\n"
     "\n"
     "Finds the most profitable plan that fits all but at most floor(eps*N) of\n"
@@ -47,6 +47,10 @@ static const char solve_help[] =
     "                    are tried (default 60; fewer if the prices settle);\n"
     "                    more tighten the bound on long runs of thousands of\n"
     "                    scenarios, and slow short ones\n"
+    "  --split-root-only after the placements are tried, bound the open nodes\n"
+    "                    by them alone; by default each node taken up again\n"
+    "                    from the best bound solves the split with all of its\n"
+    "                    placements (for comparisons)\n"
     "  --keep-dominated  search every distinct scenario, also those that every\n"
     "                    feasible plan fits (set aside by default; same answer,\n"
     "                    for comparisons)\n"
@@ -271,6 +275,7 @@ int cmd_solve(int argc, char **argv)
         {"keep-dominated", no_argument, 0, 'D'},
         {"split-prices", required_argument, 0, 'P'},
         {"split-rounds", required_argument, 0, 'R'},
+        {"split-root-only", no_argument, 0, 'O'},
         {"progress", no_argument, 0, 'p'},
         {"quiet", no_argument, 0, 'q'},
         {"json", no_argument, 0, 'j'},
@@ -293,6 +298,7 @@ int cmd_solve(int argc, char **argv)
         case 'j': json = 1; break;
         case 'p': progress = 1; break;
         case 'D': sopt.keep_dominated = 1; break;
+        case 'O': sopt.decomp_root_only = 1; break;
         case 'q': progress = 0; break;
         case 't':
             if (cli_parse_double(optarg, &sopt.time_limit_s) || sopt.time_limit_s <= 0)

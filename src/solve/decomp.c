@@ -68,6 +68,12 @@
  * along the path, the smallest such value per resource, so a node's cap
  * is the sum of prices plus those values. A pair whose cap alone cannot
  * beat the incumbent leaves the root's row.
+ *
+ * After the probes, a node restored from the pool may solve V_i with all
+ * of its decisions at once (surety_decomp_node, at the same prices): the
+ * problem of a branch-and-bound node of the Lagrangian dual with the
+ * root's multipliers, which caps the node's whole subtree. The probes
+ * give only the smallest single decision's value.
  * SPDX-License-Identifier: MIT */
 #include <math.h>
 #include <stdlib.h>
@@ -701,6 +707,60 @@ static int probe_next(surety_solver *s, double deadline)
         watch_probes(s, j);
     rule_pairs(s, d->next);
     return d->next >= s->nb;
+}
+
+/* The restored node's own V_i: every resource's problem with all of the
+ * node's decisions at once (its jobs in i forced in, its jobs placed
+ * elsewhere or rejected kept out), at the best round's prices. Each is
+ * at most the smallest probed value of those decisions (its job sets are
+ * among each probe's), and bounds resource i's part of every completion
+ * of the node as the probes do (tree.c, dec_cap); it lowers dec_c, which
+ * the node's subtree inherits. Returns 0, or 2 when a limit stopped a
+ * sub-solve (dec_c then keeps what was solved). */
+int surety_decomp_node(surety_solver *s, double deadline)
+{
+    size_t m = s->m;
+    solve_dec *d = s->dec;
+    if (!d || !s->dec_c)
+        return 2;
+    const unsigned char *px = s->pxs; /* row 0: the root's */
+    for (size_t i = 0; i < m; i++) {
+        dec_sub *u = &d->sub[i];
+        d->pstart.n = u->nj;
+        for (size_t t = 0; t < u->nj; t++) {
+            size_t j = u->job[t];
+            long st = s->state[j];
+            d->pstart.resource[t] = u->in_best[t] ? 0 : -1;
+            if (st == (long)i) {
+                u->jobs[t].required = 1;
+                d->pstart.resource[t] = 0;
+            } else if (st != SURETY_JOB_FREE || !px[j * m + i]) {
+                u->jobs[t].allowed = &u->zero;
+                d->pstart.resource[t] = -1;
+            }
+        }
+        double v = sub_solve(s, u, &d->sc, s->dec_lam,
+                             d->best_priced ? s->dec_mu + i * s->N0 : NULL,
+                             deadline, &d->pstart, NULL, NULL, &s->dec_nodes,
+                             &s->dec_knaps);
+        for (size_t t = 0; t < u->nj; t++) {
+            u->jobs[t].allowed = &u->one;
+            u->jobs[t].required = 0;
+        }
+        if (!(v < INFINITY))
+            return 2;
+        s->dec_nsolves++;
+        if (v < s->dec_c[i])
+            s->dec_c[i] = v;
+        /* the node's cap (tree.c, dec_cap) already prunes it: the other
+         * resources' solves would change nothing */
+        double cap = s->dec_lsum - s->rej_lam;
+        for (size_t h = 0; h < m; h++)
+            cap += s->dec_c[h];
+        if (!(cap > surety_cutoff(s)))
+            break;
+    }
+    return 0;
 }
 
 void surety_decomp_rule(surety_solver *s)

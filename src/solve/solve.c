@@ -46,6 +46,7 @@ void surety_solve_options_init(surety_solve_options *opt)
     opt->lp_after = 0;
     opt->decomp_after = 0;
     opt->decomp_rounds = 0;
+    opt->decomp_root_only = 0;
     opt->lp_restored = 0;
 }
 
@@ -493,6 +494,7 @@ static surety_code solve_run(const surety_model *model,
         {
             s.lp_after = opt->lp_after == 0 ? 65536 : opt->lp_after;
             s.dec_after = opt->decomp_after == 0 ? 65536 : opt->decomp_after;
+            s.dec_nodes_on = !opt->decomp_root_only;
             int lr = s.lp_after > 0 && opt->dive_nodes >= 0
                          ? surety_lpb_init(&s)
                          : 1;
@@ -598,6 +600,11 @@ static surety_code solve_run(const surety_model *model,
               "decomposition probes: %ld one-resource solves with one job "
               "forced in or kept out, %ld pairs ruled out",
               s.dec_probes, s.dec_ruled);
+    if (s.dec_nsolves)
+        logf_(&s, SURETY_LOG_INFO,
+              "decomposition at restored nodes: %ld one-resource solves, "
+              "%ld nodes pruned",
+              s.dec_nsolves, s.dec_npruned);
     logf_(&s, SURETY_LOG_INFO,
           "solve: %s (%s), objective %.6f, bound %.6f, %ld nodes, %.2f s",
           surety_status_name(res->status), surety_stop_name(res->stop),

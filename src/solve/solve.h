@@ -287,6 +287,9 @@ struct surety_solver {
      * smallest entry its decisions select, saved per depth */
     double *dec_vin, *dec_vout, *dec_c, *dec_saved_c;
     long dec_probes, dec_ruled; /* one-resource probes; pairs ruled out */
+    long dec_nsolves;    /* one-resource solves at restored nodes */
+    long dec_npruned;    /* restored nodes those solves pruned */
+    int dec_nodes_on;    /* restored nodes solve their own V_i (tree.c) */
     double dec_rule_inc; /* the incumbent when pairs were last ruled out */
     surety_dec_watch dec_watch; /* called after each price round, or NULL */
     void *dec_watch_ctx;
@@ -394,6 +397,7 @@ int surety_decomp_round(surety_solver *s, double deadline);
  * (once the probes have run) leaves no plan above the cutoff; for when the
  * incumbent has improved. */
 void surety_decomp_rule(surety_solver *s);
+int surety_decomp_node(surety_solver *s, double deadline);
 void surety_decomp_free(surety_solver *s);
 
 /* lpbound.c: the LP relaxation of the strengthened formulation as a
