@@ -797,6 +797,27 @@ static int cmp_cq(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
+/* The c entries by ascending v, equal values in their order (as glibc's
+ * qsort, a merge sort, leaves them). Most calls sort about k+1 entries,
+ * where an insertion sort with the comparison inline beats the library's
+ * calls through a pointer. */
+static void sort_cq(solve_cq *a, size_t c)
+{
+    if (c > 64) {
+        qsort(a, c, sizeof *a, cmp_cq);
+        return;
+    }
+    for (size_t t = 1; t < c; t++) {
+        solve_cq x = a[t];
+        size_t u = t;
+        while (u > 0 && a[u - 1].v > x.v) {
+            a[u] = a[u - 1];
+            u--;
+        }
+        a[u] = x;
+    }
+}
+
 /* The node's bound with scenario costs (surety_solve_options.scenario_cost,
  * joint constraint), from `bound`, a valid bound on the mean profit of the
  * completions that beat the cutoff, and cap, the profit of every open job.
@@ -837,7 +858,7 @@ again:
         s->cq[c].mu = s->mu[l];
         s->cq[c++].w = s->cnt[l];
     }
-    qsort(s->cq, c, sizeof *s->cq, cmp_cq);
+    sort_cq(s->cq, c);
     best = -INFINITY;
     paid = 0;
     wsum = 0;
