@@ -6,6 +6,7 @@
 usage (from the repository root, with the Python that has numpy and scipy):
     nice -n 15 /usr/bin/python3 bench/fuzz_solve.py --surety build-fuzz/surety \\
         --count 500 --seed 1 [--minutes 40] [--large] [--keep DIR] [--regress DIR] [--verbose]
+        [--surety-args '--split-after 1 --split-rounds 2']
 
 Every instance is a pure function of (--seed, instance index): rerun one with
 `--seed S --first I --count 1 --keep DIR` to get its model file and the commands' files.
@@ -44,6 +45,7 @@ import math
 import os
 import random
 import re
+import shlex
 import shutil
 import subprocess
 import sys
@@ -556,12 +558,18 @@ def highs_plain(inst, limit):
 # ---------------------------------------------------------------------------------------------
 # One instance
 
+# further options of every `surety solve` (--surety-args), e.g. "--split-after 1
+# --split-rounds 2", which brings the decomposition's rounds, probes and restored nodes' own
+# solves into trees of a few hundred nodes
+SURETY_ARGS = []
+
+
 def solve_surety(surety, path, extra, work):
     plan_path = os.path.join(work, "plan.json")
     if os.path.exists(plan_path):
         os.unlink(plan_path)
     rc, out, err = run([surety, "solve", path, "--json", "--quiet", "--threads", "1",
-                        "-o", plan_path] + extra, timeout=600)
+                        "-o", plan_path] + SURETY_ARGS + extra, timeout=600)
     if rc not in (0, 4) or not out.strip():
         raise RuntimeError("surety solve exit %d: %s" % (rc, err.strip()[:300]))
     return json.loads(out), plan_path
@@ -855,7 +863,11 @@ def main(argv):
                     help="where minimised disagreements are written")
     ap.add_argument("--no-minimise", action="store_true")
     ap.add_argument("--verbose", action="store_true", help="one line per instance")
+    ap.add_argument("--surety-args", default="", metavar="ARGS",
+                    help="further options of every surety solve, e.g. '--split-after 1 "
+                         "--split-rounds 2'")
     a = ap.parse_args(argv)
+    SURETY_ARGS[:] = shlex.split(a.surety_args)
     surety = os.path.abspath(a.surety)
     if not os.access(surety, os.X_OK) or not shutil.which("cbc"):
         print("fuzz_solve.py: needs %s and cbc" % surety, file=sys.stderr)
