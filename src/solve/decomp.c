@@ -657,6 +657,15 @@ static void watch_probes(const surety_solver *s, size_t j)
     surety_xfree(probed);
 }
 
+/* The best round's plan of sub u as the start of a probe or a node's
+ * solve (d->pstart), before their own decisions are put in. */
+static void best_start(solve_dec *d, const dec_sub *u)
+{
+    d->pstart.n = u->nj;
+    for (size_t t = 0; t < u->nj; t++)
+        d->pstart.resource[t] = u->in_best[t] ? 0 : -1;
+}
+
 /* Probes the pairs of the next job in the branching order: on each
  * resource whose best-round plan holds it, V_i with the job kept out;
  * on the others, V_i with the job forced in; then the pairs of the jobs
@@ -678,9 +687,7 @@ static int probe_next(surety_solver *s, double deadline)
             q++;
         if (q == u->nj)
             continue; /* j may not enter i */
-        d->pstart.n = u->nj;
-        for (size_t t = 0; t < u->nj; t++)
-            d->pstart.resource[t] = u->in_best[t] ? 0 : -1;
+        best_start(d, u);
         int out = u->in_best[q];
         if (out) {
             u->jobs[q].allowed = &u->zero;
@@ -709,57 +716,47 @@ static int probe_next(surety_solver *s, double deadline)
     return d->next >= s->nb;
 }
 
-/* The restored node's own V_i: every resource's problem with all of the
- * node's decisions at once (its jobs in i forced in, its jobs placed
- * elsewhere or rejected kept out), at the best round's prices. Each is
- * at most the smallest probed value of those decisions (its job sets are
+/* The restored node's own V_i for resource i: its problem with all of
+ * the node's decisions at once (its jobs in i forced in, its jobs placed
+ * elsewhere or rejected kept out), at the best round's prices. It is at
+ * most the smallest probed value of those decisions (its job sets are
  * among each probe's), and bounds resource i's part of every completion
- * of the node as the probes do (tree.c, dec_cap); it lowers dec_c, which
- * the node's subtree inherits. Returns 0, or 2 when a limit stopped a
- * sub-solve (dec_c then keeps what was solved). */
-int surety_decomp_node(surety_solver *s, double deadline)
+ * of the node as the probes do (tree.c, dec_cap); it lowers dec_c[i],
+ * which the node's subtree inherits. Returns 0, or 2 when a limit stopped
+ * the sub-solve (dec_c[i] then stays). */
+int surety_decomp_node(surety_solver *s, size_t i, double deadline)
 {
     size_t m = s->m;
     solve_dec *d = s->dec;
     if (!d || !s->dec_c)
         return 2;
     const unsigned char *px = s->pxs; /* row 0: the root's */
-    for (size_t i = 0; i < m; i++) {
-        dec_sub *u = &d->sub[i];
-        d->pstart.n = u->nj;
-        for (size_t t = 0; t < u->nj; t++) {
-            size_t j = u->job[t];
-            long st = s->state[j];
-            d->pstart.resource[t] = u->in_best[t] ? 0 : -1;
-            if (st == (long)i) {
-                u->jobs[t].required = 1;
-                d->pstart.resource[t] = 0;
-            } else if (st != SURETY_JOB_FREE || !px[j * m + i]) {
-                u->jobs[t].allowed = &u->zero;
-                d->pstart.resource[t] = -1;
-            }
+    dec_sub *u = &d->sub[i];
+    best_start(d, u);
+    for (size_t t = 0; t < u->nj; t++) {
+        size_t j = u->job[t];
+        long st = s->state[j];
+        if (st == (long)i) {
+            u->jobs[t].required = 1;
+            d->pstart.resource[t] = 0;
+        } else if (st != SURETY_JOB_FREE || !px[j * m + i]) {
+            u->jobs[t].allowed = &u->zero;
+            d->pstart.resource[t] = -1;
         }
-        double v = sub_solve(s, u, &d->sc, s->dec_lam,
-                             d->best_priced ? s->dec_mu + i * s->N0 : NULL,
-                             deadline, &d->pstart, NULL, NULL, &s->dec_nodes,
-                             &s->dec_knaps);
-        for (size_t t = 0; t < u->nj; t++) {
-            u->jobs[t].allowed = &u->one;
-            u->jobs[t].required = 0;
-        }
-        if (!(v < INFINITY))
-            return 2;
-        s->dec_nsolves++;
-        if (v < s->dec_c[i])
-            s->dec_c[i] = v;
-        /* the node's cap (tree.c, dec_cap) already prunes it: the other
-         * resources' solves would change nothing */
-        double cap = s->dec_lsum - s->rej_lam;
-        for (size_t h = 0; h < m; h++)
-            cap += s->dec_c[h];
-        if (!(cap > surety_cutoff(s)))
-            break;
     }
+    double v = sub_solve(s, u, &d->sc, s->dec_lam,
+                         d->best_priced ? s->dec_mu + i * s->N0 : NULL,
+                         deadline, &d->pstart, NULL, NULL, &s->dec_nodes,
+                         &s->dec_knaps);
+    for (size_t t = 0; t < u->nj; t++) {
+        u->jobs[t].allowed = &u->one;
+        u->jobs[t].required = 0;
+    }
+    if (!(v < INFINITY))
+        return 2;
+    s->dec_nsolves++;
+    if (v < s->dec_c[i])
+        s->dec_c[i] = v;
     return 0;
 }
 

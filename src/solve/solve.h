@@ -397,7 +397,9 @@ int surety_decomp_round(surety_solver *s, double deadline);
  * (once the probes have run) leaves no plan above the cutoff; for when the
  * incumbent has improved. */
 void surety_decomp_rule(surety_solver *s);
-int surety_decomp_node(surety_solver *s, double deadline);
+/* decomp.c: resource i's problem at a restored node with all of its
+ * decisions, which lowers dec_c[i]; 0, or 2 when a limit stopped it. */
+int surety_decomp_node(surety_solver *s, size_t i, double deadline);
 void surety_decomp_free(surety_solver *s);
 
 /* lpbound.c: the LP relaxation of the strengthened formulation as a
