@@ -314,7 +314,14 @@ typedef struct surety_solve_options {
     double time_limit_s;     /* wall-clock limit; <= 0: none */
     double gap;              /* relative gap tolerance; default 1e-9 */
     long node_limit;         /* <= 0: none */
-    int threads;             /* default 1 */
+    int threads;             /* default 1; more run the decomposition's
+                              * one-resource solves (price rounds, probes,
+                              * restored nodes) side by side, at most m at
+                              * once; the tree search stays on one thread.
+                              * Rounds and probes give the same values for
+                              * any value; a restored node may then solve
+                              * a resource more than it needs, which can
+                              * change the node count, not the optimum */
     int verbosity;           /* max level passed to log; default INFO */
     double progress_s;       /* seconds between progress lines; <= 0 off */
     surety_log_fn log;       /* NULL: silent */
@@ -414,8 +421,7 @@ surety_stop surety_result_stop(const surety_result *res);
 surety_status surety_result_status(const surety_result *res);
 /* Mean profit of the plan (NaN without one); a valid upper bound on the
  * optimum at any stop (-INFINITY when proven infeasible); their relative
- * gap (bound - objective) / |objective| (INFINITY when unknown). The
- * search is single-threaded: opt->threads is accepted and not used yet. */
+ * gap (bound - objective) / |objective| (INFINITY when unknown). */
 double surety_result_objective(const surety_result *res); /* mean profit */
 double surety_result_bound(const surety_result *res);     /* upper bound */
 double surety_result_gap(const surety_result *res);       /* relative */

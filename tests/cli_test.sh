@@ -97,8 +97,15 @@ else passed=$((passed + 1)); fi
 has "$tmp/out" "$(cat "$tmp/obj1")" "same objective with the split at the root only"
 expect 0 "gap tolerance" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --gap 0.3 --quiet
 has "$tmp/out" "optimal within the --gap asked for" "a tolerated gap is spelled out next to the status"
-expect 0 "two threads asked for" -- "$surety" solve "$tut" --threads 2 --quiet
-has "$tmp/err" "runs on one thread" "the unused --threads is said, not hidden"
+# threads run the split's one-resource solves side by side; the tree
+# search stays on one, which is said; the same optimum as on one thread
+expect 0 "two threads asked for" -- "$surety" solve "$tut" --threads 2 --progress
+has "$tmp/err" "the tree search runs on one" "what --threads runs on is said"
+expect 0 "split on one thread" -- "$surety" solve "$d20" -n 40 --split-after 1 --split-rounds 3 --json --progress
+grep '"objective"' "$tmp/out" >"$tmp/obj1"
+expect 0 "split on two threads" -- "$surety" solve "$d20" -n 40 --split-after 1 --split-rounds 3 --threads 2 --json --progress
+has "$tmp/err" "decomposition at restored nodes:" "two threads reach the restored nodes' solves"
+has "$tmp/out" "$(cat "$tmp/obj1")" "same objective on two threads"
 # scenarios every feasible plan fits are set aside, and said; the answer is
 # the same when they are kept
 expect 0 "set aside dominated scenarios" -- "$surety" solve "$tut" --risk 0.01 --json --progress

@@ -31,7 +31,7 @@
 
 static void run_prices(const solve_gen_params *p, long dives, int lp,
                        int split, long limit, int rounds, int prices,
-                       int single)
+                       int single, int threads)
 {
     surety_model *md = solve_gen_model(p);
     if (single)
@@ -52,6 +52,7 @@ static void run_prices(const solve_gen_params *p, long dives, int lp,
     o.decomp_after = split ? 1 : -1;
     o.decomp_rounds = rounds;
     o.decomp_jobs_only = !prices;
+    o.threads = threads;
     surety_result *res = NULL;
     surety_error err = {0};
     cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_OK, "%s",
@@ -75,7 +76,7 @@ static void run_prices(const solve_gen_params *p, long dives, int lp,
 static void run(const solve_gen_params *p, long dives, int lp, int split,
                 long limit)
 {
-    run_prices(p, dives, lp, split, limit, 2, 1, 0);
+    run_prices(p, dives, lp, split, limit, 2, 1, 0, 1);
 }
 
 /* Scenario counts large enough that a child recomputes only part of its
@@ -111,7 +112,7 @@ Test(invariants, price_rounds_bound_every_plan_they_cover)
                               .eps = 0.1, .tightness = 0.5,
                               .dist = t % 2 ? SOLVE_GEN_LOGNORMAL : SOLVE_GEN_NORMAL,
                               .seed = 0x5eed1003 + t};
-        run_prices(&p, 4, 0, 1, 3000, 30, t % 4 != 3, t % 2 == 0);
+        run_prices(&p, 4, 0, 1, 3000, 30, t % 4 != 3, t % 2 == 0, 1);
     }
 }
 
@@ -120,7 +121,9 @@ Test(invariants, price_rounds_bound_every_plan_they_cover)
  * without the decomposition), whatever the cutoff. Ten-job models, one or
  * two price rounds so that the probes come early; with each job in one
  * resource under separate constraints the decomposition is exact, so a
- * cap from the wrong probe table falls below the completion. */
+ * cap from the wrong probe table falls below the completion. Half of the
+ * three-resource models run the one-resource solves on two threads
+ * (decomp.c, run_subs). */
 Test(invariants, split_caps_bound_every_completion)
 {
     for (uint64_t t = 0; t < 40; t++) {
@@ -133,6 +136,7 @@ Test(invariants, split_caps_bound_every_completion)
                               .seed = 0x5eed2000 + t};
         int single = t % 3 != 2;
         run_prices(&p, 1 + (long)(t % 4 / 2) * 6, 0, 1, 0,
-                   single ? 30 : 1 + (int)(t % 2), t % 4 < 2, single);
+                   single ? 30 : 1 + (int)(t % 2), t % 4 < 2, single,
+                   t % 4 == 1 ? 2 : 1);
     }
 }

@@ -988,6 +988,99 @@ Test(solve, decomposition_probes_keep_the_enumerated_optimum)
               pruned);
 }
 
+/* opt->threads runs the decomposition's one-resource solves side by side
+ * (decomp.c, run_subs). Each solve is deterministic and independent of
+ * the others, so with the restored nodes' own solves off, a search on 1,
+ * 2 and 3 threads must take the very same path: the same status, value,
+ * bound, node count and probe count, to the last bit. With them on (the
+ * default), a node may solve one resource more than it needs: the
+ * answer must still be the enumerated optimum. */
+Test(solve, threads_take_the_same_path)
+{
+    int compared = 0, probing = 0, restored = 0;
+    double nsolves = 0;
+    for (uint64_t t = 0; t < 48; t++) {
+        int joint = t % 3 != 2;
+        solve_gen_params p = {.n = t % 2 ? 7 : 8, .m = 3 + t % 2,
+                              .N = 30 + 10 * (t % 3),
+                              .eps = t % 2 ? 0.3 : 0.5,
+                              .tightness = 0.5 + 0.1 * (double)(t % 3),
+                              .dist = (solve_gen_dist)(t % 3),
+                              .separate = !joint,
+                              .p_required = t % 6 == 1 ? 0.15 : 0,
+                              .p_forbid = t % 4 == 3 ? 0.2 : 0,
+                              .seed = mix(27000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = 1;
+        o.decomp_after = 1;
+        o.decomp_rounds = 1 + (int)(t % 4 == 3);
+        o.lp_after = -1;
+        o.decomp_root_only = 1;
+        surety_result *r1 = NULL;
+        double probes1 = 0;
+        for (int th = 1; th <= 3; th++) {
+            lp_log g = {"decomposition probes: %lf", 0, 0};
+            o.threads = th;
+            o.log = catch_line;
+            o.log_ctx = &g;
+            surety_result *r = solve_ok(md, sc, &o);
+            check_result(md, sc, r);
+            if (th == 1) {
+                r1 = r;
+                probes1 = g.seen ? g.value : -1;
+                probing += g.seen;
+                continue;
+            }
+            cr_assert_eq(surety_result_status(r), surety_result_status(r1),
+                         "instance %lu, %d threads: status", (unsigned long)t,
+                         th);
+            cr_assert(surety_result_objective(r) ==
+                              surety_result_objective(r1) ||
+                          (isnan(surety_result_objective(r)) &&
+                           isnan(surety_result_objective(r1))),
+                      "instance %lu, %d threads: value %.17g against %.17g",
+                      (unsigned long)t, th, surety_result_objective(r),
+                      surety_result_objective(r1));
+            cr_assert(surety_result_bound(r) == surety_result_bound(r1),
+                      "instance %lu, %d threads: bound %.17g against %.17g",
+                      (unsigned long)t, th, surety_result_bound(r),
+                      surety_result_bound(r1));
+            cr_assert_eq(surety_result_nodes(r), surety_result_nodes(r1),
+                         "instance %lu, %d threads: %ld nodes against %ld",
+                         (unsigned long)t, th, surety_result_nodes(r),
+                         surety_result_nodes(r1));
+            cr_assert(probes1 == (g.seen ? g.value : -1),
+                      "instance %lu, %d threads: %g probes against %g",
+                      (unsigned long)t, th, g.seen ? g.value : -1, probes1);
+            compared++;
+            surety_result_free(r);
+        }
+        surety_result_free(r1);
+        lp_log g = {"decomposition at restored nodes: %lf", 0, 0};
+        o.log = catch_line;
+        o.log_ctx = &g;
+        o.decomp_root_only = 0;
+        o.threads = 2;
+        expect_enumerated(md, sc, &o, &p, t, feas, bf, "two threads, ");
+        restored += g.seen && g.value > 0;
+        nsolves += g.seen ? g.value : 0;
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("%d runs compared, %d of 48 models probed; on two threads "
+                "restored nodes solved in %d models, %g solves",
+                compared, probing, restored, nsolves);
+    cr_assert(probing >= 12, "only %d models reached the probes", probing);
+    cr_assert(restored >= 3 && nsolves >= 100,
+              "restored nodes solved in only %d models, %g solves", restored,
+              nsolves);
+}
+
 /* Searches stopped by node and time limits soon after the rounds begin
  * must report a bound at least the optimum (the rounds cap every open
  * node); and the bound must do its job: on these instances, where the

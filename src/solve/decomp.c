@@ -76,11 +76,16 @@
  * give only the smallest single decision's value.
  * SPDX-License-Identifier: MIT */
 #include <math.h>
+#include <pthread.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "alloc.h"
 #include "solve/solve.h"
+
+/* The most threads the one-resource solves run on (opt->threads beyond
+ * it, or beyond the resources, adds none). */
+#define SURETY_DEC_MAX_THREADS 64
 
 /* One resource's problem: a model of its own over the jobs that may enter
  * it, on the scenarios as given (the sub-solve merges and sets aside on
@@ -96,6 +101,7 @@ typedef struct dec_sub {
     int have_start;
     unsigned char *in_best; /* nj: in the sub's plan of the best round */
     unsigned char zero;     /* the allowed flag of a job kept out */
+    surety_plan pstart;     /* a probe's or a node's starting plan */
 } dec_sub;
 
 static void sub_free(dec_sub *d)
@@ -104,6 +110,7 @@ static void sub_free(dec_sub *d)
     surety_xfree(d->jobs);
     surety_xfree(d->start.resource);
     surety_xfree(d->in_best);
+    surety_xfree(d->pstart.resource);
 }
 
 /* Jobs of resource i: the open jobs whose pair with i is possible at the
@@ -123,7 +130,8 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
     d->jobs = surety_xcalloc(nj, sizeof *d->jobs);
     d->start.resource = surety_xmalloc(nj, sizeof *d->start.resource);
     d->in_best = surety_xcalloc(nj, 1);
-    if (!d->jobs || !d->start.resource || !d->in_best)
+    d->pstart.resource = surety_xmalloc(nj, sizeof *d->pstart.resource);
+    if (!d->jobs || !d->start.resource || !d->in_best || !d->pstart.resource)
         return -1;
     const surety_model *full = s->model;
     d->one = 1;
@@ -164,15 +172,15 @@ static int sub_init(const surety_solver *s, size_t i, dec_sub *d)
  * rounding, which the caller's slack covers). With scenario prices, cost
  * is the resource's (N0 entries): each scenario it overloads costs that
  * much. `start` is a hint; with
- * `out`, the sub's plan goes there (have_start set) and its jobs are
- * counted into xs. The sub-solve's nodes and knapsacks are added to
- * *nodes and *knaps. */
+ * `out`, the sub's plan goes there (have_start set). The sub-solve's
+ * nodes and knapsacks are added to *nodes and *knaps. It reads s and
+ * writes only d, sc, out and the counts: sub-solves of distinct
+ * resources with distinct sc may run at once (run_subs). */
 static double sub_solve(const surety_solver *s, dec_sub *d,
                         surety_scenarios *sc, const double *lam,
                         const double *cost, double deadline,
                         const surety_plan *start, surety_plan *out,
-                        double *xs, long *nodes,
-                        unsigned long long *knaps)
+                        long *nodes, unsigned long long *knaps)
 {
     if (d->nj == 0)
         return 0;
@@ -210,11 +218,8 @@ static double sub_solve(const surety_solver *s, dec_sub *d,
     *knaps += surety_result_knaps(r);
     const surety_plan *pl = surety_result_plan(r);
     if (pl && out) {
-        for (size_t t = 0; t < nj; t++) {
+        for (size_t t = 0; t < nj; t++)
             out->resource[t] = pl->resource[t];
-            if (pl->resource[t] >= 0)
-                xs[d->job[t]] += 1;
-        }
         d->have_start = 1;
     }
     surety_result_free(r);
@@ -226,9 +231,11 @@ struct solve_dec {
     double *lam;   /* n prices */
     double *xs;    /* n: scratch, then the subgradient */
     double *v;     /* m: this round's V_i bounds */
-    surety_scenarios sc; /* the sub-solves' scenarios, room for N0 x the
-                          * most jobs of a resource */
-    surety_plan pstart;  /* a probe's starting plan, as long as sc's rows */
+    surety_scenarios *scs; /* nthr: each worker's scenarios for its
+                            * sub-solves, room for N0 x the most jobs of
+                            * a resource */
+    size_t nthr;   /* workers: opt->threads, at most m */
+    struct sub_task *task; /* m: a batch of one-resource solves */
     double *mu;    /* m*N0 scenario prices, or NULL (not priced) */
     double *dj, *dm; /* the last step's directions: n for lam, m*N0 for mu */
     double *gm;    /* m*N0: this round's subgradient of mu */
@@ -242,6 +249,81 @@ struct solve_dec {
     int probing;   /* the rounds are over: pairs are probed */
     size_t next;   /* position in s->order of the next job to probe */
 };
+
+/* One-resource solves to run as a batch (run_subs): each on a resource
+ * of its own, with its prices, start and plan buffer set by the caller;
+ * v, nodes and knaps are its results. */
+typedef struct sub_task {
+    dec_sub *u;
+    const double *lam, *cost;
+    const surety_plan *start;
+    surety_plan *out;
+    size_t q;      /* the probed job's place in u (probe_next) */
+    double v;
+    long nodes;
+    unsigned long long knaps;
+} sub_task;
+
+typedef struct sub_batch {
+    const surety_solver *s;
+    sub_task *task;
+    size_t ntask;
+    size_t next;     /* the next task to take (atomic) */
+    double deadline;
+} sub_batch;
+
+typedef struct sub_worker {
+    sub_batch *b;
+    surety_scenarios *sc; /* this worker's own */
+} sub_worker;
+
+static void *sub_work(void *arg)
+{
+    sub_worker *w = arg;
+    sub_batch *b = w->b;
+    for (;;) {
+        size_t q = __atomic_fetch_add(&b->next, 1, __ATOMIC_RELAXED);
+        if (q >= b->ntask)
+            return NULL;
+        sub_task *t = &b->task[q];
+        t->nodes = 0;
+        t->knaps = 0;
+        t->v = sub_solve(b->s, t->u, w->sc, t->lam, t->cost, b->deadline,
+                         t->start, t->out, &t->nodes, &t->knaps);
+    }
+}
+
+/* Runs the tasks, on up to d->nthr threads (the caller's among them),
+ * and adds their nodes and knapsacks to the solver's counts. The tasks
+ * are independent (distinct resources, each worker its own scenario
+ * buffer) and each sub-solve is deterministic, so the results do not
+ * depend on the number of threads; only the wall time does. A thread
+ * that cannot be started leaves its share to the others. */
+static void run_subs(surety_solver *s, sub_task *task, size_t ntask,
+                     double deadline)
+{
+    solve_dec *d = s->dec;
+    sub_batch b = {.s = s, .task = task, .ntask = ntask, .next = 0,
+                   .deadline = deadline};
+    sub_worker w[SURETY_DEC_MAX_THREADS];
+    pthread_t th[SURETY_DEC_MAX_THREADS];
+    int started[SURETY_DEC_MAX_THREADS] = {0};
+    size_t nw = d->nthr < ntask ? d->nthr : ntask;
+    if (nw > SURETY_DEC_MAX_THREADS)
+        nw = SURETY_DEC_MAX_THREADS;
+    for (size_t k = 0; k < nw; k++)
+        w[k] = (sub_worker){.b = &b, .sc = &d->scs[k]};
+    for (size_t k = 1; k < nw; k++)
+        started[k] = pthread_create(&th[k], NULL, sub_work, &w[k]) == 0;
+    sub_work(&w[0]);
+    for (size_t k = 1; k < nw; k++)
+        if (started[k])
+            pthread_join(th[k], NULL);
+    for (size_t q = 0; q < ntask; q++) {
+        s->dec_nodes += task[q].nodes;
+        s->dec_knaps += task[q].knaps;
+    }
+}
 
 void surety_decomp_free(surety_solver *s)
 {
@@ -263,9 +345,13 @@ void surety_decomp_free(surety_solver *s)
     surety_xfree(d->srt);
     surety_xfree(d->zf);
     surety_xfree(d->nf);
-    surety_xfree(d->sc.hours);
-    surety_xfree(d->sc.profit);
-    surety_xfree(d->pstart.resource);
+    if (d->scs)
+        for (size_t w = 0; w < d->nthr; w++) {
+            surety_xfree(d->scs[w].hours);
+            surety_xfree(d->scs[w].profit);
+        }
+    surety_xfree(d->scs);
+    surety_xfree(d->task);
     surety_xfree(d);
     s->dec = NULL;
 }
@@ -311,11 +397,22 @@ static int dec_init(surety_solver *s)
         if (d->sub[i].nj > most)
             most = d->sub[i].nj;
     }
-    d->sc.hours = surety_xmalloc(s->N0 * most, sizeof *d->sc.hours);
-    d->sc.profit = surety_xmalloc(s->N0 * most, sizeof *d->sc.profit);
-    d->pstart.resource = surety_xmalloc(most, sizeof *d->pstart.resource);
-    if (!d->sc.hours || !d->sc.profit || !d->pstart.resource)
+    d->nthr = s->opt->threads > 1 ? (size_t)s->opt->threads : 1;
+    if (d->nthr > m)
+        d->nthr = m;
+    if (d->nthr > SURETY_DEC_MAX_THREADS)
+        d->nthr = SURETY_DEC_MAX_THREADS;
+    d->scs = surety_xcalloc(d->nthr, sizeof *d->scs);
+    d->task = surety_xcalloc(m, sizeof *d->task);
+    if (!d->scs || !d->task)
         return -1;
+    for (size_t w = 0; w < d->nthr; w++) {
+        d->scs[w].hours = surety_xmalloc(s->N0 * most, sizeof *d->scs->hours);
+        d->scs[w].profit = surety_xmalloc(s->N0 * most,
+                                          sizeof *d->scs->profit);
+        if (!d->scs[w].hours || !d->scs[w].profit)
+            return -1;
+    }
     /* prices start at bound.c's; a required job's may take any sign */
     for (size_t j = 0; j < n; j++)
         d->lam[j] = s->state[j] == SURETY_JOB_FREE ? s->lam[j] : 0;
@@ -464,13 +561,26 @@ static int price_round(surety_solver *s, double deadline)
         lsum += T + 1e-12 * (T + 1); /* summed in another order below */
     }
     L = lsum;
-    for (size_t i = 0; i < m && L < INFINITY; i++) {
+    sub_task *task = d->task;
+    for (size_t i = 0; i < m; i++) {
         dec_sub *u = &d->sub[i];
-        d->v[i] = sub_solve(s, u, &d->sc, lam, priced ? d->mu + i * N0 : NULL,
-                            deadline, u->have_start ? &u->start : NULL,
-                            &u->start, xs, &s->dec_nodes,
-                            &s->dec_knaps);
+        task[i] = (sub_task){.u = u, .lam = lam,
+                             .cost = priced ? d->mu + i * N0 : NULL,
+                             .start = u->have_start ? &u->start : NULL,
+                             .out = &u->start};
+        u->have_start = 0; /* set again by a plan of this round */
+    }
+    run_subs(s, task, m, deadline);
+    for (size_t i = 0; i < m; i++) {
+        dec_sub *u = &d->sub[i];
+        d->v[i] = task[i].v;
         L += d->v[i];
+        if (u->have_start) /* this round's plan counts into xs */
+            for (size_t t = 0; t < u->nj; t++)
+                if (u->start.resource[t] >= 0)
+                    xs[u->job[t]] += 1;
+        if (task[i].start)
+            u->have_start = 1; /* the earlier plan stays a hint */
     }
     if (!(L < INFINITY))
         return 2; /* a limit stopped a sub-solve: this round is not known */
@@ -658,19 +768,20 @@ static void watch_probes(const surety_solver *s, size_t j)
 }
 
 /* The best round's plan of sub u as the start of a probe or a node's
- * solve (d->pstart), before their own decisions are put in. */
-static void best_start(solve_dec *d, const dec_sub *u)
+ * solve (u->pstart), before their own decisions are put in. */
+static void best_start(dec_sub *u)
 {
-    d->pstart.n = u->nj;
+    u->pstart.n = u->nj;
     for (size_t t = 0; t < u->nj; t++)
-        d->pstart.resource[t] = u->in_best[t] ? 0 : -1;
+        u->pstart.resource[t] = u->in_best[t] ? 0 : -1;
 }
 
 /* Probes the pairs of the next job in the branching order: on each
  * resource whose best-round plan holds it, V_i with the job kept out;
- * on the others, V_i with the job forced in; then the pairs of the jobs
- * probed so far are ruled out where they can. Returns 0 while jobs are
- * left, 1 when done, 2 when a limit stopped a sub-solve. */
+ * on the others, V_i with the job forced in (one batch: run_subs); then
+ * the pairs of the jobs probed so far are ruled out where they can.
+ * Returns 0 while jobs are left, 1 when done, 2 when a limit stopped a
+ * sub-solve. */
 static int probe_next(surety_solver *s, double deadline)
 {
     size_t m = s->m;
@@ -680,6 +791,7 @@ static int probe_next(surety_solver *s, double deadline)
     size_t j = s->order[d->next++];
     if (s->state[j] != SURETY_JOB_FREE)
         return 0;
+    size_t nt = 0;
     for (size_t i = 0; i < m; i++) {
         dec_sub *u = &d->sub[i];
         size_t q = 0;
@@ -687,77 +799,108 @@ static int probe_next(surety_solver *s, double deadline)
             q++;
         if (q == u->nj)
             continue; /* j may not enter i */
-        best_start(d, u);
-        int out = u->in_best[q];
-        if (out) {
+        best_start(u);
+        if (u->in_best[q]) {
             u->jobs[q].allowed = &u->zero;
-            d->pstart.resource[q] = -1;
+            u->pstart.resource[q] = -1;
         } else {
             u->jobs[q].required = 1;
-            d->pstart.resource[q] = 0;
+            u->pstart.resource[q] = 0;
         }
-        double v = sub_solve(s, u, &d->sc, s->dec_lam,
-                             d->best_priced ? s->dec_mu + i * s->N0 : NULL,
-                             deadline,
-                             &d->pstart, NULL, NULL, &s->dec_nodes,
-                             &s->dec_knaps);
+        d->task[nt++] = (sub_task){
+            .u = u, .lam = s->dec_lam,
+            .cost = d->best_priced ? s->dec_mu + i * s->N0 : NULL,
+            .start = &u->pstart, .q = q};
+    }
+    run_subs(s, d->task, nt, deadline);
+    int stopped = 0;
+    for (size_t r = 0; r < nt; r++) {
+        sub_task *k = &d->task[r];
+        dec_sub *u = k->u;
+        size_t q = k->q, i = (size_t)(u - d->sub);
+        int out = u->in_best[q];
         u->jobs[q].allowed = &u->one;
         u->jobs[q].required = 0;
-        if (!(v < INFINITY))
-            return 2;
+        if (!(k->v < INFINITY)) {
+            stopped = 1;
+            continue;
+        }
         s->dec_probes++;
         double *tab = out ? s->dec_vout : s->dec_vin;
-        if (v < tab[j * m + i])
-            tab[j * m + i] = v;
+        if (k->v < tab[j * m + i])
+            tab[j * m + i] = k->v;
     }
+    if (stopped)
+        return 2;
     if (s->dec_watch)
         watch_probes(s, j);
     rule_pairs(s, d->next);
     return d->next >= s->nb;
 }
 
-/* The restored node's own V_i for resource i: its problem with all of
- * the node's decisions at once (its jobs in i forced in, its jobs placed
- * elsewhere or rejected kept out), at the best round's prices. It is at
- * most the smallest probed value of those decisions (its job sets are
- * among each probe's), and bounds resource i's part of every completion
- * of the node as the probes do (tree.c, dec_cap); it lowers dec_c[i],
- * which the node's subtree inherits. Returns 0, or 2 when a limit stopped
- * the sub-solve (dec_c[i] then stays). */
-int surety_decomp_node(surety_solver *s, size_t i, double deadline)
+/* The restored node's own V_i for the resources i0 .. i0+cnt-1 (one
+ * batch: run_subs): each one's problem with all of the node's decisions
+ * at once (its jobs in i forced in, its jobs placed elsewhere or
+ * rejected kept out), at the best round's prices. It is at most the
+ * smallest probed value of those decisions (its job sets are among each
+ * probe's), and bounds resource i's part of every completion of the node
+ * as the probes do (tree.c, dec_cap); it lowers dec_c[i], which the
+ * node's subtree inherits. Returns 0, or 2 when a limit stopped a
+ * sub-solve (its dec_c[i] then stays). */
+int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
+                       double deadline)
 {
     size_t m = s->m;
     solve_dec *d = s->dec;
     if (!d || !s->dec_c)
         return 2;
     const unsigned char *px = s->pxs; /* row 0: the root's */
-    dec_sub *u = &d->sub[i];
-    best_start(d, u);
-    for (size_t t = 0; t < u->nj; t++) {
-        size_t j = u->job[t];
-        long st = s->state[j];
-        if (st == (long)i) {
-            u->jobs[t].required = 1;
-            d->pstart.resource[t] = 0;
-        } else if (st != SURETY_JOB_FREE || !px[j * m + i]) {
-            u->jobs[t].allowed = &u->zero;
-            d->pstart.resource[t] = -1;
+    if (cnt > m - i0)
+        cnt = m - i0;
+    for (size_t r = 0; r < cnt; r++) {
+        size_t i = i0 + r;
+        dec_sub *u = &d->sub[i];
+        best_start(u);
+        for (size_t t = 0; t < u->nj; t++) {
+            size_t j = u->job[t];
+            long st = s->state[j];
+            if (st == (long)i) {
+                u->jobs[t].required = 1;
+                u->pstart.resource[t] = 0;
+            } else if (st != SURETY_JOB_FREE || !px[j * m + i]) {
+                u->jobs[t].allowed = &u->zero;
+                u->pstart.resource[t] = -1;
+            }
         }
+        d->task[r] = (sub_task){
+            .u = u, .lam = s->dec_lam,
+            .cost = d->best_priced ? s->dec_mu + i * s->N0 : NULL,
+            .start = &u->pstart};
     }
-    double v = sub_solve(s, u, &d->sc, s->dec_lam,
-                         d->best_priced ? s->dec_mu + i * s->N0 : NULL,
-                         deadline, &d->pstart, NULL, NULL, &s->dec_nodes,
-                         &s->dec_knaps);
-    for (size_t t = 0; t < u->nj; t++) {
-        u->jobs[t].allowed = &u->one;
-        u->jobs[t].required = 0;
+    run_subs(s, d->task, cnt, deadline);
+    int stopped = 0;
+    for (size_t r = 0; r < cnt; r++) {
+        size_t i = i0 + r;
+        dec_sub *u = &d->sub[i];
+        for (size_t t = 0; t < u->nj; t++) {
+            u->jobs[t].allowed = &u->one;
+            u->jobs[t].required = 0;
+        }
+        double v = d->task[r].v;
+        if (!(v < INFINITY)) {
+            stopped = 1;
+            continue;
+        }
+        s->dec_nsolves++;
+        if (v < s->dec_c[i])
+            s->dec_c[i] = v;
     }
-    if (!(v < INFINITY))
-        return 2;
-    s->dec_nsolves++;
-    if (v < s->dec_c[i])
-        s->dec_c[i] = v;
-    return 0;
+    return stopped ? 2 : 0;
+}
+
+size_t surety_decomp_threads(const surety_solver *s)
+{
+    return s->dec ? s->dec->nthr : 1;
 }
 
 void surety_decomp_rule(surety_solver *s)

@@ -450,9 +450,10 @@ static surety_code solve_run(const surety_model *model,
               "fails at most %zu scenarios fits them (dominated by other "
               "scenarios, or fitting every plan)", s.N_aside, s.k);
     if (opt->threads > 1)
-        logf_(&s, SURETY_LOG_WARN,
-              "threads: %d asked for, but the search runs on one thread "
-              "(a parallel search is not built yet)", opt->threads);
+        logf_(&s, SURETY_LOG_INFO,
+              "threads: the decomposition's one-resource solves run on up "
+              "to %zu threads at once; the tree search runs on one",
+              (size_t)opt->threads < s.m ? (size_t)opt->threads : s.m);
 
     if (!infeasible) {
         /* the empty plan, a caller's plan, then the greedy + local search */

@@ -397,9 +397,13 @@ int surety_decomp_round(surety_solver *s, double deadline);
  * (once the probes have run) leaves no plan above the cutoff; for when the
  * incumbent has improved. */
 void surety_decomp_rule(surety_solver *s);
-/* decomp.c: resource i's problem at a restored node with all of its
- * decisions, which lowers dec_c[i]; 0, or 2 when a limit stopped it. */
-int surety_decomp_node(surety_solver *s, size_t i, double deadline);
+/* decomp.c: the problems of resources i0 .. i0+cnt-1 at a restored node
+ * with all of its decisions, which lower their dec_c; 0, or 2 when a limit
+ * stopped one. They run at once on up to surety_decomp_threads(s) threads
+ * (opt->threads, at most m; the rounds and probes use them as well). */
+int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
+                       double deadline);
+size_t surety_decomp_threads(const surety_solver *s);
 void surety_decomp_free(surety_solver *s);
 
 /* lpbound.c: the LP relaxation of the strengthened formulation as a

@@ -408,10 +408,14 @@ static double node_split(surety_solver *s, double b)
     if (!s->dec_done || !s->dec || s->dec_knaps > s->knaps - s->dec_knaps0)
         return b;
     double now = surety_solve_now(), tl = s->opt->time_limit_s;
-    /* resource by resource, until the cap prunes the node: the other
-     * resources' solves would change nothing */
-    for (size_t i = 0; i < s->m && dec_cap(s, b) > surety_cutoff(s); i++)
-        if (surety_decomp_node(s, i, tl > 0 ? s->t0 + tl : INFINITY) != 0)
+    /* resource by resource (as many at once as there are threads),
+     * until the cap prunes the node: the other resources' solves would
+     * change nothing */
+    size_t step = surety_decomp_threads(s);
+    for (size_t i = 0; i < s->m && dec_cap(s, b) > surety_cutoff(s);
+         i += step)
+        if (surety_decomp_node(s, i, step,
+                               tl > 0 ? s->t0 + tl : INFINITY) != 0)
             break;
     s->dec_secs += surety_solve_now() - now;
 #ifdef SURETY_CHECK_INVARIANTS
