@@ -102,6 +102,7 @@ typedef struct dec_sub {
     unsigned char *in_best; /* nj: in the sub's plan of the best round */
     unsigned char zero;     /* the allowed flag of a job kept out */
     surety_plan pstart;     /* a probe's or a node's starting plan */
+    long work;              /* nodes of its last solve (run_subs' order) */
 } dec_sub;
 
 static void sub_free(dec_sub *d)
@@ -236,6 +237,7 @@ struct solve_dec {
                             * a resource */
     size_t nthr;   /* workers: opt->threads, at most m */
     struct sub_task *task; /* m: a batch of one-resource solves */
+    size_t *ord;   /* m: the order run_subs takes them in */
     double *mu;    /* m*N0 scenario prices, or NULL (not priced) */
     double *dj, *dm; /* the last step's directions: n for lam, m*N0 for mu */
     double *gm;    /* m*N0: this round's subgradient of mu */
@@ -267,6 +269,7 @@ typedef struct sub_task {
 typedef struct sub_batch {
     const surety_solver *s;
     sub_task *task;
+    const size_t *ord; /* the order in which tasks are taken */
     size_t ntask;
     size_t next;     /* the next task to take (atomic) */
     double deadline;
@@ -285,7 +288,7 @@ static void *sub_work(void *arg)
         size_t q = __atomic_fetch_add(&b->next, 1, __ATOMIC_RELAXED);
         if (q >= b->ntask)
             return NULL;
-        sub_task *t = &b->task[q];
+        sub_task *t = &b->task[b->ord[q]];
         t->nodes = 0;
         t->knaps = 0;
         t->v = sub_solve(b->s, t->u, w->sc, t->lam, t->cost, b->deadline,
@@ -297,14 +300,25 @@ static void *sub_work(void *arg)
  * and adds their nodes and knapsacks to the solver's counts. The tasks
  * are independent (distinct resources, each worker its own scenario
  * buffer) and each sub-solve is deterministic, so the results do not
- * depend on the number of threads; only the wall time does. A thread
- * that cannot be started leaves its share to the others. */
+ * depend on the number of threads; only the wall time does. On more than
+ * one thread the resources whose last solve took the most nodes go first
+ * (longest processing time first, Graham 1969), so that a long solve does
+ * not start last. A thread that cannot be started leaves its share to
+ * the others. */
 static void run_subs(surety_solver *s, sub_task *task, size_t ntask,
                      double deadline)
 {
     solve_dec *d = s->dec;
-    sub_batch b = {.s = s, .task = task, .ntask = ntask, .next = 0,
-                   .deadline = deadline};
+    size_t *ord = d->ord;
+    for (size_t q = 0; q < ntask; q++) {
+        size_t r = q;
+        long w = task[q].u->work;
+        for (; r > 0 && d->nthr > 1 && task[ord[r - 1]].u->work < w; r--)
+            ord[r] = ord[r - 1];
+        ord[r] = q;
+    }
+    sub_batch b = {.s = s, .task = task, .ord = ord, .ntask = ntask,
+                   .next = 0, .deadline = deadline};
     sub_worker w[SURETY_DEC_MAX_THREADS];
     pthread_t th[SURETY_DEC_MAX_THREADS];
     int started[SURETY_DEC_MAX_THREADS] = {0};
@@ -322,6 +336,7 @@ static void run_subs(surety_solver *s, sub_task *task, size_t ntask,
     for (size_t q = 0; q < ntask; q++) {
         s->dec_nodes += task[q].nodes;
         s->dec_knaps += task[q].knaps;
+        task[q].u->work = task[q].nodes;
     }
 }
 
@@ -352,6 +367,7 @@ void surety_decomp_free(surety_solver *s)
         }
     surety_xfree(d->scs);
     surety_xfree(d->task);
+    surety_xfree(d->ord);
     surety_xfree(d);
     s->dec = NULL;
 }
@@ -404,7 +420,8 @@ static int dec_init(surety_solver *s)
         d->nthr = SURETY_DEC_MAX_THREADS;
     d->scs = surety_xcalloc(d->nthr, sizeof *d->scs);
     d->task = surety_xcalloc(m, sizeof *d->task);
-    if (!d->scs || !d->task)
+    d->ord = surety_xmalloc(m, sizeof *d->ord);
+    if (!d->scs || !d->task || !d->ord)
         return -1;
     for (size_t w = 0; w < d->nthr; w++) {
         d->scs[w].hours = surety_xmalloc(s->N0 * most, sizeof *d->scs->hours);
