@@ -106,6 +106,17 @@ grep '"objective"' "$tmp/out" >"$tmp/obj1"
 expect 0 "split on two threads" -- "$surety" solve "$d20" -n 40 --split-after 1 --split-rounds 3 --threads 2 --json --progress
 has "$tmp/err" "decomposition at restored nodes:" "two threads reach the restored nodes' solves"
 has "$tmp/out" "$(cat "$tmp/obj1")" "same objective on two threads"
+# the commands that solve several times take --threads too: the same levels
+expect 0 "frontier on one thread" -- "$surety" frontier "$tut" --risks 0.05,0.1 --json
+sed 's/"solve_seconds": [0-9.e+-]*//' "$tmp/out" >"$tmp/fr1"
+expect 0 "frontier on two threads" -- "$surety" frontier "$tut" --risks 0.05,0.1 --threads 2 --json
+sed 's/"solve_seconds": [0-9.e+-]*//' "$tmp/out" >"$tmp/fr2"
+if cmp -s "$tmp/fr1" "$tmp/fr2" && grep -q '"allowance": 50' "$tmp/fr2"; then
+    passed=$((passed + 1))
+else failed=$((failed + 1)); echo "FAIL: frontier differs on two threads"; fi
+expect 1 "bad --threads for frontier" -- "$surety" frontier "$tut" --risks 0.1 --threads 0
+expect 1 "bad --threads for assure" -- "$surety" assure "$tut" --threads x
+expect 1 "bad --threads for bounds" -- "$surety" bounds "$tut" --threads 2000
 # scenarios every feasible plan fits are set aside, and said; the answer is
 # the same when they are kept
 expect 0 "set aside dominated scenarios" -- "$surety" solve "$tut" --risk 0.01 --json --progress

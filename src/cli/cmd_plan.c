@@ -8,6 +8,9 @@
 
 #include "cli.h"
 
+/* getopt value of --threads (no short form) */
+enum { OPT_THREADS = 1000 };
+
 static int parse_prob(const char *cmd, const char *name, const char *arg, double *out)
 {
     if (cli_parse_double(arg, out) || !(*out > 0) || !(*out < 1))
@@ -280,7 +283,7 @@ static const char assure_help[] =
     "usage: surety assure MODEL [--target R] [--confidence C] [--samples M]\n"
     "                     [--certify-samples M2] [-n N] [--max-scenarios NMAX]\n"
     "                     [--max-steps S] [--time-limit SEC] [--solve-limit SEC] [--seed S]\n"
-    "                     [-o PLAN.json] [--json]\n"
+    "                     [--threads T] [-o PLAN.json] [--json]\n"
     "\n"
     "Solves on N scenarios, checks the plan on M fresh ones and, while the\n"
     "one-sided Clopper-Pearson lower bound on its reliability is below R,\n"
@@ -298,6 +301,8 @@ static const char assure_help[] =
     "  --max-steps S        solves at most (default 12)\n"
     "  --time-limit SEC     limit for the whole run\n"
     "  --solve-limit SEC    limit per solve (its best plan is still checked)\n"
+    "  --threads T          threads for each solve's one-resource solves (as in\n"
+    "                       'surety solve'; default 1)\n"
     "  --seed S             random seed (default: the model's)\n"
     "  -o FILE              write the returned plan (atomic)\n"
     "  --json               machine-readable output\n"
@@ -442,6 +447,7 @@ int cmd_assure(int argc, char **argv)
         {"max-scenarios", required_argument, 0, 'X'},
         {"max-steps", required_argument, 0, 'S'},
         {"time-limit", required_argument, 0, 't'},
+        {"threads", required_argument, 0, OPT_THREADS},
         {"solve-limit", required_argument, 0, 'T'},
         {"seed", required_argument, 0, 's'},
         {"output", required_argument, 0, 'o'},
@@ -497,6 +503,13 @@ int cmd_assure(int argc, char **argv)
         case 's': seed_arg = optarg; break;
         case 'o': out = optarg; break;
         case 'j': json = 1; break;
+        case OPT_THREADS: {
+            size_t th;
+            if (cli_parse_size(optarg, &th) || th == 0 || th > 1024)
+                return cli_usage_error("assure", "--threads needs a whole number from 1 to 1024");
+            aopt.solve.threads = (int)th;
+            break;
+        }
         case 'h': fputs(assure_help, stdout); return 0;
         default: return cli_usage_error("assure", "unknown option");
         }
@@ -544,7 +557,7 @@ int cmd_assure(int argc, char **argv)
 static const char bounds_help[] =
     "usage: surety bounds MODEL [--replications M] [--confidence C] [--gamma G]\n"
     "                     [--samples S] [-n N] [--risk EPS] [--seed S] [--time-limit SEC]\n"
-    "                     [-o PLAN.json] [--json]\n"
+    "                     [--threads T] [-o PLAN.json] [--json]\n"
     "\n"
     "An interval for the true optimal mean profit (Pagnoncelli, Ahmed & Shapiro\n"
     "2009). Upper side: M independent samples of N scenarios are each solved at\n"
@@ -559,6 +572,8 @@ static const char bounds_help[] =
     "  --samples S       fresh scenarios for the lower side (default 10000)\n"
     "  -n N, --risk EPS, --seed S   override the model's\n"
     "  --time-limit SEC  per solve\n"
+    "  --threads T       threads for each solve's one-resource solves (as in\n"
+    "                    'surety solve'; default 1)\n"
     "  -o FILE           write the lower side's plan (atomic)\n"
     "  --json            machine-readable output\n";
 
@@ -673,6 +688,7 @@ int cmd_bounds(int argc, char **argv)
         {"risk", required_argument, 0, 'r'},
         {"seed", required_argument, 0, 's'},
         {"time-limit", required_argument, 0, 't'},
+        {"threads", required_argument, 0, OPT_THREADS},
         {"output", required_argument, 0, 'o'},
         {"json", no_argument, 0, 'j'},
         {"help", no_argument, 0, 'h'},
@@ -710,6 +726,13 @@ int cmd_bounds(int argc, char **argv)
         case 's': seed_arg = optarg; break;
         case 'o': out = optarg; break;
         case 'j': json = 1; break;
+        case OPT_THREADS: {
+            size_t th;
+            if (cli_parse_size(optarg, &th) || th == 0 || th > 1024)
+                return cli_usage_error("bounds", "--threads needs a whole number from 1 to 1024");
+            bopt.solve.threads = (int)th;
+            break;
+        }
         case 'h': fputs(bounds_help, stdout); return 0;
         default: return cli_usage_error("bounds", "unknown option");
         }
@@ -745,7 +768,7 @@ int cmd_bounds(int argc, char **argv)
 static const char frontier_help[] =
     "usage: surety frontier MODEL --risks LIST [--samples M] [--confidence C]\n"
     "                       [-n N] [--seed S] [--target R] [--time-limit SEC]\n"
-    "                       [--svg FILE] [--png FILE] [--csv FILE] [--json]\n"
+    "                       [--threads T] [--svg FILE] [--png FILE] [--csv FILE] [--json]\n"
     "\n"
     "For each risk level in LIST (comma-separated, e.g. 0.01,0.02,0.05,0.1):\n"
     "the optimal plan on the model's N scenarios, its mean profit, and its\n"
@@ -758,6 +781,8 @@ static const char frontier_help[] =
     "  --confidence C    for the intervals (default 0.95)\n"
     "  --target R        reliability line on the chart (default 1 - the model's risk)\n"
     "  --time-limit SEC  per level\n"
+    "  --threads T       threads for each solve's one-resource solves (as in\n"
+    "                    'surety solve'; default 1)\n"
     "  --svg/--png FILE  chart of profit against reliability\n"
     "  --csv FILE        one row per level\n"
     "  --json            machine-readable output\n";
@@ -866,6 +891,7 @@ int cmd_frontier(int argc, char **argv)
         {"target", required_argument, 0, 'R'},
         {"seed", required_argument, 0, 's'},
         {"time-limit", required_argument, 0, 't'},
+        {"threads", required_argument, 0, OPT_THREADS},
         {"svg", required_argument, 0, 'S'},
         {"png", required_argument, 0, 'P'},
         {"csv", required_argument, 0, 'C'},
@@ -905,6 +931,13 @@ int cmd_frontier(int argc, char **argv)
         case 'P': png = optarg; break;
         case 'C': csv = optarg; break;
         case 'j': json = 1; break;
+        case OPT_THREADS: {
+            size_t th;
+            if (cli_parse_size(optarg, &th) || th == 0 || th > 1024)
+                return cli_usage_error("frontier", "--threads needs a whole number from 1 to 1024");
+            fopt.solve.threads = (int)th;
+            break;
+        }
         case 'h': fputs(frontier_help, stdout); return 0;
         default: return cli_usage_error("frontier", "unknown option");
         }
