@@ -310,6 +310,8 @@ static void run_subs(surety_solver *s, sub_task *task, size_t ntask,
 {
     solve_dec *d = s->dec;
     size_t *ord = d->ord;
+    if (ntask == 0)
+        return; /* e.g. a probed job that no resource's problem holds */
     for (size_t q = 0; q < ntask; q++) {
         size_t r = q;
         long w = task[q].u->work;
