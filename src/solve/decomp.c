@@ -83,10 +83,6 @@
 #include "alloc.h"
 #include "solve/solve.h"
 
-/* The most threads the one-resource solves run on (opt->threads beyond
- * it, or beyond the resources, adds none). */
-#define SURETY_DEC_MAX_THREADS 64
-
 /* One resource's problem: a model of its own over the jobs that may enter
  * it, on the scenarios as given (the sub-solve merges and sets aside on
  * its own), which are copied into a buffer the resources share. */

@@ -449,11 +449,20 @@ static surety_code solve_run(const surety_model *model,
               "solve: %zu distinct scenarios set aside: every plan that "
               "fails at most %zu scenarios fits them (dominated by other "
               "scenarios, or fitting every plan)", s.N_aside, s.k);
-    if (opt->threads > 1)
-        logf_(&s, SURETY_LOG_INFO,
-              "threads: the decomposition's one-resource solves run on up "
-              "to %zu threads at once; the tree search runs on one",
-              (size_t)opt->threads < s.m ? (size_t)opt->threads : s.m);
+    if (opt->threads > 1) {
+        size_t th = (size_t)opt->threads < s.m ? (size_t)opt->threads : s.m;
+        if (th > SURETY_DEC_MAX_THREADS)
+            th = SURETY_DEC_MAX_THREADS;
+        if (th > 1)
+            logf_(&s, SURETY_LOG_INFO,
+                  "threads: the decomposition's one-resource solves run on "
+                  "up to %zu threads at once; the tree search runs on one",
+                  th);
+        else
+            logf_(&s, SURETY_LOG_INFO,
+                  "threads: one resource, no decomposition: the search runs "
+                  "on one thread");
+    }
 
     if (!infeasible) {
         /* the empty plan, a caller's plan, then the greedy + local search */

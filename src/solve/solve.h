@@ -403,6 +403,9 @@ void surety_decomp_rule(surety_solver *s);
  * (opt->threads, at most m; the rounds and probes use them as well). */
 int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
                        double deadline);
+/* The most threads the one-resource solves run on (opt->threads beyond
+ * it, or beyond the resources, adds none). */
+#define SURETY_DEC_MAX_THREADS 64
 size_t surety_decomp_threads(const surety_solver *s);
 void surety_decomp_free(surety_solver *s);
 
