@@ -316,12 +316,16 @@ typedef struct surety_solve_options {
     long node_limit;         /* <= 0: none */
     int threads;             /* default 1; more run the decomposition's
                               * one-resource solves (price rounds, probes,
-                              * restored nodes) side by side, at most m at
-                              * once; the tree search stays on one thread.
-                              * Rounds and probes give the same values for
-                              * any value; a restored node may then solve
-                              * a resource more than it needs, which can
-                              * change the node count, not the optimum */
+                              * restored nodes) side by side, at most m
+                              * (and 64) at once; the tree search stays on
+                              * one thread. log is called from the
+                              * caller's thread only (the workers log
+                              * nothing); the workers also read *interrupt
+                              * and stop at it. Rounds and probes give the
+                              * same values for any value; a restored node
+                              * may then solve a resource more than it
+                              * needs, which can change the node count,
+                              * not the optimum */
     int verbosity;           /* max level passed to log; default INFO */
     double progress_s;       /* seconds between progress lines; <= 0 off */
     surety_log_fn log;       /* NULL: silent */
