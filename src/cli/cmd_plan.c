@@ -25,6 +25,16 @@ static int parse_positive(const char *cmd, const char *name, const char *arg, si
     return 0;
 }
 
+/* --threads for the solves of assure, bounds and frontier (as in solve) */
+static int parse_threads(const char *cmd, const char *arg, int *out)
+{
+    size_t th;
+    if (cli_parse_size(arg, &th) || th == 0 || th > 1024)
+        return cli_usage_error(cmd, "--threads needs a whole number from 1 to 1024");
+    *out = (int)th;
+    return 0;
+}
+
 /* ---- advise ------------------------------------------------------ */
 
 static const char advise_help[] =
@@ -503,13 +513,10 @@ int cmd_assure(int argc, char **argv)
         case 's': seed_arg = optarg; break;
         case 'o': out = optarg; break;
         case 'j': json = 1; break;
-        case OPT_THREADS: {
-            size_t th;
-            if (cli_parse_size(optarg, &th) || th == 0 || th > 1024)
-                return cli_usage_error("assure", "--threads needs a whole number from 1 to 1024");
-            aopt.solve.threads = (int)th;
+        case OPT_THREADS:
+            if (parse_threads("assure", optarg, &aopt.solve.threads))
+                return SURETY_EUSAGE;
             break;
-        }
         case 'h': fputs(assure_help, stdout); return 0;
         default: return cli_usage_error("assure", "unknown option");
         }
@@ -726,13 +733,10 @@ int cmd_bounds(int argc, char **argv)
         case 's': seed_arg = optarg; break;
         case 'o': out = optarg; break;
         case 'j': json = 1; break;
-        case OPT_THREADS: {
-            size_t th;
-            if (cli_parse_size(optarg, &th) || th == 0 || th > 1024)
-                return cli_usage_error("bounds", "--threads needs a whole number from 1 to 1024");
-            bopt.solve.threads = (int)th;
+        case OPT_THREADS:
+            if (parse_threads("bounds", optarg, &bopt.solve.threads))
+                return SURETY_EUSAGE;
             break;
-        }
         case 'h': fputs(bounds_help, stdout); return 0;
         default: return cli_usage_error("bounds", "unknown option");
         }
@@ -931,13 +935,10 @@ int cmd_frontier(int argc, char **argv)
         case 'P': png = optarg; break;
         case 'C': csv = optarg; break;
         case 'j': json = 1; break;
-        case OPT_THREADS: {
-            size_t th;
-            if (cli_parse_size(optarg, &th) || th == 0 || th > 1024)
-                return cli_usage_error("frontier", "--threads needs a whole number from 1 to 1024");
-            fopt.solve.threads = (int)th;
+        case OPT_THREADS:
+            if (parse_threads("frontier", optarg, &fopt.solve.threads))
+                return SURETY_EUSAGE;
             break;
-        }
         case 'h': fputs(frontier_help, stdout); return 0;
         default: return cli_usage_error("frontier", "unknown option");
         }
