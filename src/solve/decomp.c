@@ -782,13 +782,19 @@ static void watch_probes(const surety_solver *s, size_t j)
     surety_xfree(probed);
 }
 
-/* The best round's plan of sub u as the start of a probe or a node's
- * solve (u->pstart), before their own decisions are put in. */
-static void best_start(dec_sub *u)
+/* A probe's or a node's solve of resource i at the best round's prices,
+ * started from the best round's plan (u->pstart), before their own
+ * decisions are put in. */
+static sub_task best_task(const surety_solver *s, size_t i)
 {
+    solve_dec *d = s->dec;
+    dec_sub *u = &d->sub[i];
     u->pstart.n = u->nj;
     for (size_t t = 0; t < u->nj; t++)
         u->pstart.resource[t] = u->in_best[t] ? 0 : -1;
+    return (sub_task){.u = u, .lam = s->dec_lam,
+                      .cost = d->best_priced ? s->dec_mu + i * s->N0 : NULL,
+                      .start = &u->pstart};
 }
 
 /* Probes the pairs of the next job in the branching order: on each
@@ -814,7 +820,9 @@ static int probe_next(surety_solver *s, double deadline)
             q++;
         if (q == u->nj)
             continue; /* j may not enter i */
-        best_start(u);
+        sub_task *k = &d->task[nt++];
+        *k = best_task(s, i);
+        k->q = q;
         if (u->in_best[q]) {
             u->jobs[q].allowed = &u->zero;
             u->pstart.resource[q] = -1;
@@ -822,10 +830,6 @@ static int probe_next(surety_solver *s, double deadline)
             u->jobs[q].required = 1;
             u->pstart.resource[q] = 0;
         }
-        d->task[nt++] = (sub_task){
-            .u = u, .lam = s->dec_lam,
-            .cost = d->best_priced ? s->dec_mu + i * s->N0 : NULL,
-            .start = &u->pstart, .q = q};
     }
     run_subs(s, d->task, nt, deadline);
     int stopped = 0;
@@ -875,7 +879,7 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
     for (size_t r = 0; r < cnt; r++) {
         size_t i = i0 + r;
         dec_sub *u = &d->sub[i];
-        best_start(u);
+        d->task[r] = best_task(s, i);
         for (size_t t = 0; t < u->nj; t++) {
             size_t j = u->job[t];
             long st = s->state[j];
@@ -887,10 +891,6 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
                 u->pstart.resource[t] = -1;
             }
         }
-        d->task[r] = (sub_task){
-            .u = u, .lam = s->dec_lam,
-            .cost = d->best_priced ? s->dec_mu + i * s->N0 : NULL,
-            .start = &u->pstart};
     }
     run_subs(s, d->task, cnt, deadline);
     int stopped = 0;
