@@ -381,6 +381,12 @@ typedef struct surety_solve_options {
      * summed scenario prices to its bound, which lines the resources'
      * failures up (bench/README.md, "Findings"); for comparisons */
     int decomp_jobs_only;
+    /* non-zero: the price rounds move the prices by deflected subgradient
+     * steps, as before the bundle method (for comparisons); 0, the
+     * default: by a proximal bundle method, which keeps a cutting-plane
+     * model of each resource's value, refined by every round, and steps
+     * to the model's best point near the best prices so far */
+    int decomp_subgradient;
     /* non-zero: keep the scenarios that every feasible plan fits (dominated
      * by k+1 others, or fitting every plan) in the search instead of
      * setting them aside; for comparisons, default 0 */

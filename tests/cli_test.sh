@@ -79,6 +79,13 @@ grep '"objective"' "$tmp/out" >"$tmp/obj0"
 expect 0 "split with job prices only" -- "$surety" solve "$tut" --split-after 1 --split-prices jobs --json --quiet
 has "$tmp/out" "$(cat "$tmp/obj0")" "same objective with job prices only"
 expect 1 "bad --split-prices" -- "$surety" solve "$tut" --split-prices none
+# how the rounds move the prices: a bundle (default) or subgradient steps;
+# the same optimum either way
+expect 0 "split with subgradient steps" -- "$surety" solve "$tut" --split-after 1 --split-steps subgradient --json --quiet
+has "$tmp/out" "$(cat "$tmp/obj0")" "same objective with subgradient steps"
+expect 0 "split with bundle steps" -- "$surety" solve "$tut" --split-after 1 --split-steps bundle --json --quiet
+has "$tmp/out" "$(cat "$tmp/obj0")" "same objective with bundle steps"
+expect 1 "bad --split-steps" -- "$surety" solve "$tut" --split-steps newton
 # the most price rounds: the log counts them (4 by then without the cap)
 expect 4 "two price rounds" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --split-after 1 --split-rounds 2 --node-limit 20000 --progress
 has "$tmp/err" ", 2 price rounds," "--split-rounds caps the rounds"

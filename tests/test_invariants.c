@@ -52,6 +52,7 @@ static void run_prices(const solve_gen_params *p, long dives, int lp,
     o.decomp_after = split ? 1 : -1;
     o.decomp_rounds = rounds;
     o.decomp_jobs_only = !prices;
+    o.decomp_subgradient = p->seed % 5 == 2; /* the older steps, too */
     o.threads = threads;
     surety_result *res = NULL;
     surety_error err = {0};

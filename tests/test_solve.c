@@ -1468,6 +1468,7 @@ Test(solve, price_rounds_keep_the_bound_their_prices_give)
         o.dive_nodes = 1;
         o.lp_after = -1;
         o.decomp_after = 1;
+        o.decomp_subgradient = t % 4 == 1; /* the older steps, too */
         surety_result *res = NULL;
         surety_error err;
         surety_error_clear(&err);

@@ -16,6 +16,7 @@ static const char solve_help[] =
     "                    [--time-limit SEC] [--gap G] [--node-limit K]\n"
     "                    [--lp-after K|never] [--split-after K|never]\n"
     "                    [--split-prices jobs|scenarios] [--split-rounds K]\n"
+    "                    [--split-steps bundle|subgradient]\n"
     "                    [--split-root-only] [--keep-dominated]\n"
     "                    [--threads T] [--progress] [--quiet] [--json]\n"
     "\n"
@@ -47,6 +48,10 @@ static const char solve_help[] =
     "                    are tried (default 60; fewer if the prices settle);\n"
     "                    more tighten the bound on long runs of thousands of\n"
     "                    scenarios, and slow short ones\n"
+    "  --split-steps S   how the rounds move the prices: 'bundle' (default: to\n"
+    "                    the best point of a model that every round refines)\n"
+    "                    or 'subgradient' (steps along each round's\n"
+    "                    direction; for comparisons)\n"
     "  --split-root-only after the placements are tried, bound the open nodes\n"
     "                    by them alone; by default each node taken up again\n"
     "                    from the best bound solves the split with all of its\n"
@@ -276,6 +281,7 @@ int cmd_solve(int argc, char **argv)
         {"keep-dominated", no_argument, 0, 'D'},
         {"split-prices", required_argument, 0, 'P'},
         {"split-rounds", required_argument, 0, 'R'},
+        {"split-steps", required_argument, 0, 'B'},
         {"split-root-only", no_argument, 0, 'O'},
         {"progress", no_argument, 0, 'p'},
         {"quiet", no_argument, 0, 'q'},
@@ -326,6 +332,11 @@ int cmd_solve(int argc, char **argv)
             if (strcmp(optarg, "jobs") != 0 && strcmp(optarg, "scenarios") != 0)
                 return cli_usage_error("solve", "--split-prices needs 'jobs' or 'scenarios'");
             sopt.decomp_jobs_only = strcmp(optarg, "jobs") == 0;
+            break;
+        case 'B':
+            if (strcmp(optarg, "bundle") != 0 && strcmp(optarg, "subgradient") != 0)
+                return cli_usage_error("solve", "--split-steps needs 'bundle' or 'subgradient'");
+            sopt.decomp_subgradient = strcmp(optarg, "subgradient") == 0;
             break;
         case 'R':
             if (cli_parse_size(optarg, &v) || v == 0 || v > 100000)

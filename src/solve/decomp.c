@@ -42,7 +42,15 @@
  * 40-job, 100-scenario instances close 2 to 3.5 times sooner
  * (bench/README.md, "Findings").
  *
- * Prices by subgradient steps from bound.c's prices (Polyak's step toward
+ * The prices start at bound.c's. By default each round's plans refine a
+ * cutting-plane model of every V_i and of T, and the next prices minimise
+ * that model near the best prices so far (a proximal bundle method,
+ * bundle.c; bundle_round): the rounds reach lower bounds than the
+ * subgradient steps below, which use only the last round's plans (on the
+ * n=40, m=4, N=1000 instance, scenario seeds 1 and 4 in 240 s: 31 486 and
+ * 31 616 against 31 625 and 31 774; bench/README.md, "Findings").
+ * For comparisons (decomp_subgradient), subgradient steps from bound.c's
+ * prices (Polyak's step toward
  * the incumbent, halved when the bound stalls: Held, Wolfe & Crowder
  * 1974; with scenario prices, the predicted decrease split evenly between
  * the two blocks of prices), each block's direction deflected by its last
@@ -81,6 +89,7 @@
 #include <string.h>
 
 #include "alloc.h"
+#include "solve/bundle.h"
 #include "solve/solve.h"
 
 /* One resource's problem: a model of its own over the jobs that may enter
@@ -244,6 +253,11 @@ struct solve_dec {
     unsigned *nf;  /* N0: resources that fail it */
     double theta;
     int stall;
+    surety_bundle *bun; /* the bundle's model (bundle_round), or NULL */
+    double *bx;    /* n + m*N0: a point of the bundle (lam, then mu) */
+    size_t *bi;    /* n + m*N0: a cut's coordinates */
+    double *bv;    /* n + m*N0: a cut's slope entries */
+    unsigned char *fresh; /* m: this round's solve gave resource i a plan */
     int probing;   /* the rounds are over: pairs are probed */
     size_t next;   /* position in s->order of the next job to probe */
 };
@@ -366,6 +380,11 @@ void surety_decomp_free(surety_solver *s)
     surety_xfree(d->scs);
     surety_xfree(d->task);
     surety_xfree(d->ord);
+    surety_bundle_free(d->bun);
+    surety_xfree(d->bx);
+    surety_xfree(d->bi);
+    surety_xfree(d->bv);
+    surety_xfree(d->fresh);
     surety_xfree(d);
     s->dec = NULL;
 }
@@ -419,7 +438,8 @@ static int dec_init(surety_solver *s)
     d->scs = surety_xcalloc(d->nthr, sizeof *d->scs);
     d->task = surety_xcalloc(m, sizeof *d->task);
     d->ord = surety_xmalloc(m, sizeof *d->ord);
-    if (!d->scs || !d->task || !d->ord)
+    d->fresh = surety_xcalloc(m, 1);
+    if (!d->scs || !d->task || !d->ord || !d->fresh)
         return -1;
     for (size_t w = 0; w < d->nthr; w++) {
         d->scs[w].hours = surety_xmalloc(s->N0 * most, sizeof *d->scs->hours);
@@ -554,6 +574,153 @@ static double deflect(double *g, double *dir, size_t len)
     return nn;
 }
 
+/* The bundle's start (bundle.c): the prices as one point x = (lam, mu),
+ * f(x) = sum_j lam_j + T(mu) + sum_i V_i(lam, mu_i) with e the slope of
+ * the first sum, lam_j in [0, p_j] for an optional job (a price above the
+ * profit changes no V_i), free for a required one, 0 for a job the root
+ * has decided, and mu >= 0. Components: each V_i, then T. Each V_i starts
+ * with the empty plan's cut (V_i >= 0: no sub-problem has a required
+ * job), so that every model is bounded below. t0 is Polyak's step length
+ * toward the target, the subgradient's squared norm being g2. */
+static int bundle_begin(surety_solver *s, double L, double g2)
+{
+    size_t n = s->n, m = s->m, N0 = s->N0;
+    solve_dec *d = s->dec;
+    size_t dim = n + (d->mu ? m * N0 : 0);
+    double *e = surety_xmalloc(dim, sizeof *e);
+    double *lo = surety_xmalloc(dim, sizeof *lo);
+    double *hi = surety_xmalloc(dim, sizeof *hi);
+    d->bx = surety_xmalloc(dim, sizeof *d->bx);
+    d->bi = surety_xmalloc(dim, sizeof *d->bi);
+    d->bv = surety_xmalloc(dim, sizeof *d->bv);
+    int ok = e && lo && hi && d->bx && d->bi && d->bv;
+    if (ok) {
+        for (size_t j = 0; j < n; j++) {
+            int open = s->state[j] == SURETY_JOB_FREE;
+            e[j] = open ? 1 : 0;
+            lo[j] = !open ? 0 : s->required[j] ? -INFINITY : 0;
+            hi[j] = !open ? 0 : s->required[j] ? INFINITY
+                    : s->p[j] > 0 ? s->p[j] : 0;
+        }
+        for (size_t x = n; x < dim; x++) {
+            e[x] = 0;
+            lo[x] = 0;
+            hi[x] = INFINITY;
+        }
+        double target = s->have_inc ? s->inc : L - 0.05 * fabs(L) - 1;
+        double t0 = (L - target) / g2;
+        size_t ncomp = m + (d->mu ? 1 : 0);
+        d->bun = surety_bundle_new(dim, ncomp, 40, e, lo, hi, t0);
+        ok = d->bun != NULL;
+        for (size_t i = 0; ok && i < m; i++)
+            ok = surety_bundle_cut(d->bun, i, 0, NULL, NULL, 0) == 0;
+    }
+    surety_xfree(e);
+    surety_xfree(lo);
+    surety_xfree(hi);
+    return ok ? 0 : -1;
+}
+
+/* A bundle round (unless decomp_subgradient): the cuts of this round's plans, then
+ * the bundle's next prices. Each resource's plan X, with F_i(X) the
+ * scenarios it overloads, gives V_i(lam', mu') >= sum_{j in X} (p_j -
+ * lam'_j) - sum_{l in F_i(X)} mu'_il at any prices (X is one of V_i's
+ * job sets), and the k scenarios of largest summed price S give
+ * T(mu') >= sum_{l in S} sum_i mu'_il. The bound of the round is f at its
+ * prices, computed by the caller from the sub-solves' own bounds; the
+ * bundle only chooses where to evaluate next. Returns as price_round:
+ * 0 for another round, 1 when the model predicts (almost) no decrease,
+ * or when out of memory. */
+static int bundle_round(surety_solver *s, double L)
+{
+    size_t n = s->n, m = s->m, N0 = s->N0;
+    solve_dec *d = s->dec;
+    int priced = d->mu != NULL;
+    double g2 = 0;
+    if (!d->bun) {
+        for (size_t j = 0; j < n; j++)
+            if (s->state[j] == SURETY_JOB_FREE)
+                g2 += (1 - d->xs[j]) * (1 - d->xs[j]);
+    }
+    if (priced) {
+        top_k(s, d); /* the k scenarios of largest summed price: srt */
+        memset(d->nf, 0, N0 * sizeof *d->nf); /* reused: in the top k */
+        for (size_t r = 0; r < s->k && r < N0; r++)
+            d->nf[d->srt[r]] = 1;
+        for (size_t i = 0; i < m; i++) {
+            unsigned char *zf = d->zf + i * N0;
+            if (d->fresh[i] && d->sub[i].nj)
+                sub_fails(s, &d->sub[i], &d->sub[i].start, zf);
+            else
+                memset(zf, 0, N0);
+            if (!d->bun)
+                for (size_t l = 0; l < N0; l++) {
+                    double g = (double)d->nf[l] - zf[l];
+                    g2 += g * g;
+                }
+        }
+    }
+    if (!d->bun) {
+        if (!(g2 > 0))
+            return 1; /* a zero subgradient: no prices do better */
+        if (bundle_begin(s, L, g2) != 0)
+            return 1; /* the bound so far stands */
+    }
+    size_t *bi = d->bi;
+    double *bv = d->bv;
+    for (size_t i = 0; i < m; i++) {
+        dec_sub *u = &d->sub[i];
+        if (!d->fresh[i] || !u->nj)
+            continue;
+        size_t nnz = 0;
+        double a = 0;
+        for (size_t t = 0; t < u->nj; t++)
+            if (u->start.resource[t] >= 0) {
+                a += s->p[u->job[t]];
+                bi[nnz] = u->job[t];
+                bv[nnz++] = -1;
+            }
+        if (priced)
+            for (size_t l = 0; l < N0; l++)
+                if (d->zf[i * N0 + l]) {
+                    bi[nnz] = n + i * N0 + l;
+                    bv[nnz++] = -1;
+                }
+#ifdef SURETY_CHECK_INVARIANTS
+        double cv = a;
+        for (size_t q = 0; q < nnz; q++)
+            cv -= bi[q] < n ? d->lam[bi[q]] : d->mu[bi[q] - n];
+        if (cv > d->v[i] + 1e-7 * (s->pscale + 1) + 1e-9 * fabs(cv)) {
+            fprintf(stderr, "invariant: resource %zu's plan is worth %.12g "
+                    "at the round's prices, above its bound %.12g\n", i,
+                    cv, d->v[i]);
+            abort();
+        }
+#endif
+        if (surety_bundle_cut(d->bun, i, a, bi, bv, nnz) != 0)
+            return 1;
+    }
+    if (priced) {
+        size_t nnz = 0;
+        for (size_t r = 0; r < s->k && r < N0; r++)
+            for (size_t i = 0; i < m; i++) {
+                bi[nnz] = n + i * N0 + d->srt[r];
+                bv[nnz++] = 1;
+            }
+        if (surety_bundle_cut(d->bun, m, 0, bi, bv, nnz) != 0)
+            return 1;
+    }
+    double *x = d->bx;
+    memcpy(x, d->lam, n * sizeof *x);
+    if (priced)
+        memcpy(x + n, d->mu, m * N0 * sizeof *x);
+    double pred = surety_bundle_step(d->bun, x, L, x);
+    memcpy(d->lam, x, n * sizeof *x);
+    if (priced)
+        memcpy(d->mu, x + n, m * N0 * sizeof *x);
+    return pred > 1e-7 * (fabs(L) + 1) ? 0 : 1;
+}
+
 /* One subgradient round. Returns 0 when more rounds may help, 1 when they
  * will not (converged, or the most rounds: 60 by default), 2 when the work
  * should stop (a limit stopped a sub-solve, or the bound no longer beats
@@ -590,6 +757,7 @@ static int price_round(surety_solver *s, double deadline)
         dec_sub *u = &d->sub[i];
         d->v[i] = task[i].v;
         L += d->v[i];
+        d->fresh[i] = u->have_start;
         if (u->have_start) /* this round's plan counts into xs */
             for (size_t t = 0; t < u->nj; t++)
                 if (u->start.resource[t] >= 0)
@@ -626,7 +794,11 @@ static int price_round(surety_solver *s, double deadline)
     if (!(s->dec_root > surety_cutoff(s)))
         return 2;
     long most = s->opt->decomp_rounds > 0 ? s->opt->decomp_rounds : 60;
-    if (d->theta < 1.0 / 64 || s->dec_iters >= most)
+    if (s->dec_iters >= most)
+        return 1;
+    if (!s->opt->decomp_subgradient)
+        return bundle_round(s, L);
+    if (d->theta < 1.0 / 64)
         return 1;
     double norm = 0, nmu = 0;
     for (size_t j = 0; j < n; j++) {
