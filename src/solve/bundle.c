@@ -190,8 +190,10 @@ int surety_bundle_cut(surety_bundle *b, size_t c, double a,
         surety_xfree(cv);
         return -1;
     }
-    memcpy(ci, idx, nnz * sizeof *idx);
-    memcpy(cv, val, nnz * sizeof *val);
+    if (nnz) { /* idx and val may be NULL for a constant cut */
+        memcpy(ci, idx, nnz * sizeof *idx);
+        memcpy(cv, val, nnz * sizeof *val);
+    }
     bcut *base = b->cut + c * b->cap;
     if (b->ncut[c] == b->cap && compress(b, c) != 0) {
         surety_xfree(ci);
