@@ -55,6 +55,9 @@ struct surety_bundle {
     size_t *ncut;        /* ncomp: cuts held */
     double *y, *w;       /* dim scratch: a point, a slope sum */
     double *pa, *pb, *pg; /* the weights' scratch (ncomp * cap each) */
+    double *pp, *pq;     /* the master's last weights, the gradient at its
+                          * extrapolated ones (ncomp * cap each) */
+    double *ps;          /* cap: the simplex projection's scratch */
     long step;           /* steps so far */
     long serious;
     int nnull;           /* null steps since the last serious one */
@@ -83,8 +86,12 @@ surety_bundle *surety_bundle_new(size_t dim, size_t ncomp, size_t cap,
     b->pa = surety_xmalloc(ncomp * cap, sizeof *b->pa);
     b->pb = surety_xmalloc(ncomp * cap, sizeof *b->pb);
     b->pg = surety_xmalloc(ncomp * cap, sizeof *b->pg);
+    b->pp = surety_xmalloc(ncomp * cap, sizeof *b->pp);
+    b->pq = surety_xmalloc(ncomp * cap, sizeof *b->pq);
+    b->ps = surety_xmalloc(cap, sizeof *b->ps);
     if (!b->e || !b->lo || !b->hi || !b->centre || !b->y || !b->w ||
-        !b->cut || !b->ncut || !b->pa || !b->pb || !b->pg) {
+        !b->cut || !b->ncut || !b->pa || !b->pb || !b->pg || !b->pp ||
+        !b->pq || !b->ps) {
         surety_bundle_free(b);
         return NULL;
     }
@@ -114,6 +121,9 @@ void surety_bundle_free(surety_bundle *b)
     surety_xfree(b->pa);
     surety_xfree(b->pb);
     surety_xfree(b->pg);
+    surety_xfree(b->pp);
+    surety_xfree(b->pq);
+    surety_xfree(b->ps);
     surety_xfree(b);
 }
 
@@ -126,9 +136,9 @@ long surety_bundle_serious(const surety_bundle *b)
  * weight goes (the one unused longest); when every cut has weight, they
  * are merged into their aggregate sum_k alpha_k (a_k + g_k.y), itself a
  * valid cut, which alone reproduces the last master's solution. Keeping
- * the aggregate is what lets a bounded bundle still converge (Kiwiel
- * 1985, "Methods of descent for nondifferentiable optimization", Lecture
- * Notes in Math. 1133; cited from memory). 0, or -1 out of memory. */
+ * the aggregate is what lets a bounded bundle still converge (the
+ * aggregate subgradient of Kiwiel 1985, cited from memory). 0, or -1
+ * out of memory. */
 static int compress(surety_bundle *b, size_t c)
 {
     bcut *base = b->cut + c * b->cap;
@@ -362,59 +372,52 @@ static double master(surety_bundle *b)
     double lip = b->t * slope_norm2(b);
     if (!(lip > 0))
         lip = 1e-12 * b->t; /* grows by backtracking below */
-    double *prev = surety_xmalloc(tot, sizeof *prev);
-    double *tmp = surety_xmalloc(cap, sizeof *tmp);
-    double *gb = surety_xmalloc(tot, sizeof *gb);
+    double *prev = b->pp, *tmp = b->ps, *gb = b->pq;
     double gap = 0, mv = 0;
-    if (prev && tmp && gb) {
-        memcpy(prev, al, tot * sizeof *al);
-        memcpy(be, al, tot * sizeof *al);
-        double th = 1;
-        for (int it = 0; it < 3000; it++) {
-            master_point(b, be);
-            double db = dual_value(b, be);
-            for (size_t c = 0; c < nc; c++)
-                for (size_t q = 0; q < b->ncut[c]; q++)
-                    gb[c * cap + q] = b->cut[c * cap + q].v;
-            /* the step 1/lip, lip doubled until the ascent it promises
-             * holds (backtracking: Beck & Teboulle 2009, s. 4) */
-            for (int tries = 0; tries < 60; tries++) {
-                double lin = 0, sq = 0;
-                for (size_t c = 0; c < nc; c++) {
-                    size_t nk = b->ncut[c];
-                    double *v = al + c * cap;
-                    for (size_t q = 0; q < nk; q++)
-                        v[q] = be[c * cap + q] + gb[c * cap + q] / lip;
-                    if (nk)
-                        proj_simplex(v, nk, tmp);
-                    for (size_t q = 0; q < nk; q++) {
-                        double dq = v[q] - be[c * cap + q];
-                        lin += gb[c * cap + q] * dq;
-                        sq += dq * dq;
-                    }
+    memcpy(prev, al, tot * sizeof *al);
+    memcpy(be, al, tot * sizeof *al);
+    double th = 1;
+    for (int it = 0; it < 3000; it++) {
+        master_point(b, be);
+        double db = dual_value(b, be);
+        for (size_t c = 0; c < nc; c++)
+            for (size_t q = 0; q < b->ncut[c]; q++)
+                gb[c * cap + q] = b->cut[c * cap + q].v;
+        /* the step 1/lip, lip doubled until the ascent it promises
+         * holds (backtracking: Beck & Teboulle 2009, s. 4) */
+        for (int tries = 0; tries < 60; tries++) {
+            double lin = 0, sq = 0;
+            for (size_t c = 0; c < nc; c++) {
+                size_t nk = b->ncut[c];
+                double *v = al + c * cap;
+                for (size_t q = 0; q < nk; q++)
+                    v[q] = be[c * cap + q] + gb[c * cap + q] / lip;
+                if (nk)
+                    proj_simplex(v, nk, tmp);
+                for (size_t q = 0; q < nk; q++) {
+                    double dq = v[q] - be[c * cap + q];
+                    lin += gb[c * cap + q] * dq;
+                    sq += dq * dq;
                 }
-                master_point(b, al);
-                double da = dual_value(b, al);
-                if (da >= db + lin - lip / 2 * sq -
-                              1e-12 * (fabs(db) + 1))
-                    break;
-                lip *= 2;
             }
-            mv = model_value(b, al, &gap);
-            double pred = b->fc - mv;
-            if (gap <= 0.01 * (pred > 0 ? pred : 0) + 1e-9 * (fabs(b->fc) + 1))
+            master_point(b, al);
+            double da = dual_value(b, al);
+            if (da >= db + lin - lip / 2 * sq -
+                          1e-12 * (fabs(db) + 1))
                 break;
-            double th1 = (1 + sqrt(1 + 4 * th * th)) / 2, mom = (th - 1) / th1;
-            for (size_t q = 0; q < tot; q++) {
-                be[q] = al[q] + mom * (al[q] - prev[q]);
-                prev[q] = al[q];
-            }
-            th = th1;
+            lip *= 2;
         }
+        mv = model_value(b, al, &gap);
+        double pred = b->fc - mv;
+        if (gap <= 0.01 * (pred > 0 ? pred : 0) + 1e-9 * (fabs(b->fc) + 1))
+            break;
+        double th1 = (1 + sqrt(1 + 4 * th * th)) / 2, mom = (th - 1) / th1;
+        for (size_t q = 0; q < tot; q++) {
+            be[q] = al[q] + mom * (al[q] - prev[q]);
+            prev[q] = al[q];
+        }
+        th = th1;
     }
-    surety_xfree(gb);
-    surety_xfree(prev);
-    surety_xfree(tmp);
     master_point(b, al);
     mv = model_value(b, al, &gap);
     for (size_t c = 0; c < nc; c++)
