@@ -907,6 +907,65 @@ Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
     cr_log_info("rounds in %d solves, probes in %d", runs, probed);
 }
 
+/* Each price round's one-resource plans made into a whole plan
+ * (heur.c surety_heur_from: conflicts settled, jobs dropped to the joint
+ * allowance, then the local search) and offered as an incumbent. Solved
+ * light (the root's greedy without its local search, as sub-solves are),
+ * so that the rounds' plans have incumbents to beat; the answers must be
+ * the enumerated ones, and some rounds' plans must have been taken (the
+ * log line counts them). The invariant build also checks each such plan
+ * against the library's count (decomp.c, round_plan). */
+Test(solve, plans_from_price_rounds_keep_the_enumerated_optimum)
+{
+    int runs = 0;
+    double taken = 0;
+    for (uint64_t t = 0; t < 120; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(29000 + t), 9, 3, t % 4 == 0 ? 120 : 40);
+        if (p.m < 2)
+            p.m = 2;
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = 1;
+        o.decomp_after = 1;
+        o.decomp_subgradient = t % 3 == 0;
+        o.lp_after = -1;
+        lp_log g = {"decomposition bound: %*f, %*d price rounds, %*d nodes "
+                    "in one-resource solves, %*f s; %lf better plans",
+                    0, 0};
+        o.log = catch_line;
+        o.log_ctx = &g;
+        surety_result *res = NULL;
+        cr_assert_eq(surety_solve_inner(md, sc, &o, 1, &res, NULL),
+                     SURETY_OK);
+        check_result(md, sc, res);
+        cr_assert_eq(surety_result_status(res),
+                     feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE,
+                     "instance %lu: status %s", (unsigned long)t,
+                     surety_status_name(surety_result_status(res)));
+        if (feas)
+            cr_assert(fabs(surety_result_objective(res) - bf) <=
+                          1e-9 * (1 + fabs(bf)),
+                      "instance %lu (n=%zu m=%zu N=%zu %s): solver %.12g, "
+                      "enumeration %.12g", (unsigned long)t, p.n, p.m, p.N,
+                      p.separate ? "separate" : "joint",
+                      surety_result_objective(res), bf);
+        runs += g.seen;
+        taken += g.seen ? g.value : 0;
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("rounds in %d solves, %.0f plans taken from them", runs,
+                taken);
+    cr_assert(runs >= 30, "the decomposition ran in only %d solves", runs);
+    cr_assert(taken >= 5, "only %.0f plans came from the rounds", taken);
+}
+
 /* The probes after the price rounds (one or two rounds here, so they come
  * soon): each pair's one-resource problem with the job forced in or kept
  * out caps every node that takes that decision, and pairs whose cap alone

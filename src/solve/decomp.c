@@ -62,6 +62,11 @@
  * bound holds for every plan that beats the cutoff, which is all the
  * search needs.
  *
+ * Each round's plans, one per resource, also make a whole plan (a
+ * Lagrangian heuristic, heur.c surety_heur_from): a job several resources
+ * hold goes to one of them, jobs leave until the joint allowance holds,
+ * and the local search improves the rest; it is offered as an incumbent.
+ *
  * After the rounds, probes at the best round's prices (the reduction tests
  * of Lagrangian relaxation, which bound a problem with one variable fixed:
  * Beasley 1993, "Lagrangean relaxation", in Reeves (ed.), Modern Heuristic
@@ -258,6 +263,9 @@ struct solve_dec {
     size_t *bi;    /* n + m*N0: a cut's coordinates */
     double *bv;    /* n + m*N0: a cut's slope entries */
     unsigned char *fresh; /* m: this round's solve gave resource i a plan */
+    unsigned char *want; /* n*m: the round's plans that hold job j */
+    long *hplan;   /* n: a plan made from them (surety_heur_from) */
+    uint64_t hseed; /* its local search's random sequence */
     int probing;   /* the rounds are over: pairs are probed */
     size_t next;   /* position in s->order of the next job to probe */
 };
@@ -385,6 +393,8 @@ void surety_decomp_free(surety_solver *s)
     surety_xfree(d->bi);
     surety_xfree(d->bv);
     surety_xfree(d->fresh);
+    surety_xfree(d->want);
+    surety_xfree(d->hplan);
     surety_xfree(d);
     s->dec = NULL;
 }
@@ -439,7 +449,9 @@ static int dec_init(surety_solver *s)
     d->task = surety_xcalloc(m, sizeof *d->task);
     d->ord = surety_xmalloc(m, sizeof *d->ord);
     d->fresh = surety_xcalloc(m, 1);
-    if (!d->scs || !d->task || !d->ord || !d->fresh)
+    d->want = surety_xmalloc(n * m, 1);
+    d->hplan = surety_xmalloc(n, sizeof *d->hplan);
+    if (!d->scs || !d->task || !d->ord || !d->fresh || !d->want || !d->hplan)
         return -1;
     for (size_t w = 0; w < d->nthr; w++) {
         d->scs[w].hours = surety_xmalloc(s->N0 * most, sizeof *d->scs->hours);
@@ -452,6 +464,7 @@ static int dec_init(surety_solver *s)
     for (size_t j = 0; j < n; j++)
         d->lam[j] = s->state[j] == SURETY_JOB_FREE ? s->lam[j] : 0;
     d->theta = 1;
+    d->hseed = 0x0dec5eedULL ^ (uint64_t)s->N0 * 0x9e3779b97f4a7c15ULL;
     return 0;
 }
 
@@ -721,6 +734,41 @@ static int bundle_round(surety_solver *s, double L)
     return pred > 1e-7 * (fabs(L) + 1) ? 0 : 1;
 }
 
+/* A whole plan from this round's one-resource plans (surety_heur_from),
+ * offered as an incumbent. */
+static void round_plan(surety_solver *s)
+{
+    size_t n = s->n, m = s->m;
+    solve_dec *d = s->dec;
+    memset(d->want, 0, n * m);
+    for (size_t i = 0; i < m; i++) {
+        const dec_sub *u = &d->sub[i];
+        if (d->fresh[i])
+            for (size_t t = 0; t < u->nj; t++)
+                if (u->start.resource[t] >= 0)
+                    d->want[u->job[t] * m + i] = 1;
+    }
+    int found = surety_heur_from(s, d->want, d->hplan, &d->hseed);
+#ifdef SURETY_CHECK_INVARIANTS
+    /* the root's decisions kept; a plan said to fit, fits */
+    for (size_t j = 0; j < n; j++)
+        if (s->state[j] != SURETY_JOB_FREE && d->hplan[j] != s->state[j] &&
+            found) {
+            fprintf(stderr, "invariant: the rounds' plan moves job %zu, "
+                    "which the root has decided\n", j);
+            abort();
+        }
+    surety_plan pl = {n, d->hplan};
+    if (found && !surety_plan_feasible(s->model, &pl, s->sc)) {
+        fprintf(stderr, "invariant: the rounds' plan fails more scenarios "
+                "than the allowance\n");
+        abort();
+    }
+#endif
+    if (found && surety_solve_offer(s, d->hplan))
+        s->dec_found++;
+}
+
 /* One subgradient round. Returns 0 when more rounds may help, 1 when they
  * will not (converged, or the most rounds: 60 by default), 2 when the work
  * should stop (a limit stopped a sub-solve, or the bound no longer beats
@@ -768,6 +816,7 @@ static int price_round(surety_solver *s, double deadline)
     if (!(L < INFINITY))
         return 2; /* a limit stopped a sub-solve: this round is not known */
     s->dec_iters++;
+    round_plan(s);
 #ifdef SURETY_CHECK_INVARIANTS
     chk_round(s, L);
 #endif

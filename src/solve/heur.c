@@ -526,6 +526,95 @@ int surety_heur_improve(surety_solver *s, long *plan, size_t iters)
     return within(s);
 }
 
+/* A plan from the one-resource plans of a price round (a Lagrangian
+ * heuristic: the relaxation's solution made feasible, as in Fisher 1981,
+ * "The Lagrangian relaxation method for solving integer programming
+ * problems", cited from memory). want (n*m flags) marks the resources
+ * whose plans hold job j. A job one resource wants goes there; a job
+ * several want goes, most profitable first, to the one of them it adds
+ * the fewest failed scenarios to. While the plan fails more than the
+ * allowance, the optional job whose removal saves the most failed weight
+ * per unit of profit leaves (the least profitable when no single removal
+ * saves any); required jobs left out are then placed as the greedy does;
+ * then the local search. Jobs the root has decided (s->state) keep their
+ * state. Returns 1 with a plan in `plan` that is within the allowance by
+ * the heuristic's count (the caller offers it: surety_solve_offer
+ * re-counts it), else 0. */
+int surety_heur_from(surety_solver *s, const unsigned char *want, long *plan,
+                     uint64_t *seed)
+{
+    if (!s->hkey)
+        return 0;
+    size_t n = s->n, m = s->m;
+    const long *fixed = s->state;
+    for (size_t j = 0; j < n; j++)
+        plan[j] = fixed[j] == SURETY_JOB_FREE ? SURETY_JOB_OUT : fixed[j];
+    reset(s, plan);
+    for (int many = 0; many < 2; many++)
+        for (size_t t = 0; t < s->ncand; t++) {
+            size_t j = s->hordp[t], c = 0;
+            if (!movable(fixed, j))
+                continue;
+            for (size_t i = 0; i < m; i++)
+                c += want[j * m + i] && s->allowed[j * m + i];
+            if (c == 0 || (c > 1) != many)
+                continue;
+            long best = -1;
+            size_t bestf = SIZE_MAX;
+            for (size_t i = 0; i < m; i++) {
+                if (!want[j * m + i] || !s->allowed[j * m + i])
+                    continue;
+                size_t f = fail_after(s, i, j, SIZE_MAX);
+                if (f < bestf) {
+                    best = (long)i;
+                    bestf = f;
+                }
+            }
+            change(s, j, (size_t)best, 1);
+            plan[j] = best;
+        }
+    while (!within(s)) {
+        long drop = -1;
+        double score = -INFINITY;
+        for (size_t j = 0; j < n; j++) {
+            if (plan[j] < 0 || !movable(fixed, j) || s->required[j])
+                continue;
+            size_t i = (size_t)plan[j], g = group_of(s, i);
+            double saved = (double)s->hfail[g] -
+                           (double)fail_after(s, i, SIZE_MAX, j);
+            double p = s->p[j] > 1e-12 ? s->p[j] : 1e-12;
+            /* saving weight first; among none, the least profitable */
+            double sc = saved > 0 ? saved / p : -p;
+            if (sc > score) {
+                score = sc;
+                drop = (long)j;
+            }
+        }
+        if (drop < 0)
+            return 0; /* only required jobs are left to move */
+        change(s, (size_t)drop, (size_t)plan[drop], -1);
+        plan[drop] = SURETY_JOB_OUT;
+    }
+    for (size_t j = 0; j < n; j++) {
+        if (!s->required[j] || plan[j] >= 0 || !movable(fixed, j))
+            continue;
+        long i = best_resource(s, j, 1);
+        if (i < 0)
+            return 0;
+        change(s, j, (size_t)i, 1);
+        plan[j] = i;
+    }
+    if (!within(s))
+        return 0;
+    polish(s, plan, fixed);
+    double per = (double)n * (double)m * (double)s->N + 1, it = 1e8 / per;
+    ils(s, plan, fixed, it < 100 ? 100 : it > 3000 ? 3000 : (size_t)it,
+        300, seed);
+    polish(s, plan, fixed);
+    reset(s, plan); /* the count from scratch, as the recount does it */
+    return within(s);
+}
+
 void surety_heur_free(surety_solver *s)
 {
     surety_xfree(s->hload);

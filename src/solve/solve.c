@@ -110,8 +110,9 @@ static double rel_gap(double obj, double bound)
 }
 
 /* One progress line: a mark ('*' new incumbent from the tree, 'H' from a
- * heuristic, 'L' from the local search run from the incumbent, 'R' the
- * root LP bound solved, 'D' the decomposition bound lowered, ' ' timed), elapsed seconds, nodes, open subtrees (waiting in the pool and
+ * heuristic, 'L' from the local search run from the incumbent, 'S' made
+ * from a price round's one-resource plans, 'R' the root LP bound solved,
+ * 'D' the decomposition bound lowered, ' ' timed), elapsed seconds, nodes, open subtrees (waiting in the pool and
  * on the dive path), incumbent, bound, gap. Header every 20 lines. */
 void surety_solve_log_progress(surety_solver *s, int force, char mark)
 {
@@ -603,8 +604,9 @@ static surety_code solve_run(const surety_model *model,
     if (s.dec_iters)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition bound: %.6f, %ld price rounds, %ld nodes in "
-              "one-resource solves, %.2f s",
-              s.dec_root, s.dec_iters, s.dec_nodes, s.dec_secs);
+              "one-resource solves, %.2f s; %ld better plans made from "
+              "the rounds' plans",
+              s.dec_root, s.dec_iters, s.dec_nodes, s.dec_secs, s.dec_found);
     if (s.dec_probes)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition probes: %ld one-resource solves with one job "

@@ -268,6 +268,7 @@ struct surety_solver {
     int dec_done;        /* no more rounds or probes */
     double dec_root;     /* the best round's value, or INFINITY */
     long dec_iters, dec_nodes; /* price rounds, nodes of the sub-solves */
+    long dec_found; /* incumbents made from the rounds' plans */
     unsigned long long dec_knaps; /* knapsacks of the sub-solves */
     unsigned long long dec_knaps0; /* knaps when the first step came */
     int dec_started;     /* the first step has come */
@@ -332,6 +333,12 @@ int surety_heur_complete(surety_solver *s, const long *fixed, long *plan,
  * sequence, then local search; returns 1 when plan became more profitable
  * and stays within the allowance by the heuristic's count. */
 int surety_heur_improve(surety_solver *s, long *plan, size_t iters);
+
+/* heur.c: a plan from a price round's one-resource plans (want: n*m
+ * flags, the resources whose plans hold each job), repaired to the
+ * allowance and improved by the local search; 1 when one is found. */
+int surety_heur_from(surety_solver *s, const unsigned char *want, long *plan,
+                     uint64_t *seed);
 
 void surety_heur_free(surety_solver *s);
 

@@ -331,6 +331,7 @@ static void decomp_round(surety_solver *s)
     }
     double now = surety_solve_now(), tl = s->opt->time_limit_s;
     double before = s->dec_root;
+    long found = s->dec_found;
     int r = surety_decomp_round(s, tl > 0 ? s->t0 + tl : INFINITY);
     s->dec_secs += surety_solve_now() - now;
     if (r != 0) {
@@ -341,6 +342,8 @@ static void decomp_round(surety_solver *s)
     }
     if (s->dec_root < s->root_cap)
         s->root_cap = s->dec_root;
+    if (s->dec_found > found)
+        surety_solve_log_progress(s, 1, 'S');
     if (s->dec_root < before)
         surety_solve_log_progress(s, 1, 'D');
 }
