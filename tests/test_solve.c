@@ -935,7 +935,9 @@ Test(solve, plans_from_price_rounds_keep_the_enumerated_optimum)
         o.decomp_subgradient = t % 3 == 0;
         o.lp_after = -1;
         lp_log g = {"decomposition bound: %*f, %*d price rounds, %*d nodes "
-                    "in one-resource solves, %*f s; %lf better plans",
+                    "in one-resource solves, %*f s (bundle steps %*f s, "
+                    "plans made from the rounds' plans %*f s); %lf better "
+                    "plans",
                     0, 0};
         o.log = catch_line;
         o.log_ctx = &g;

@@ -727,7 +727,9 @@ static int bundle_round(surety_solver *s, double L)
     memcpy(x, d->lam, n * sizeof *x);
     if (priced)
         memcpy(x + n, d->mu, m * N0 * sizeof *x);
+    double t0 = surety_solve_now();
     double pred = surety_bundle_step(d->bun, x, L, x);
+    s->dec_master_secs += surety_solve_now() - t0;
     memcpy(d->lam, x, n * sizeof *x);
     if (priced)
         memcpy(d->mu, x + n, m * N0 * sizeof *x);
@@ -748,7 +750,9 @@ static void round_plan(surety_solver *s)
                 if (u->start.resource[t] >= 0)
                     d->want[u->job[t] * m + i] = 1;
     }
+    double t0 = surety_solve_now();
     int found = surety_heur_from(s, d->want, d->hplan, &d->hseed);
+    s->dec_heur_secs += surety_solve_now() - t0;
 #ifdef SURETY_CHECK_INVARIANTS
     /* the root's decisions kept; a plan said to fit, fits */
     for (size_t j = 0; j < n; j++)

@@ -604,9 +604,11 @@ static surety_code solve_run(const surety_model *model,
     if (s.dec_iters)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition bound: %.6f, %ld price rounds, %ld nodes in "
-              "one-resource solves, %.2f s; %ld better plans made from "
-              "the rounds' plans",
-              s.dec_root, s.dec_iters, s.dec_nodes, s.dec_secs, s.dec_found);
+              "one-resource solves, %.2f s (bundle steps %.2f s, plans "
+              "made from the rounds' plans %.2f s); %ld better plans made "
+              "from the rounds' plans",
+              s.dec_root, s.dec_iters, s.dec_nodes, s.dec_secs,
+              s.dec_master_secs, s.dec_heur_secs, s.dec_found);
     if (s.dec_probes)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition probes: %ld one-resource solves with one job "

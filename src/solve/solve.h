@@ -273,6 +273,8 @@ struct surety_solver {
     unsigned long long dec_knaps0; /* knaps when the first step came */
     int dec_started;     /* the first step has come */
     double dec_secs;     /* their time */
+    double dec_master_secs; /* the bundle's master problems' share */
+    double dec_heur_secs;   /* the rounds' plans' share (surety_heur_from) */
     double *dec_lam;     /* n: the prices of the best round (dec_root) */
     double rej_lam;      /* sum of dec_lam over the jobs rejected on the
                           * current path: a node's bound is at most
