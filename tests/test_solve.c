@@ -427,13 +427,31 @@ Test(solve, brute_force_many_scenarios)
 
 /* Solves with `o` and asserts the outcome enumeration found: optimal
  * with the enumerated value (feas), or infeasible. */
-static void expect_enumerated(const surety_model *md,
-                              const surety_scenarios *sc,
-                              const surety_solve_options *o,
-                              const solve_gen_params *p, uint64_t t, int feas,
-                              double bf, const char *what)
+/* As solve_ok, with `light` as the sub-solves use it (the root's greedy
+ * without its local search). */
+static surety_result *solve_ok_light(const surety_model *md,
+                                     const surety_scenarios *sc,
+                                     const surety_solve_options *opt,
+                                     int light)
 {
-    surety_result *res = solve_ok(md, sc, o);
+    surety_result *res = NULL;
+    surety_error err;
+    surety_error_clear(&err);
+    cr_assert_eq(surety_solve_inner(md, sc, opt, light, &res, &err),
+                 SURETY_OK, "surety_solve_inner failed: %s", err.message);
+    cr_assert_not_null(res);
+    return res;
+}
+
+static void expect_enumerated_light(const surety_model *md,
+                                    const surety_scenarios *sc,
+                                    const surety_solve_options *o,
+                                    const solve_gen_params *p, uint64_t t,
+                                    int feas, double bf, const char *what,
+                                    int light)
+{
+    surety_result *res = light ? solve_ok_light(md, sc, o, 1)
+                               : solve_ok(md, sc, o);
     check_result(md, sc, res);
     cr_assert_eq(surety_result_status(res),
                  feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE,
@@ -449,6 +467,15 @@ static void expect_enumerated(const surety_model *md,
                   p->separate ? "separate" : "joint", what, o->dive_nodes,
                   surety_result_objective(res), bf);
     surety_result_free(res);
+}
+
+static void expect_enumerated(const surety_model *md,
+                              const surety_scenarios *sc,
+                              const surety_solve_options *o,
+                              const solve_gen_params *p, uint64_t t, int feas,
+                              double bf, const char *what)
+{
+    expect_enumerated_light(md, sc, o, p, t, feas, bf, what, 0);
 }
 
 /* Presolve sets aside the scenarios every feasible plan fits (presolve.c,
@@ -941,24 +968,9 @@ Test(solve, plans_from_price_rounds_keep_the_enumerated_optimum)
                     0, 0};
         o.log = catch_line;
         o.log_ctx = &g;
-        surety_result *res = NULL;
-        cr_assert_eq(surety_solve_inner(md, sc, &o, 1, &res, NULL),
-                     SURETY_OK);
-        check_result(md, sc, res);
-        cr_assert_eq(surety_result_status(res),
-                     feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE,
-                     "instance %lu: status %s", (unsigned long)t,
-                     surety_status_name(surety_result_status(res)));
-        if (feas)
-            cr_assert(fabs(surety_result_objective(res) - bf) <=
-                          1e-9 * (1 + fabs(bf)),
-                      "instance %lu (n=%zu m=%zu N=%zu %s): solver %.12g, "
-                      "enumeration %.12g", (unsigned long)t, p.n, p.m, p.N,
-                      p.separate ? "separate" : "joint",
-                      surety_result_objective(res), bf);
+        expect_enumerated_light(md, sc, &o, &p, t, feas, bf, "light, ", 1);
         runs += g.seen;
         taken += g.seen ? g.value : 0;
-        surety_result_free(res);
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);
     }

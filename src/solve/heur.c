@@ -152,7 +152,9 @@ static int within(const surety_solver *s)
 /* Inserts the free jobs of plan (SURETY_JOB_FREE entries) greedily: required
  * jobs first, then candidates in the order `ord`. Free jobs left over
  * become SURETY_JOB_OUT. */
-static int greedy(surety_solver *s, long *plan, const size_t *ord)
+/* Places the required jobs that plan leaves free, each where it adds the
+ * fewest failures; 1 when the plan is then within the allowance. */
+static int place_required(surety_solver *s, long *plan)
 {
     for (size_t t = 0; t < s->nb; t++) {
         size_t j = s->order[t];
@@ -164,7 +166,12 @@ static int greedy(surety_solver *s, long *plan, const size_t *ord)
         change(s, j, (size_t)i, 1);
         plan[j] = i;
     }
-    if (!within(s))
+    return within(s);
+}
+
+static int greedy(surety_solver *s, long *plan, const size_t *ord)
+{
+    if (!place_required(s, plan))
         return 0;
     for (size_t t = 0; t < s->ncand; t++) {
         size_t j = ord[t];
@@ -595,16 +602,10 @@ int surety_heur_from(surety_solver *s, const unsigned char *want, long *plan,
         change(s, (size_t)drop, (size_t)plan[drop], -1);
         plan[drop] = SURETY_JOB_OUT;
     }
-    for (size_t j = 0; j < n; j++) {
-        if (!s->required[j] || plan[j] >= 0 || !movable(fixed, j))
-            continue;
-        long i = best_resource(s, j, 1);
-        if (i < 0)
-            return 0;
-        change(s, j, (size_t)i, 1);
-        plan[j] = i;
-    }
-    if (!within(s))
+    for (size_t j = 0; j < n; j++)
+        if (s->required[j] && plan[j] < 0 && movable(fixed, j))
+            plan[j] = SURETY_JOB_FREE;
+    if (!place_required(s, plan))
         return 0;
     polish(s, plan, fixed);
     double per = (double)n * (double)m * (double)s->N + 1, it = 1e8 / per;
