@@ -8,18 +8,22 @@
  * model of its own (max over its cuts), as in Frangioni's "Generalized
  * bundle methods" (SIAM J. Optim. 13, 2002), which uses the sum's
  * structure where one aggregated model would lose it. The next point
- * minimises the model plus |y - centre|^2 / (2t); the centre moves to a
+ * minimises the model plus sum_x (y_x - centre_x)^2 / (2 t d_x), d a
+ * fixed diagonal metric (1 unless the caller scales: a variable's step
+ * is t d_x times its slope, so blocks of prices whose subgradients differ
+ * in size by orders of magnitude can move alike); the centre moves to a
  * point whose value fell by at least m1 = 0.1 of the decrease the model
  * predicted for it (a serious step), otherwise the cuts of the point
  * refine the model (a null step).
  *
  * The master problem is solved through its dual: with convex weights
  * alpha over each component's cuts, the minimiser over the box is
- *     y(alpha) = clamp(centre - t (e + sum alpha_k g_k), lo, hi),
+ *     y(alpha) = clamp(centre - t D (e + sum alpha_k g_k), lo, hi),
  * and the dual D(alpha) = sum alpha_k (a_k + g_k.y) + e.y
- * + |y - centre|^2 / (2t) is concave and smooth, its gradient the cuts'
- * values at y(alpha), its gradient's Lipschitz constant at most t times
- * the largest eigenvalue of G'G (G the cuts' slopes). It is maximised by
+ * + (y - centre)' D^-1 (y - centre) / (2t) is concave and smooth, its
+ * gradient the cuts' values at y(alpha), its gradient's Lipschitz
+ * constant at most t times the largest eigenvalue of G'DG (G the cuts'
+ * slopes). It is maximised by
  * accelerated projected gradient steps on the product of simplices
  * (Beck & Teboulle 2009, FISTA), until the model's value at y(alpha)
  * exceeds D(alpha) by at most a hundredth of the predicted decrease.
@@ -48,6 +52,7 @@ struct surety_bundle {
     size_t dim, ncomp, cap;
     double *e, *lo, *hi; /* dim each */
     double *centre;      /* dim */
+    double *d;           /* dim: the diagonal metric (surety_bundle_scale) */
     double fc;           /* f at the centre */
     int have_centre;
     double t, t0;        /* proximal weight, and the first one */
@@ -79,6 +84,7 @@ surety_bundle *surety_bundle_new(size_t dim, size_t ncomp, size_t cap,
     b->lo = surety_xmalloc(dim, sizeof *b->lo);
     b->hi = surety_xmalloc(dim, sizeof *b->hi);
     b->centre = surety_xmalloc(dim, sizeof *b->centre);
+    b->d = surety_xmalloc(dim, sizeof *b->d);
     b->y = surety_xmalloc(dim, sizeof *b->y);
     b->w = surety_xmalloc(dim, sizeof *b->w);
     b->cut = surety_xcalloc(ncomp * cap, sizeof *b->cut);
@@ -89,7 +95,7 @@ surety_bundle *surety_bundle_new(size_t dim, size_t ncomp, size_t cap,
     b->pp = surety_xmalloc(ncomp * cap, sizeof *b->pp);
     b->pq = surety_xmalloc(ncomp * cap, sizeof *b->pq);
     b->ps = surety_xmalloc(cap, sizeof *b->ps);
-    if (!b->e || !b->lo || !b->hi || !b->centre || !b->y || !b->w ||
+    if (!b->e || !b->lo || !b->hi || !b->centre || !b->d || !b->y || !b->w ||
         !b->cut || !b->ncut || !b->pa || !b->pb || !b->pg || !b->pp ||
         !b->pq || !b->ps) {
         surety_bundle_free(b);
@@ -98,7 +104,15 @@ surety_bundle *surety_bundle_new(size_t dim, size_t ncomp, size_t cap,
     memcpy(b->e, e, dim * sizeof *e);
     memcpy(b->lo, lo, dim * sizeof *lo);
     memcpy(b->hi, hi, dim * sizeof *hi);
+    for (size_t x = 0; x < dim; x++)
+        b->d[x] = 1;
     return b;
+}
+
+void surety_bundle_scale(surety_bundle *b, const double *d)
+{
+    for (size_t x = 0; x < b->dim; x++)
+        b->d[x] = d[x] > 0 && isfinite(d[x]) ? d[x] : 1;
 }
 
 void surety_bundle_free(surety_bundle *b)
@@ -116,6 +130,7 @@ void surety_bundle_free(surety_bundle *b)
     surety_xfree(b->lo);
     surety_xfree(b->hi);
     surety_xfree(b->centre);
+    surety_xfree(b->d);
     surety_xfree(b->y);
     surety_xfree(b->w);
     surety_xfree(b->pa);
@@ -255,7 +270,7 @@ static void master_point(surety_bundle *b, const double *wt)
                     b->w[u->idx[r]] += al * u->val[r];
         }
     for (size_t x = 0; x < dim; x++) {
-        double v = b->centre[x] - b->t * b->w[x];
+        double v = b->centre[x] - b->t * b->d[x] * b->w[x];
         b->y[x] = v < b->lo[x] ? b->lo[x] : v > b->hi[x] ? b->hi[x] : v;
     }
     for (size_t c = 0; c < b->ncomp; c++)
@@ -292,7 +307,7 @@ static double model_value(const surety_bundle *b, const double *wt,
 }
 
 /* The master's dual value at the weights wt, after master_point(b, wt):
- * sum wt_k v_k + e.y + |y - centre|^2 / (2t). */
+ * sum wt_k v_k + e.y + (y - centre)' D^-1 (y - centre) / (2t). */
 static double dual_value(const surety_bundle *b, const double *wt)
 {
     double d = 0, pr = 0;
@@ -302,13 +317,14 @@ static double dual_value(const surety_bundle *b, const double *wt)
     for (size_t x = 0; x < b->dim; x++) {
         double dx = b->y[x] - b->centre[x];
         d += b->e[x] * b->y[x];
-        pr += dx * dx;
+        pr += dx * dx / b->d[x];
     }
     return d + pr / (2 * b->t);
 }
 
-/* Largest eigenvalue of G'G (G: the cuts' slopes as columns), by power
- * iteration; an overestimate by 5% keeps the step safe. */
+/* Largest eigenvalue of G'DG (G: the cuts' slopes as columns, D the
+ * metric), by power iteration; an overestimate by 5% keeps the step
+ * safe. */
 static double slope_norm2(surety_bundle *b)
 {
     size_t cap = b->cap;
@@ -330,7 +346,7 @@ static double slope_norm2(surety_bundle *b)
                 const bcut *k = &b->cut[c * cap + q];
                 double s = 0;
                 for (size_t r = 0; r < k->nnz; r++)
-                    s += k->val[r] * b->w[k->idx[r]];
+                    s += k->val[r] * b->d[k->idx[r]] * b->w[k->idx[r]];
                 u[c * cap + q] = s;
                 nn += s * s;
                 vv += v[c * cap + q] * v[c * cap + q];
@@ -343,6 +359,50 @@ static double slope_norm2(surety_bundle *b)
             v[q] = u[q] * sc;
     }
     return 1.05 * lam + 1e-12;
+}
+
+/* The cutting-plane model's value at p (dim). */
+static double model_at(const surety_bundle *b, const double *p)
+{
+    double mv = 0;
+    for (size_t x = 0; x < b->dim; x++)
+        mv += b->e[x] * p[x];
+    for (size_t c = 0; c < b->ncomp; c++) {
+        double top = -INFINITY;
+        for (size_t q = 0; q < b->ncut[c]; q++) {
+            const bcut *u = &b->cut[c * b->cap + q];
+            double v = u->a;
+            for (size_t r = 0; r < u->nnz; r++)
+                v += u->val[r] * p[u->idx[r]];
+            if (v > top)
+                top = v;
+        }
+        mv += top;
+    }
+    return mv;
+}
+
+/* The master stopped short of its tolerance with the model at b->y above
+ * f at the centre, where the model is at most f: the point of lowest
+ * model value among centre + 2^-r (y - centre), r = 0..30 (all in the
+ * box, which is convex), goes to b->y instead, so that the step never
+ * predicts an increase. Returns the model's value there. */
+static double segment(surety_bundle *b)
+{
+    double *p = b->w, best = model_at(b, b->y), bs = 1;
+    for (int r = 1; r <= 30; r++) {
+        double sc = ldexp(1, -r);
+        for (size_t x = 0; x < b->dim; x++)
+            p[x] = b->centre[x] + sc * (b->y[x] - b->centre[x]);
+        double v = model_at(b, p);
+        if (v < best) {
+            best = v;
+            bs = sc;
+        }
+    }
+    for (size_t x = 0; x < b->dim; x++)
+        b->y[x] = b->centre[x] + bs * (b->y[x] - b->centre[x]);
+    return best;
 }
 
 /* Solves the master's dual by FISTA from the last weights; leaves its
@@ -377,7 +437,7 @@ static double master(surety_bundle *b)
     memcpy(prev, al, tot * sizeof *al);
     memcpy(be, al, tot * sizeof *al);
     double th = 1;
-    for (int it = 0; it < 3000; it++) {
+    for (int it = 0; it < 30000; it++) {
         master_point(b, be);
         double db = dual_value(b, be);
         for (size_t c = 0; c < nc; c++)
@@ -409,7 +469,12 @@ static double master(surety_bundle *b)
         }
         mv = model_value(b, al, &gap);
         double pred = b->fc - mv;
-        if (gap <= 0.01 * (pred > 0 ? pred : 0) + 1e-9 * (fabs(b->fc) + 1))
+        /* a hundredth of the predicted decrease, half of it after 3000
+         * iterations (a large t or a scaled metric can make the dual
+         * ill-conditioned, and an inexact master still gives a valid
+         * point) */
+        double kappa = it < 3000 ? 0.01 : 0.5;
+        if (gap <= kappa * (pred > 0 ? pred : 0) + 1e-9 * (fabs(b->fc) + 1))
             break;
         double th1 = (1 + sqrt(1 + 4 * th * th)) / 2, mom = (th - 1) / th1;
         for (size_t q = 0; q < tot; q++) {
@@ -420,6 +485,8 @@ static double master(surety_bundle *b)
     }
     master_point(b, al);
     mv = model_value(b, al, &gap);
+    if (mv > b->fc)
+        mv = segment(b);
     for (size_t c = 0; c < nc; c++)
         for (size_t q = 0; q < b->ncut[c]; q++) {
             bcut *u = &b->cut[c * cap + q];

@@ -20,6 +20,12 @@ surety_bundle *surety_bundle_new(size_t dim, size_t ncomp, size_t cap,
                                  const double *hi, double t0);
 void surety_bundle_free(surety_bundle *b);
 
+/* A diagonal metric d (dim entries, copied; an entry not positive and
+ * finite counts as 1): the proximal term becomes
+ * sum_x (y_x - centre_x)^2 / (2 t d_x), so coordinate x steps t d_x times
+ * its slope. All 1 unless set; set it before the first step. */
+void surety_bundle_scale(surety_bundle *b, const double *d);
+
 /* Adds the cut f_c(y) >= a + sum_q val[q] y[idx[q]] (nnz entries, copied);
  * when component c holds `cap` cuts, the one unused longest goes. Returns
  * 0, or -1 when out of memory (the bundle is unchanged). */
@@ -30,7 +36,7 @@ int surety_bundle_cut(surety_bundle *b, size_t c, double a,
  * evaluation were added. Moves the centre to x when fx is low enough (a
  * serious step), then solves the proximal master problem
  *     min over lo <= y <= hi of  e.y + sum_c max_cuts (a + g.y)
- *                                + |y - centre|^2 / (2t)
+ *                                + sum_x (y_x - centre_x)^2 / (2 t d_x)
  * and writes its solution, the next point to evaluate, to next (dim).
  * Returns the predicted decrease: the centre's value less the cutting-
  * plane model's value at next (>= 0 up to the master's tolerance; small
