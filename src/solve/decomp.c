@@ -48,7 +48,10 @@
  * bundle.c; bundle_round): the rounds reach lower bounds than the
  * subgradient steps below, which use only the last round's plans (on the
  * n=40, m=4, N=1000 instance, scenario seeds 1 and 4 in 240 s: 31 486 and
- * 31 616 against 31 625 and 31 774; bench/README.md, "Findings").
+ * 31 616 against 31 625 and 31 774; bench/README.md, "Findings"). Its
+ * metric gives the job prices and the scenario prices each half of the
+ * first step's predicted decrease (bundle_begin), as the subgradient
+ * steps split it.
  * For comparisons (decomp_subgradient), subgradient steps from bound.c's
  * prices (Polyak's step toward
  * the incumbent, halved when the bound stalls: Held, Wolfe & Crowder
@@ -594,8 +597,12 @@ static double deflect(double *g, double *dir, size_t len)
  * has decided, and mu >= 0. Components: each V_i, then T. Each V_i starts
  * with the empty plan's cut (V_i >= 0: no sub-problem has a required
  * job), so that every model is bounded below. t0 is Polyak's step length
- * toward the target, the subgradient's squared norm being g2. */
-static int bundle_begin(surety_solver *s, double L, double g2)
+ * toward the target, g2l and g2m the squared norms of the subgradient's
+ * job and scenario blocks. With both, the metric gives each block half of
+ * the decrease Polyak's step predicts, as the subgradient steps do (there
+ * are m*N0 scenario prices against n job prices: with one step length the
+ * job prices would hardly move, and at N=10 000 the rounds are few). */
+static int bundle_begin(surety_solver *s, double L, double g2l, double g2m)
 {
     size_t n = s->n, m = s->m, N0 = s->N0;
     solve_dec *d = s->dec;
@@ -606,7 +613,8 @@ static int bundle_begin(surety_solver *s, double L, double g2)
     d->bx = surety_xmalloc(dim, sizeof *d->bx);
     d->bi = surety_xmalloc(dim, sizeof *d->bi);
     d->bv = surety_xmalloc(dim, sizeof *d->bv);
-    int ok = e && lo && hi && d->bx && d->bi && d->bv;
+    double *sc = surety_xmalloc(dim, sizeof *sc);
+    int ok = e && lo && hi && d->bx && d->bi && d->bv && sc;
     if (ok) {
         for (size_t j = 0; j < n; j++) {
             int open = s->state[j] == SURETY_JOB_FREE;
@@ -621,16 +629,22 @@ static int bundle_begin(surety_solver *s, double L, double g2)
             hi[x] = INFINITY;
         }
         double target = s->have_inc ? s->inc : L - 0.05 * fabs(L) - 1;
-        double t0 = (L - target) / g2;
+        double g2 = g2l + g2m, t0 = (L - target) / g2;
+        int both = g2l > 0 && g2m > 0;
+        for (size_t x = 0; x < dim; x++)
+            sc[x] = !both ? 1 : x < n ? 0.5 * g2 / g2l : 0.5 * g2 / g2m;
         size_t ncomp = m + (d->mu ? 1 : 0);
         d->bun = surety_bundle_new(dim, ncomp, 40, e, lo, hi, t0);
         ok = d->bun != NULL;
+        if (ok)
+            surety_bundle_scale(d->bun, sc);
         for (size_t i = 0; ok && i < m; i++)
             ok = surety_bundle_cut(d->bun, i, 0, NULL, NULL, 0) == 0;
     }
     surety_xfree(e);
     surety_xfree(lo);
     surety_xfree(hi);
+    surety_xfree(sc);
     return ok ? 0 : -1;
 }
 
@@ -649,11 +663,11 @@ static int bundle_round(surety_solver *s, double L)
     size_t n = s->n, m = s->m, N0 = s->N0;
     solve_dec *d = s->dec;
     int priced = d->mu != NULL;
-    double g2 = 0;
+    double g2l = 0, g2m = 0; /* the subgradient's blocks, squared */
     if (!d->bun) {
         for (size_t j = 0; j < n; j++)
             if (s->state[j] == SURETY_JOB_FREE)
-                g2 += (1 - d->xs[j]) * (1 - d->xs[j]);
+                g2l += (1 - d->xs[j]) * (1 - d->xs[j]);
     }
     if (priced) {
         top_k(s, d); /* the k scenarios of largest summed price: srt */
@@ -669,14 +683,14 @@ static int bundle_round(surety_solver *s, double L)
             if (!d->bun)
                 for (size_t l = 0; l < N0; l++) {
                     double g = (double)d->nf[l] - zf[l];
-                    g2 += g * g;
+                    g2m += g * g;
                 }
         }
     }
     if (!d->bun) {
-        if (!(g2 > 0))
+        if (!(g2l + g2m > 0))
             return 1; /* a zero subgradient: no prices do better */
-        if (bundle_begin(s, L, g2) != 0)
+        if (bundle_begin(s, L, g2l, g2m) != 0)
             return 1; /* the bound so far stands */
     }
     size_t *bi = d->bi;
