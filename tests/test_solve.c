@@ -898,27 +898,44 @@ static void catch_three(void *ctx, surety_log_level level, const char *line)
  * goes through the pool, where the rounds run): every answer must be the
  * enumerated one, joint and separate, with required jobs and forbidden
  * pairs (random_params). */
+/* A random model of at least two resources for the decomposition's
+ * tests, with its enumerated optimum (*bf; returns whether any plan is
+ * feasible) and options that start the split after one node: dives of
+ * one node, no LP. */
+static int split_case(uint64_t seed, size_t nmax, size_t Nmax,
+                      solve_gen_params *p, surety_model **md,
+                      surety_scenarios **sc, double *bf,
+                      surety_solve_options *o)
+{
+    random_params(p, seed, nmax, 3, Nmax);
+    if (p->m < 2)
+        p->m = 2;
+    if (p->n == 8 && p->m == 3 && nmax == 8)
+        p->n = 7;
+    *md = solve_gen_model(p);
+    *sc = solve_gen_scenarios(*md, p);
+    *bf = 0;
+    int feas = brute_force(*md, *sc, bf);
+    surety_solve_options_init(o);
+    o->dive_nodes = 1;
+    o->decomp_after = 1;
+    o->lp_after = -1;
+    return feas;
+}
+
 Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
 {
     int runs = 0, probed = 0;
     for (uint64_t t = 0; t < 120; t++) {
         solve_gen_params p;
-        random_params(&p, mix(23000 + t), 8, 3, t % 4 == 0 ? 120 : 30);
-        if (p.m < 2)
-            p.m = 2;
-        if (p.n == 8 && p.m == 3)
-            p.n = 7;
-        surety_model *md = solve_gen_model(&p);
-        surety_scenarios *sc = solve_gen_scenarios(md, &p);
-        double bf = 0;
-        int feas = brute_force(md, sc, &bf);
+        surety_model *md;
+        surety_scenarios *sc;
+        double bf;
         surety_solve_options o;
-        surety_solve_options_init(&o);
-        o.dive_nodes = 1;
-        o.decomp_after = 1;
+        int feas = split_case(mix(23000 + t), 8, t % 4 == 0 ? 120 : 30, &p,
+                              &md, &sc, &bf, &o);
         o.decomp_rounds = 1 + (int)(t % 3); /* soon to the probes */
         o.decomp_jobs_only = t % 2 == 0;
-        o.lp_after = -1;
         two_logs g = {{"decomposition bound: %lf", 0, 0},
                       {"decomposition probes: %lf", 0, 0}};
         o.log = catch_two;
@@ -948,19 +965,13 @@ Test(solve, plans_from_price_rounds_keep_the_enumerated_optimum)
     double taken = 0;
     for (uint64_t t = 0; t < 120; t++) {
         solve_gen_params p;
-        random_params(&p, mix(29000 + t), 9, 3, t % 4 == 0 ? 120 : 40);
-        if (p.m < 2)
-            p.m = 2;
-        surety_model *md = solve_gen_model(&p);
-        surety_scenarios *sc = solve_gen_scenarios(md, &p);
-        double bf = 0;
-        int feas = brute_force(md, sc, &bf);
+        surety_model *md;
+        surety_scenarios *sc;
+        double bf;
         surety_solve_options o;
-        surety_solve_options_init(&o);
-        o.dive_nodes = 1;
-        o.decomp_after = 1;
+        int feas = split_case(mix(29000 + t), 9, t % 4 == 0 ? 120 : 40, &p,
+                              &md, &sc, &bf, &o);
         o.decomp_subgradient = t % 3 == 0;
-        o.lp_after = -1;
         lp_log g = {"decomposition bound: %*f, %*d price rounds, %*d nodes "
                     "in one-resource solves, %*f s (bundle steps %*f s, "
                     "plans made from the rounds' plans %*f s); %lf better "
