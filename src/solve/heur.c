@@ -149,9 +149,6 @@ static int within(const surety_solver *s)
     return 1;
 }
 
-/* Inserts the free jobs of plan (SURETY_JOB_FREE entries) greedily: required
- * jobs first, then candidates in the order `ord`. Free jobs left over
- * become SURETY_JOB_OUT. */
 /* Places the required jobs that plan leaves free, each where it adds the
  * fewest failures; 1 when the plan is then within the allowance. */
 static int place_required(surety_solver *s, long *plan)
@@ -169,6 +166,9 @@ static int place_required(surety_solver *s, long *plan)
     return within(s);
 }
 
+/* Inserts the free jobs of plan (SURETY_JOB_FREE entries) greedily: required
+ * jobs first, then candidates in the order `ord`. Free jobs left over
+ * become SURETY_JOB_OUT. */
 static int greedy(surety_solver *s, long *plan, const size_t *ord)
 {
     if (!place_required(s, plan))
@@ -535,8 +535,7 @@ int surety_heur_improve(surety_solver *s, long *plan, size_t iters)
 
 /* A plan from the one-resource plans of a price round (a Lagrangian
  * heuristic: the relaxation's solution made feasible, as in Fisher 1981,
- * "The Lagrangian relaxation method for solving integer programming
- * problems", cited from memory). want (n*m flags) marks the resources
+ * cited from memory). want (n*m flags) marks the resources
  * whose plans hold job j. A job one resource wants goes there; a job
  * several want goes, most profitable first, to the one of them it adds
  * the fewest failed scenarios to. While the plan fails more than the
