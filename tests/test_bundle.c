@@ -285,7 +285,8 @@ Test(bundle, reaches_the_lp_minimum)
 /* A hand-worked case: f(x) = |x - 1| + max(0, 2 - x) over x >= 0 has its
  * minimum 1 on [1, 2]. From x = 0 the first master, with t = 1 and both
  * cuts of that point (slopes -1 and -1), minimises 3 - 2y + y^2 / 2: it
- * steps to x = 2 and predicts the decrease f(0) - (3 - 4 + 2) = 4. With
+ * steps to x = 2, where the model is 3 - 4 = -1, and predicts the
+ * decrease f(0) - (-1) = 4. With
  * the metric d = 1/2 it minimises 3 - 2y + y^2 instead: x = 1, where the
  * model is 3 - 2 = 1, a predicted decrease of 2. */
 static void worked_example(double d)
@@ -321,4 +322,146 @@ Test(bundle, worked_example)
 {
     worked_example(1);
     worked_example(0.5);
+}
+
+/* The first master problem with three cuts in one component, in the plane
+ * and with a random diagonal metric d, against its minimiser worked out
+ * by cases: minimise max_k (a_k + g_k.y) + sum_x (y_x - c_x)^2 / (2 t d_x)
+ * (no box). At the minimiser y = c - t D (sum_k w_k g_k) with convex
+ * weights w on the pieces that are largest at y (the optimality
+ * conditions), so it is one of: a single piece k with y = c - t D g_k
+ * and no piece above it; two pieces k, l equal at y with w_k = s in
+ * [0, 1] (linear in s) and the third not above; or all three equal at y
+ * (a 2x2 system) with weights >= 0. The master stops once its point's
+ * objective is within a hundredth of the predicted decrease of its dual's
+ * value (bundle.c), so the bundle's point must have an objective at least
+ * the minimiser's (else the cases are wrong) and at most that much above
+ * it, and its predicted decrease must be f(c) less the model there. */
+
+static double piece(const double *a, const double *g, int k, const double *y)
+{
+    return a[k] + g[2 * k] * y[0] + g[2 * k + 1] * y[1];
+}
+
+static double top3(const double *a, const double *g, const double *y)
+{
+    return fmax(piece(a, g, 0, y), fmax(piece(a, g, 1, y), piece(a, g, 2, y)));
+}
+
+static double master_obj(const double *a, const double *g, const double *c,
+                         const double *d, double t, const double *y)
+{
+    double pr = 0;
+    for (int x = 0; x < 2; x++)
+        pr += (y[x] - c[x]) * (y[x] - c[x]) / d[x];
+    return top3(a, g, y) + pr / (2 * t);
+}
+
+static int by_cases(const double *a, const double *g, const double *c, const double *d,
+                    double t, double *best)
+{
+    int found = 0;
+    double tol = 1e-9;
+    for (int k = 0; k < 3; k++) { /* one piece */
+        double y[2] = {c[0] - t * d[0] * g[2 * k], c[1] - t * d[1] * g[2 * k + 1]};
+        if (piece(a, g, k, y) >= top3(a, g, y) - tol) {
+            best[0] = y[0];
+            best[1] = y[1];
+            found++;
+        }
+    }
+    for (int k = 0; k < 3; k++) /* two pieces: y(s) = c - tD(s g_k + (1-s) g_l) */
+        for (int l = k + 1; l < 3; l++) {
+            /* h(s) = piece_k(y(s)) - piece_l(y(s)) = h0 + s h1 */
+            double dg[2] = {g[2 * k] - g[2 * l], g[2 * k + 1] - g[2 * l + 1]};
+            double h0 = a[k] - a[l], h1 = 0;
+            for (int x = 0; x < 2; x++) {
+                h0 += dg[x] * (c[x] - t * d[x] * g[2 * l + x]);
+                h1 -= dg[x] * t * d[x] * (g[2 * k + x] - g[2 * l + x]);
+            }
+            if (fabs(h1) < 1e-12)
+                continue;
+            double s = -h0 / h1;
+            if (s < -tol || s > 1 + tol)
+                continue;
+            double y[2];
+            for (int x = 0; x < 2; x++)
+                y[x] = c[x] - t * d[x] * (s * g[2 * k + x] + (1 - s) * g[2 * l + x]);
+            if (piece(a, g, k, y) >= top3(a, g, y) - 1e-7) {
+                best[0] = y[0];
+                best[1] = y[1];
+                found++;
+            }
+        }
+    /* three pieces: (g_0 - g_1).y = a_1 - a_0, (g_0 - g_2).y = a_2 - a_0 */
+    double m00 = g[0] - g[2], m01 = g[1] - g[3], m10 = g[0] - g[4], m11 = g[1] - g[5];
+    double r0 = a[1] - a[0], r1 = a[2] - a[0], det = m00 * m11 - m01 * m10;
+    if (fabs(det) > 1e-9) {
+        double y[2] = {(r0 * m11 - m01 * r1) / det, (m00 * r1 - r0 * m10) / det};
+        /* weights: (c - y) / (t d) = sum w_k g_k, sum w_k = 1 */
+        double q0 = (c[0] - y[0]) / (t * d[0]), q1 = (c[1] - y[1]) / (t * d[1]);
+        /* w_0 (g_0 - g_2) + w_1 (g_1 - g_2) = q - g_2 */
+        double n00 = g[0] - g[4], n01 = g[2] - g[4], n10 = g[1] - g[5], n11 = g[3] - g[5];
+        double u0 = q0 - g[4], u1 = q1 - g[5], dn = n00 * n11 - n01 * n10;
+        if (fabs(dn) > 1e-12) {
+            double w0 = (u0 * n11 - n01 * u1) / dn, w1 = (n00 * u1 - u0 * n10) / dn;
+            double w2 = 1 - w0 - w1;
+            if (w0 >= -tol && w1 >= -tol && w2 >= -tol) {
+                best[0] = y[0];
+                best[1] = y[1];
+                found++;
+            }
+        }
+    }
+    return found;
+}
+
+Test(bundle, scaled_master_matches_its_minimiser_by_cases)
+{
+    int checked = 0, multi = 0;
+    for (uint64_t s = 0; s < 300; s++) {
+        rng_state = 9100 + s;
+        double a[3], g[6], c[2], d[2], t = 0.5 + 2 * unif(), want[2];
+        for (int k = 0; k < 3; k++) {
+            a[k] = 4 * unif() - 2;
+            g[2 * k] = 4 * unif() - 2;
+            g[2 * k + 1] = 4 * unif() - 2;
+        }
+        for (int x = 0; x < 2; x++) {
+            c[x] = 4 * unif() - 2;
+            d[x] = pow(10, 2 * unif() - 1);
+        }
+        if (by_cases(a, g, c, d, t, want) != 1)
+            continue; /* a tie between cases: degenerate, skipped */
+        double e[2] = {0, 0}, lo[2] = {-INFINITY, -INFINITY}, hi[2] = {INFINITY, INFINITY};
+        surety_bundle *b = surety_bundle_new(2, 1, 8, e, lo, hi, t);
+        cr_assert(b);
+        surety_bundle_scale(b, d);
+        size_t idx[2] = {0, 1};
+        for (int k = 0; k < 3; k++)
+            cr_assert(surety_bundle_cut(b, 0, a[k], idx, g + 2 * k, 2) == 0);
+        double next[2], fc = top3(a, g, c);
+        double pred = surety_bundle_step(b, c, fc, next);
+        double got = master_obj(a, g, c, d, t, next), opt = master_obj(a, g, c, d, t, want);
+        cr_assert(got >= opt - 1e-9 * (1 + fabs(opt)),
+                  "case %lu: the bundle's point (%.9g, %.9g) beats the minimiser by cases "
+                  "(%.9g, %.9g): %.12g < %.12g", (unsigned long)s, next[0], next[1], want[0],
+                  want[1], got, opt);
+        cr_assert(got <= opt + 0.01 * pred + 1e-9 * (1 + fabs(fc)),
+                  "case %lu: the bundle steps to (%.9g, %.9g), objective %.12g; the minimiser "
+                  "(%.9g, %.9g) has %.12g", (unsigned long)s, next[0], next[1], got, want[0],
+                  want[1], opt);
+        cr_assert(fabs(pred - (fc - top3(a, g, next))) < 1e-9 * (1 + fabs(fc)),
+                  "case %lu: predicted decrease %.9g, f(c) less the model there %.9g",
+                  (unsigned long)s, pred, fc - top3(a, g, next));
+        /* pieces active at the minimiser: more than one means FISTA had work */
+        int act = 0;
+        for (int k = 0; k < 3; k++)
+            act += piece(a, g, k, want) >= top3(a, g, want) - 1e-7;
+        multi += act > 1;
+        checked++;
+        surety_bundle_free(b);
+    }
+    cr_log_info("%d masters checked, %d with more than one piece active", checked, multi);
+    cr_assert(checked >= 250 && multi >= 50, "only %d cases (%d with a kink)", checked, multi);
 }

@@ -26,7 +26,12 @@
  * slopes). It is maximised by
  * accelerated projected gradient steps on the product of simplices
  * (Beck & Teboulle 2009, FISTA), until the model's value at y(alpha)
- * exceeds D(alpha) by at most a hundredth of the predicted decrease.
+ * exceeds D(alpha) by at most a hundredth of the predicted decrease (half
+ * of it after 3000 iterations, when a large t or the metric has made the
+ * dual ill-conditioned; at most 30 000, fewer when the caller's deadline
+ * passes). If the model at the point it stops at lies above f at the
+ * centre, the segment back to the centre is searched (segment), so that a
+ * step never predicts an increase.
  * However the master is solved, the point it gives is a feasible point
  * of the box: the caller's bound is the function's value there, never
  * the model's.
@@ -36,6 +41,7 @@
 #include <string.h>
 
 #include "alloc.h"
+#include "clock.h"
 #include "solve/bundle.h"
 
 typedef struct bcut {
@@ -67,6 +73,8 @@ struct surety_bundle {
     long serious;
     int nnull;           /* null steps since the last serious one */
     double pred;         /* the decrease the last step predicted */
+    double deadline;     /* surety_clock_seconds() after which the master
+                          * stops past its first 3000 iterations */
 };
 
 surety_bundle *surety_bundle_new(size_t dim, size_t ncomp, size_t cap,
@@ -80,6 +88,7 @@ surety_bundle *surety_bundle_new(size_t dim, size_t ncomp, size_t cap,
     b->ncomp = ncomp;
     b->cap = cap;
     b->t = b->t0 = t0 > 0 ? t0 : 1;
+    b->deadline = INFINITY;
     b->e = surety_xmalloc(dim, sizeof *b->e);
     b->lo = surety_xmalloc(dim, sizeof *b->lo);
     b->hi = surety_xmalloc(dim, sizeof *b->hi);
@@ -113,6 +122,11 @@ void surety_bundle_scale(surety_bundle *b, const double *d)
 {
     for (size_t x = 0; x < b->dim; x++)
         b->d[x] = d[x] > 0 && isfinite(d[x]) ? d[x] : 1;
+}
+
+void surety_bundle_deadline(surety_bundle *b, double at)
+{
+    b->deadline = at;
 }
 
 void surety_bundle_free(surety_bundle *b)
@@ -150,7 +164,8 @@ long surety_bundle_serious(const surety_bundle *b)
 /* Makes room in component c's full bundle. A cut the last master gave no
  * weight goes (the one unused longest); when every cut has weight, they
  * are merged into their aggregate sum_k alpha_k (a_k + g_k.y), itself a
- * valid cut, which alone reproduces the last master's solution. Keeping
+ * valid cut, which alone reproduces the last master's solution (unless
+ * segment moved its point). Keeping
  * the aggregate is what lets a bounded bundle still converge (the
  * aggregate subgradient of Kiwiel 1985, cited from memory). 0, or -1
  * out of memory. */
@@ -475,6 +490,9 @@ static double master(surety_bundle *b)
          * point) */
         double kappa = it < 3000 ? 0.01 : 0.5;
         if (gap <= kappa * (pred > 0 ? pred : 0) + 1e-9 * (fabs(b->fc) + 1))
+            break;
+        if (it >= 3000 && it % 100 == 0 && b->deadline < INFINITY &&
+            surety_clock_seconds() > b->deadline)
             break;
         double th1 = (1 + sqrt(1 + 4 * th * th)) / 2, mom = (th - 1) / th1;
         for (size_t q = 0; q < tot; q++) {

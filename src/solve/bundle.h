@@ -20,6 +20,11 @@ surety_bundle *surety_bundle_new(size_t dim, size_t ncomp, size_t cap,
                                  const double *hi, double t0);
 void surety_bundle_free(surety_bundle *b);
 
+/* A time (surety_clock_seconds, clock.h) after which a master problem
+ * that has run 3000 iterations stops where it is; INFINITY (the default)
+ * for none. Its point is still one of the box. */
+void surety_bundle_deadline(surety_bundle *b, double at);
+
 /* A diagonal metric d (dim entries, copied; an entry not positive and
  * finite counts as 1): the proximal term becomes
  * sum_x (y_x - centre_x)^2 / (2 t d_x), so coordinate x steps t d_x times

@@ -658,7 +658,7 @@ static int bundle_begin(surety_solver *s, double L, double g2l, double g2m)
  * bundle only chooses where to evaluate next. Returns as price_round:
  * 0 for another round, 1 when the model predicts (almost) no decrease,
  * or when out of memory. */
-static int bundle_round(surety_solver *s, double L)
+static int bundle_round(surety_solver *s, double L, double deadline)
 {
     size_t n = s->n, m = s->m, N0 = s->N0;
     solve_dec *d = s->dec;
@@ -742,6 +742,7 @@ static int bundle_round(surety_solver *s, double L)
     if (priced)
         memcpy(x + n, d->mu, m * N0 * sizeof *x);
     double t0 = surety_solve_now();
+    surety_bundle_deadline(d->bun, deadline);
     double pred = surety_bundle_step(d->bun, x, L, x);
     s->dec_master_secs += surety_solve_now() - t0;
     memcpy(d->lam, x, n * sizeof *x);
@@ -864,7 +865,7 @@ static int price_round(surety_solver *s, double deadline)
     if (s->dec_iters >= most)
         return 1;
     if (!s->opt->decomp_subgradient)
-        return bundle_round(s, L);
+        return bundle_round(s, L, deadline);
     if (d->theta < 1.0 / 64)
         return 1;
     double norm = 0, nmu = 0;
