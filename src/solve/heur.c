@@ -150,7 +150,8 @@ static int within(const surety_solver *s)
 }
 
 /* Places the required jobs that plan leaves free, each where it adds the
- * fewest failures; 1 when the plan is then within the allowance. */
+ * fewest failures; 1 when the plan is then within the allowance, 0 when
+ * not, -1 when a required job has no resource at all. */
 static int place_required(surety_solver *s, long *plan)
 {
     for (size_t t = 0; t < s->nb; t++) {
@@ -159,7 +160,7 @@ static int place_required(surety_solver *s, long *plan)
             continue;
         long i = best_resource(s, j, 1);
         if (i < 0)
-            return 0;
+            return -1;
         change(s, j, (size_t)i, 1);
         plan[j] = i;
     }
@@ -171,7 +172,7 @@ static int place_required(surety_solver *s, long *plan)
  * become SURETY_JOB_OUT. */
 static int greedy(surety_solver *s, long *plan, const size_t *ord)
 {
-    if (!place_required(s, plan))
+    if (place_required(s, plan) != 1)
         return 0;
     for (size_t t = 0; t < s->ncand; t++) {
         size_t j = ord[t];
@@ -538,12 +539,12 @@ int surety_heur_improve(surety_solver *s, long *plan, size_t iters)
  * cited from memory). want (n*m flags) marks the resources
  * whose plans hold job j. A job one resource wants goes there; a job
  * several want goes, most profitable first, to the one of them it adds
- * the fewest failed scenarios to. While the plan fails more than the
- * allowance, the optional job whose removal saves the most failed weight
- * per unit of profit leaves (the least profitable when no single removal
- * saves any); required jobs left out are then placed as the greedy does;
- * then the local search. Jobs the root has decided (s->state) keep their
- * state. Returns 1 with a plan in `plan` that is within the allowance by
+ * the fewest failed scenarios to. Required jobs left out are placed as
+ * the greedy places them. Then, while a group fails more than its
+ * allowance, the optional job of such a group whose removal saves the
+ * most failed weight per unit of profit leaves (the least profitable
+ * when no single removal saves any); then the local search. Jobs the
+ * root has decided (s->state) keep their state. Returns 1 with a plan in `plan` that is within the allowance by
  * the heuristic's count (the caller offers it: surety_solve_offer
  * re-counts it), else 0. */
 int surety_heur_from(surety_solver *s, const unsigned char *want, long *plan,
@@ -570,7 +571,8 @@ int surety_heur_from(surety_solver *s, const unsigned char *want, long *plan,
             for (size_t i = 0; i < m; i++) {
                 if (!want[j * m + i] || !s->allowed[j * m + i])
                     continue;
-                size_t f = fail_after(s, i, j, SIZE_MAX);
+                size_t f = fail_after(s, i, j, SIZE_MAX) -
+                           s->hfail[group_of(s, i)];
                 if (f < bestf) {
                     best = (long)i;
                     bestf = f;
@@ -579,6 +581,11 @@ int surety_heur_from(surety_solver *s, const unsigned char *want, long *plan,
             change(s, j, (size_t)best, 1);
             plan[j] = best;
         }
+    for (size_t j = 0; j < n; j++)
+        if (s->required[j] && plan[j] < 0 && movable(fixed, j))
+            plan[j] = SURETY_JOB_FREE;
+    if (place_required(s, plan) < 0)
+        return 0;
     while (!within(s)) {
         long drop = -1;
         double score = -INFINITY;
@@ -586,6 +593,8 @@ int surety_heur_from(surety_solver *s, const unsigned char *want, long *plan,
             if (plan[j] < 0 || !movable(fixed, j) || s->required[j])
                 continue;
             size_t i = (size_t)plan[j], g = group_of(s, i);
+            if (s->hfail[g] <= s->k)
+                continue; /* its group is within its allowance */
             double saved = (double)s->hfail[g] -
                            (double)fail_after(s, i, SIZE_MAX, j);
             double p = s->p[j] > 1e-12 ? s->p[j] : 1e-12;
@@ -601,11 +610,6 @@ int surety_heur_from(surety_solver *s, const unsigned char *want, long *plan,
         change(s, (size_t)drop, (size_t)plan[drop], -1);
         plan[drop] = SURETY_JOB_OUT;
     }
-    for (size_t j = 0; j < n; j++)
-        if (s->required[j] && plan[j] < 0 && movable(fixed, j))
-            plan[j] = SURETY_JOB_FREE;
-    if (!place_required(s, plan))
-        return 0;
     polish(s, plan, fixed);
     double per = (double)n * (double)m * (double)s->N + 1, it = 1e8 / per;
     ils(s, plan, fixed, it < 100 ? 100 : it > 3000 ? 3000 : (size_t)it,
