@@ -270,6 +270,15 @@ static void proj_simplex(double *v, size_t len, double *s)
         v[r] = v[r] > tau ? v[r] - tau : 0;
 }
 
+/* The cut's value a + g.p at the point p (dim). */
+static double cut_value(const bcut *u, const double *p)
+{
+    double v = u->a;
+    for (size_t r = 0; r < u->nnz; r++)
+        v += u->val[r] * p[u->idx[r]];
+    return v;
+}
+
 /* y(alpha) for the weights in wt (ncomp * cap layout), and each cut's
  * value there into its v. */
 static void master_point(surety_bundle *b, const double *wt)
@@ -291,10 +300,7 @@ static void master_point(surety_bundle *b, const double *wt)
     for (size_t c = 0; c < b->ncomp; c++)
         for (size_t q = 0; q < b->ncut[c]; q++) {
             bcut *u = &b->cut[c * b->cap + q];
-            double v = u->a;
-            for (size_t r = 0; r < u->nnz; r++)
-                v += u->val[r] * b->y[u->idx[r]];
-            u->v = v;
+            u->v = cut_value(u, b->y);
         }
 }
 
@@ -385,10 +391,7 @@ static double model_at(const surety_bundle *b, const double *p)
     for (size_t c = 0; c < b->ncomp; c++) {
         double top = -INFINITY;
         for (size_t q = 0; q < b->ncut[c]; q++) {
-            const bcut *u = &b->cut[c * b->cap + q];
-            double v = u->a;
-            for (size_t r = 0; r < u->nnz; r++)
-                v += u->val[r] * p[u->idx[r]];
+            double v = cut_value(&b->cut[c * b->cap + q], p);
             if (v > top)
                 top = v;
         }

@@ -9,6 +9,7 @@
 #include <time.h>
 
 #include "alloc.h"
+#include "clock.h"
 #include "solve/solve.h"
 
 struct surety_result {
@@ -52,9 +53,7 @@ void surety_solve_options_init(surety_solve_options *opt)
 
 double surety_solve_now(void)
 {
-    struct timespec ts;
-    clock_gettime(CLOCK_MONOTONIC, &ts);
-    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+    return surety_clock_seconds(); /* the bundle's deadline uses it too */
 }
 
 static void logf_(const surety_solver *s, surety_log_level level,
