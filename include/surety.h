@@ -397,6 +397,16 @@ typedef struct surety_solve_options {
      * embedding solver that prices scenario failures (a Lagrangian
      * decomposition); NULL: none, the default */
     const double *scenario_cost;
+    /* nodes searched (or their work, counted as for decomp_after) before
+     * the search starts to improve its best plan part by part: the jobs
+     * of two resources and the jobs the plan leaves out are searched
+     * again by the same solver, the rest of the plan kept, each pair of
+     * resources in turn, for about a quarter of the tree's work (a large
+     * neighbourhood search; src/solve/lns.c). A part closed without a
+     * better plan is not searched again until the best plan changes.
+     * 0: the default (65536); < 0: never. Needs at least two resources
+     * and no scenario_cost. */
+    long improve_after;
 } surety_solve_options;
 
 void surety_solve_options_init(surety_solve_options *opt);

@@ -141,3 +141,44 @@ Test(invariants, split_caps_bound_every_completion)
                    t % 4 == 1 ? 2 : 1);
     }
 }
+
+/* Parts of the best plan searched again (lns.c) after every node (dives
+ * of one node): a part's plan that gains must complete the kept plan
+ * within the allowance (the invariant build aborts when the whole plan
+ * fails the library's count), joint and separate, with required jobs,
+ * forbidden pairs and parts that pin some of their jobs (twelve to
+ * fifteen jobs). */
+Test(invariants, parts_complete_the_kept_plan)
+{
+    for (uint64_t t = 0; t < 24; t++) {
+        solve_gen_params p = {.n = 12 + t % 4, .m = 2 + t % 3,
+                              .N = 60 + 40 * (t % 3),
+                              .eps = t % 3 ? 0.1 : 0.2,
+                              .tightness = 0.4 + 0.1 * (double)(t % 3),
+                              .dist = (solve_gen_dist)(t % 3),
+                              .separate = t % 4 == 3,
+                              .p_required = t % 5 == 1 ? 0.15 : 0,
+                              .p_forbid = t % 2 ? 0.2 : 0,
+                              .seed = 0x5eed3000 + t};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = 1;
+        o.node_limit = 3000;
+        o.lp_after = -1;
+        o.decomp_after = -1;
+        o.improve_after = 1;
+        surety_result *res = NULL;
+        surety_error err = {0};
+        cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_OK, "%s",
+                     err.message);
+        const surety_plan *pl = surety_result_plan(res);
+        if (pl)
+            cr_assert(surety_plan_feasible(md, pl, sc),
+                      "reported plan fails the independent count");
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+}

@@ -991,6 +991,50 @@ Test(solve, plans_from_price_rounds_keep_the_enumerated_optimum)
     cr_assert(taken >= 5, "only %.0f plans came from the rounds", taken);
 }
 
+/* Parts of the best plan searched again (lns.c) from the first node on,
+ * with dives of one node so that the tree turns to its pool, and the
+ * parts with it, after every node: half of a part's jobs are freed and
+ * the others pinned, under the joint constraint only the scenarios the
+ * other resources hold are searched, with what is left of the
+ * allowance. The answers must be the enumerated ones, joint and
+ * separate, with required jobs and forbidden pairs; enough solves must
+ * search parts, and some parts must make better plans (the light solves
+ * start from the greedy without its local search). */
+Test(solve, parts_of_the_plan_keep_the_enumerated_optimum)
+{
+    int runs = 0;
+    double parts = 0, found = 0;
+    for (uint64_t t = 0; t < 240; t++) {
+        solve_gen_params p;
+        surety_model *md;
+        surety_scenarios *sc;
+        double bf;
+        surety_solve_options o;
+        int feas = split_case(mix(31000 + t), 9, t % 4 == 0 ? 120 : 40, &p,
+                              &md, &sc, &bf, &o);
+        o.decomp_after = -1;
+        o.improve_after = 1;
+        two_logs g = {{"parts of the best plan searched again: %lf parts",
+                       0, 0},
+                      {"parts of the best plan searched again: %*d parts, "
+                       "%*d nodes, %*f s; %lf better plans",
+                       0, 0}};
+        o.log = catch_two;
+        o.log_ctx = &g;
+        expect_enumerated_light(md, sc, &o, &p, t, feas, bf, "light, ", 1);
+        runs += g.a.seen;
+        parts += g.a.seen ? g.a.value : 0;
+        found += g.b.seen ? g.b.value : 0;
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("parts in %d solves: %.0f parts, %.0f better plans", runs,
+                parts, found);
+    cr_assert(runs >= 60, "parts were searched in only %d solves", runs);
+    cr_assert(found >= 10, "only %.0f better plans came from %.0f parts",
+              found, parts);
+}
+
 /* The probes after the price rounds (one or two rounds here, so they come
  * soon): each pair's one-resource problem with the job forced in or kept
  * out caps every node that takes that decision, and pairs whose cap alone

@@ -288,11 +288,7 @@ static int cmp_key_ext(const void *a, const void *b, void *ctx);
 
 static uint64_t next_rand(uint64_t *x)
 {
-    /* SplitMix64: a fixed, seeded sequence keeps runs reproducible */
-    uint64_t z = (*x += 0x9e3779b97f4a7c15ULL);
-    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
-    z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
-    return z ^ (z >> 31);
+    return surety_splitmix(x);
 }
 
 /* A random allowed resource that keeps job j's group within the

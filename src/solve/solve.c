@@ -49,6 +49,7 @@ void surety_solve_options_init(surety_solve_options *opt)
     opt->decomp_rounds = 0;
     opt->decomp_root_only = 0;
     opt->lp_restored = 0;
+    opt->improve_after = 0;
 }
 
 double surety_solve_now(void)
@@ -215,6 +216,7 @@ static void solver_free(surety_solver *s)
     surety_bound_free(s);
     surety_lpb_free(s);
     surety_decomp_free(s);
+    surety_lns_free(s);
     surety_xfree(s->dec_lam);
     surety_xfree(s->dec_v);
     surety_xfree(s->dec_mu);
@@ -505,6 +507,10 @@ static surety_code solve_run(const surety_model *model,
             s.lp_after = opt->lp_after == 0 ? 65536 : opt->lp_after;
             s.dec_after = opt->decomp_after == 0 ? 65536 : opt->decomp_after;
             s.dec_nodes_on = !opt->decomp_root_only;
+            s.lns_after = opt->improve_after == 0 ? 65536
+                                                  : opt->improve_after;
+            if (opt->scenario_cost)
+                s.lns_after = -1; /* the parts' searches price no failures */
             int lr = s.lp_after > 0 && opt->dive_nodes >= 0
                          ? surety_lpb_init(&s)
                          : 1;
@@ -618,6 +624,11 @@ static surety_code solve_run(const surety_model *model,
               "decomposition at restored nodes: %ld one-resource solves, "
               "%ld nodes pruned",
               s.dec_nsolves, s.dec_npruned);
+    if (s.lns_parts)
+        logf_(&s, SURETY_LOG_INFO,
+              "parts of the best plan searched again: %ld parts, %ld nodes, "
+              "%.2f s; %ld better plans",
+              s.lns_parts, s.lns_nodes, s.lns_secs, s.lns_found);
     logf_(&s, SURETY_LOG_INFO,
           "solve: %s (%s), objective %.6f, bound %.6f, %ld nodes, %.2f s",
           surety_status_name(res->status), surety_stop_name(res->stop),

@@ -44,6 +44,16 @@ enum { SURETY_LIVE = 0, SURETY_DEAD_LOAD = 1, SURETY_DEAD_BOUND = 2 };
 
 typedef struct surety_solver surety_solver;
 
+/* SplitMix64 (Steele, Lea & Flood 2014, cited from memory): the fixed,
+ * seeded sequences of the heuristics, which keep runs reproducible. */
+static inline uint64_t surety_splitmix(uint64_t *x)
+{
+    uint64_t z = (*x += 0x9e3779b97f4a7c15ULL);
+    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
+    z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
+    return z ^ (z >> 31);
+}
+
 /* A live scenario in the cost bound (bound.c): its bound, weight, cost. */
 typedef struct solve_cq {
     double v, mu;
@@ -51,6 +61,7 @@ typedef struct solve_cq {
 } solve_cq;
 typedef struct solve_lp solve_lp; /* lpbound.c */
 typedef struct solve_dec solve_dec; /* decomp.c */
+typedef struct solve_lns solve_lns; /* lns.c */
 
 /* A price round of the decomposition (decomp.c) as a watcher sees it,
  * indexed as the caller's model and scenarios; tests/test_solve.c
@@ -296,6 +307,18 @@ struct surety_solver {
     double dec_rule_inc; /* the incumbent when pairs were last ruled out */
     surety_dec_watch dec_watch; /* called after each price round, or NULL */
     void *dec_watch_ctx;
+    /* ---- parts of the incumbent solved again (lns.c) ---- */
+    solve_lns *lns;      /* NULL until the first part */
+    long lns_after;      /* tree nodes (or their work) before the first
+                          * part; < 0 never */
+    int lns_started;
+    unsigned long long lns_knaps0; /* knaps when the first part came */
+    unsigned long long lns_knaps;  /* knapsacks of the parts' searches */
+    long lns_nodes, lns_parts, lns_found; /* their nodes, parts, plans */
+    double lns_secs;     /* their time */
+    double lns_share;    /* their share of the tree's knapsacks */
+    int lns_idle;        /* parts in a row without a better plan */
+    double lns_inc;      /* the incumbent when the last part ended */
     /* the smaller of lp_root and dec_root: caps every open node */
     double root_cap;
     double lp_deadline;  /* monotonic seconds after which an LP call stops */
@@ -417,6 +440,14 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
 #define SURETY_DEC_MAX_THREADS 64
 size_t surety_decomp_threads(const surety_solver *s);
 void surety_decomp_free(surety_solver *s);
+
+/* lns.c: one part of the incumbent solved again (the jobs of the next
+ * pair of resources not closed at this incumbent, and the jobs left out),
+ * its searches stopping at `deadline`. Returns 1 when it made a better
+ * plan (accepted by surety_solve_offer), 0 when not (also when every
+ * part is closed at this incumbent, or m < 2), -1 out of memory. */
+int surety_lns_step(surety_solver *s, double deadline);
+void surety_lns_free(surety_solver *s);
 
 /* lpbound.c: the LP relaxation of the strengthened formulation as a
  * second node bound. init returns 0, 1 when there is nothing to decide

@@ -348,6 +348,58 @@ static void decomp_round(surety_solver *s)
         surety_solve_log_progress(s, 1, 'D');
 }
 
+/* Parts of the incumbent searched again (lns.c) from lns_after nodes on
+ * (or their work in knapsacks, as decomp_round counts it): a part runs
+ * whenever the parts' searches have evaluated fewer scenario knapsacks
+ * than a share of the tree's since the first. A search that has not
+ * closed by then is unlikely to close soon, and its plan matters more:
+ * the share starts at SURETY_LNS_SHARE. Each SURETY_LNS_PATIENCE parts
+ * in a row without a better plan halve it, down to a sixteenth of it, so
+ * that a search whose plan is already the best pays little; a better
+ * plan, from a part or from elsewhere, restores it (measured on the 40-job instances: bench/README.md,
+ * "Findings"). */
+#define SURETY_LNS_SHARE 0.25
+#define SURETY_LNS_PATIENCE 12
+static void lns_round(surety_solver *s)
+{
+    if (s->lns_after <= 0 || !s->have_inc)
+        return;
+    if (!s->lns_started) {
+        double win = 2.0 * (double)(s->k + 1) + 16;
+        if (s->nodes < s->lns_after &&
+            (double)s->knaps < (double)s->lns_after * win)
+            return;
+        s->lns_started = 1;
+        s->lns_knaps0 = s->knaps;
+        s->lns_share = SURETY_LNS_SHARE;
+    } else if (s->inc != s->lns_inc) {
+        /* a better plan from elsewhere: new parts to search */
+        s->lns_share = SURETY_LNS_SHARE;
+        s->lns_idle = 0;
+    }
+    s->lns_inc = s->inc;
+    if ((double)s->lns_knaps >
+        s->lns_share * (double)(s->knaps - s->lns_knaps0))
+        return;
+    double now = surety_solve_now(), tl = s->opt->time_limit_s;
+    int r = surety_lns_step(s, tl > 0 ? s->t0 + tl : INFINITY);
+    s->lns_secs += surety_solve_now() - now;
+    if (r < 0) {
+        s->lns_after = -1; /* out of memory: no more parts */
+        surety_lns_free(s);
+    }
+    s->lns_inc = s->inc;
+    if (r > 0) {
+        surety_solve_log_progress(s, 1, 'P');
+        s->lns_share = SURETY_LNS_SHARE;
+        s->lns_idle = 0;
+    } else if (++s->lns_idle >= SURETY_LNS_PATIENCE) {
+        s->lns_idle = 0;
+        if (s->lns_share > SURETY_LNS_SHARE / 16)
+            s->lns_share *= 0.5;
+    }
+}
+
 /* b capped by the decomposition bound of the node: the root's value less
  * the best round's prices of the jobs the node has rejected. Why: for any
  * completion, value = sum_j lam_j y_j + sum_i sum_j (p_j - lam_j) x_ji
@@ -575,6 +627,7 @@ double surety_tree_search(surety_solver *s)
             root_lp(s);
         /* before the pop, so that its progress line sees every open node */
         decomp_round(s);
+        lns_round(s);
         solve_open e = pool_pop(s);
         if (e.bound > s->root_cap)
             e.bound = s->root_cap;
