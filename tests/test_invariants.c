@@ -29,15 +29,41 @@
 #include "solve_gen.h"
 #include "surety.h"
 
-static void run_prices(const solve_gen_params *p, long dives, int lp,
-                       int split, long limit, int rounds, int prices,
-                       int single, int threads)
+/* Solves p's model (each job in one resource when `single`) with o and
+ * checks what the invariant build cannot: the status, and that a
+ * reported plan passes the independent count below the bound. */
+static void solve_checked(const solve_gen_params *p, int single,
+                          const surety_solve_options *o)
 {
     surety_model *md = solve_gen_model(p);
     if (single)
         /* each job in one resource */
         solve_gen_one_resource_each(md);
     surety_scenarios *sc = solve_gen_scenarios(md, p);
+    surety_result *res = NULL;
+    surety_error err = {0};
+    cr_assert_eq(surety_solve(md, sc, o, &res, &err), SURETY_OK, "%s",
+                 err.message);
+    surety_status st = surety_result_status(res);
+    cr_assert(st == SURETY_OPTIMAL || st == SURETY_FEASIBLE ||
+              st == SURETY_INFEASIBLE);
+    const surety_plan *pl = surety_result_plan(res);
+    if (pl) {
+        cr_assert(surety_plan_feasible(md, pl, sc),
+                  "reported plan fails the independent count");
+        cr_assert(surety_result_bound(res) >=
+                  surety_result_objective(res) -
+                      1e-9 * (1 + fabs(surety_result_objective(res))));
+    }
+    surety_result_free(res);
+    surety_model_destroy(md);
+    solve_gen_scenarios_free(sc);
+}
+
+static void run_prices(const solve_gen_params *p, long dives, int lp,
+                       int split, long limit, int rounds, int prices,
+                       int single, int threads)
+{
     surety_solve_options o;
     surety_solve_options_init(&o);
     o.dive_nodes = dives;
@@ -54,24 +80,7 @@ static void run_prices(const solve_gen_params *p, long dives, int lp,
     o.decomp_jobs_only = !prices;
     o.decomp_subgradient = p->seed % 5 == 2; /* the older steps, too */
     o.threads = threads;
-    surety_result *res = NULL;
-    surety_error err = {0};
-    cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_OK, "%s",
-                 err.message);
-    surety_status st = surety_result_status(res);
-    cr_assert(st == SURETY_OPTIMAL || st == SURETY_FEASIBLE ||
-              st == SURETY_INFEASIBLE);
-    const surety_plan *pl = surety_result_plan(res);
-    if (pl) {
-        cr_assert(surety_plan_feasible(md, pl, sc),
-                  "reported plan fails the independent count");
-        cr_assert(surety_result_bound(res) >=
-                  surety_result_objective(res) -
-                      1e-9 * (1 + fabs(surety_result_objective(res))));
-    }
-    surety_result_free(res);
-    surety_model_destroy(md);
-    solve_gen_scenarios_free(sc);
+    solve_checked(p, single, &o);
 }
 
 static void run(const solve_gen_params *p, long dives, int lp, int split,
@@ -160,8 +169,6 @@ Test(invariants, parts_complete_the_kept_plan)
                               .p_required = t % 5 == 1 ? 0.15 : 0,
                               .p_forbid = t % 2 ? 0.2 : 0,
                               .seed = 0x5eed3000 + t};
-        surety_model *md = solve_gen_model(&p);
-        surety_scenarios *sc = solve_gen_scenarios(md, &p);
         surety_solve_options o;
         surety_solve_options_init(&o);
         o.dive_nodes = 1;
@@ -169,16 +176,6 @@ Test(invariants, parts_complete_the_kept_plan)
         o.lp_after = -1;
         o.decomp_after = -1;
         o.improve_after = 1;
-        surety_result *res = NULL;
-        surety_error err = {0};
-        cr_assert_eq(surety_solve(md, sc, &o, &res, &err), SURETY_OK, "%s",
-                     err.message);
-        const surety_plan *pl = surety_result_plan(res);
-        if (pl)
-            cr_assert(surety_plan_feasible(md, pl, sc),
-                      "reported plan fails the independent count");
-        surety_result_free(res);
-        surety_model_destroy(md);
-        solve_gen_scenarios_free(sc);
+        solve_checked(&p, 0, &o);
     }
 }

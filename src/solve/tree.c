@@ -294,6 +294,16 @@ static void root_lp(surety_solver *s)
     surety_solve_log_progress(s, 1, 'R');
 }
 
+/* Has the tree searched `after` nodes, or evaluated the scenario
+ * knapsacks of that many joint nodes (the quantile window of bound.c)?
+ * The second counts for searches whose nodes cost more (separate
+ * constraints). */
+static int work_reached(const surety_solver *s, long after)
+{
+    double win = 2.0 * (double)(s->k + 1) + 16;
+    return s->nodes >= after || (double)s->knaps >= (double)after * win;
+}
+
 /* A step of the resource-decomposition bound (decomp.c): a price round,
  * or once the rounds are over, the probes of one job. The first comes
  * once the search has run dec_after nodes without closing, or the
@@ -320,9 +330,7 @@ static void decomp_round(surety_solver *s)
     if (s->dec_done || s->dec_after <= 0)
         return;
     if (!s->dec_started) {
-        double win = 2.0 * (double)(s->k + 1) + 16;
-        if (s->nodes < s->dec_after &&
-            (double)s->knaps < (double)s->dec_after * win)
+        if (!work_reached(s, s->dec_after))
             return;
         s->dec_started = 1;
         s->dec_knaps0 = s->knaps;
@@ -365,9 +373,7 @@ static void lns_round(surety_solver *s)
     if (s->lns_after <= 0 || !s->have_inc)
         return;
     if (!s->lns_started) {
-        double win = 2.0 * (double)(s->k + 1) + 16;
-        if (s->nodes < s->lns_after &&
-            (double)s->knaps < (double)s->lns_after * win)
+        if (!work_reached(s, s->lns_after))
             return;
         s->lns_started = 1;
         s->lns_knaps0 = s->knaps;
