@@ -102,6 +102,17 @@ if grep -qF "decomposition at restored nodes:" "$tmp/err"; then
     failed=$((failed + 1)); echo "FAIL: --split-root-only still split restored nodes"
 else passed=$((passed + 1)); fi
 has "$tmp/out" "$(cat "$tmp/obj1")" "same objective with the split at the root only"
+# parts of the best plan searched again: from a given node count on, said
+# on the progress stream, off with 'never'; the same optimum either way
+expect 0 "parts after 1 node" -- "$surety" solve "$d20" --improve-after 1 --json --progress
+has "$tmp/err" "parts of the best plan searched again:" "the parts are reported on the progress stream"
+has "$tmp/out" "$(cat "$tmp/obj1")" "same objective with parts from node 1 on"
+expect 0 "parts never" -- "$surety" solve "$d20" --improve-after never --json --progress
+if grep -qF "parts of the best plan searched again:" "$tmp/err"; then
+    failed=$((failed + 1)); echo "FAIL: --improve-after never still searched parts"
+else passed=$((passed + 1)); fi
+has "$tmp/out" "$(cat "$tmp/obj1")" "same objective without the parts"
+expect 1 "bad --improve-after" -- "$surety" solve "$tut" --improve-after 0
 expect 0 "gap tolerance" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --gap 0.3 --quiet
 has "$tmp/out" "optimal within the --gap asked for" "a tolerated gap is spelled out next to the status"
 # threads run the split's one-resource solves side by side; the tree
