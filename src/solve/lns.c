@@ -174,8 +174,8 @@ static int may(const surety_solver *s, size_t j, size_t i)
  * freed left-out candidates that may enter a resource of R, chosen at
  * random among the best by the greedy's key (twice as many as taken).
  * Half of these jobs are freed, at most SURETY_LNS_JOBS, a third of them
- * left-out ones when there are so many. Jobs decided at the root stay as they are. Returns
- * the part's job count; the jobs are in ascending order. */
+ * left-out ones when there are so many. Returns the part's job count;
+ * the jobs are in ascending order. */
 static size_t part_jobs(surety_solver *s, size_t r)
 {
     solve_lns *L = s->lns;
@@ -213,11 +213,20 @@ static size_t part_jobs(surety_solver *s, size_t r)
     qsort_r(L->job + np, no, sizeof *L->job, by_key, s->hkey);
     pick(L->job + np, no < 2 * want ? no : 2 * want, want, &L->seed);
     pick(L->job, np, wp, &L->seed);
-    /* in ascending job order, so that a resource's load in the part is
-     * summed as the whole plan's recount sums it */
     c = np + want;
     for (size_t u = 0; u < c; u++)
         L->pin[u] = u < np && u >= wp;
+    /* a job the search does not decide that the incumbent places in R (a
+     * caller's starting plan may hold one) is pinned there too */
+    for (size_t j = 0; j < n; j++) {
+        long i = s->inc_plan[j];
+        if (s->state[j] != SURETY_JOB_FREE && i >= 0 && L->at[i] >= 0) {
+            L->pin[c] = 1;
+            L->job[c++] = j;
+        }
+    }
+    /* in ascending job order, so that a resource's load in the part is
+     * summed as the whole plan's recount sums it */
     for (size_t u = 1; u < c; u++) {
         size_t j = L->job[u], v = u;
         unsigned char f = L->pin[u];
