@@ -398,14 +398,15 @@ typedef struct surety_solve_options {
      * decomposition); NULL: none, the default */
     const double *scenario_cost;
     /* nodes searched (or their work, counted as for decomp_after) before
-     * the search starts to improve its best plan part by part: the jobs
-     * of two resources and the jobs the plan leaves out are searched
-     * again by the same solver, the rest of the plan kept, each pair of
-     * resources in turn, for about a quarter of the tree's work (a large
-     * neighbourhood search; src/solve/lns.c). A part closed without a
-     * better plan is not searched again until the best plan changes.
-     * 0: the default (65536); < 0: never. Needs at least two resources
-     * and no scenario_cost. */
+     * the search starts to improve its best plan part by part (a large
+     * neighbourhood search; src/solve/lns.c): two or three resources
+     * chosen at random, about half of the jobs the plan places in them
+     * and of the jobs it leaves out (at most 16) are searched again by
+     * the same solver, the rest of the plan kept. Parts take a quarter of
+     * the tree's work (counted in scenario knapsacks), halved after every
+     * 12 parts in a row without a better plan, down to 1/64, and back to
+     * a quarter when the best plan changes. 0: the default (65536); < 0:
+     * never. Needs at least two resources and no scenario_cost. */
     long improve_after;
 } surety_solve_options;
 

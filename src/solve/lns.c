@@ -53,7 +53,8 @@ struct solve_lns {
     unsigned char *allow;  /* n*m: their allowed flags in the part */
     surety_resource *pres; /* m: the part's resources */
     surety_model model;
-    surety_scenarios sc;   /* room for N0 scenarios of n jobs */
+    surety_scenarios sc;   /* room for N0 scenarios of cap jobs */
+    size_t cap;            /* jobs sc has room for (grown as parts need) */
     long *start;           /* n: the incumbent's placements in the part */
     long *plan;            /* n: a whole plan */
     double *load;          /* N0: scratch */
@@ -97,15 +98,12 @@ static int lns_init(surety_solver *s)
     L->jobs = surety_xcalloc(n, sizeof *L->jobs);
     L->allow = surety_xcalloc(n * m, 1);
     L->pres = surety_xcalloc(m, sizeof *L->pres);
-    L->sc.hours = surety_xmalloc(N0 * n, sizeof *L->sc.hours);
-    L->sc.profit = surety_xmalloc(N0 * n, sizeof *L->sc.profit);
     L->start = surety_xmalloc(n, sizeof *L->start);
     L->plan = surety_xmalloc(n, sizeof *L->plan);
     L->load = surety_xmalloc(N0, sizeof *L->load);
     L->fail = surety_xmalloc(N0, 1);
     if (!L->res || !L->at || !L->job || !L->pin || !L->jobs || !L->allow ||
-        !L->pres || !L->sc.hours || !L->sc.profit || !L->start ||
-        !L->plan || !L->load || !L->fail)
+        !L->pres || !L->start || !L->plan || !L->load || !L->fail)
         return -1;
     for (size_t i = 0; i < m; i++)
         L->res[i] = i;
@@ -161,7 +159,8 @@ static int by_key(const void *x, const void *y, void *ctx)
 
 /* May job j go to resource i in a part? Allowed after presolve, and
  * possible at the root (a pair the root rules out is in no plan that
- * beats the incumbent), or where the incumbent has it. */
+ * beats the cutoff, the incumbent plus the gap tolerance), or where the
+ * incumbent has it. */
 static int may(const surety_solver *s, size_t j, size_t i)
 {
     size_t m = s->m;
@@ -252,13 +251,25 @@ static int solve_part(surety_solver *s, size_t r, double deadline)
         L->at[i] = -1;
     for (size_t u = 0; u < r; u++)
         L->at[L->res[u]] = (long)u;
+    size_t nf = part_jobs(s, r), freed = 0;
+    for (size_t t = 0; t < nf; t++)
+        freed += !L->pin[t];
+    if (freed == 0)
+        return 0;
     size_t f0 = s->separate ? 0 : outside_failures(s);
     if (f0 > s->k)
         return 0; /* cannot happen for a verified incumbent */
     size_t kk = s->k - f0, Np = 0;
-    size_t nf = part_jobs(s, r);
-    if (nf == 0)
-        return 0;
+    if (nf > L->cap) {
+        /* the part's scenarios: room for N0 rows of nf jobs */
+        surety_xfree(L->sc.hours);
+        surety_xfree(L->sc.profit);
+        L->sc.hours = surety_xmalloc(N0 * nf, sizeof *L->sc.hours);
+        L->sc.profit = surety_xmalloc(N0 * nf, sizeof *L->sc.profit);
+        L->cap = L->sc.hours && L->sc.profit ? nf : 0;
+        if (!L->cap)
+            return -1;
+    }
     for (size_t t = 0; t < nf; t++) {
         size_t j = L->job[t];
         long i = s->inc_plan[j];
@@ -306,6 +317,7 @@ static int solve_part(surety_solver *s, size_t r, double deadline)
     surety_solve_options_init(&o);
     o.interrupt = s->opt->interrupt;
     o.node_limit = SURETY_LNS_NODES;
+    o.gap = s->opt->gap;
     o.lp_after = -1;
     o.decomp_after = -1;
     o.improve_after = -1;
@@ -326,6 +338,20 @@ static int solve_part(surety_solver *s, size_t r, double deadline)
     s->lns_parts++;
     const surety_plan *pl = surety_result_plan(res);
     int better = 0;
+#ifdef SURETY_CHECK_INVARIANTS
+    {
+        /* the part must take the incumbent's placements as its start: its
+         * plan is then worth at least theirs (a part that rejects them
+         * would search from the greedy's plan, silently) */
+        double sp = 0;
+        for (size_t t = 0; t < nf; t++)
+            if (L->start[t] >= 0)
+                sp += s->p[L->job[t]];
+        if (!pl || surety_result_objective(res) <
+                       sp - 1e-9 * (s->pscale + 1))
+            abort();
+    }
+#endif
     if (pl) {
         double gain = 0;
         memcpy(L->plan, s->inc_plan, n * sizeof *L->plan);

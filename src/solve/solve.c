@@ -111,7 +111,8 @@ static double rel_gap(double obj, double bound)
 
 /* One progress line: a mark ('*' new incumbent from the tree, 'H' from a
  * heuristic, 'L' from the local search run from the incumbent, 'S' made
- * from a price round's one-resource plans, 'R' the root LP bound solved,
+ * from a price round's one-resource plans, 'P' from a part of the
+ * incumbent searched again (lns.c), 'R' the root LP bound solved,
  * 'D' the decomposition bound lowered, ' ' timed), elapsed seconds, nodes, open subtrees (waiting in the pool and
  * on the dive path), incumbent, bound, gap. Header every 20 lines. */
 void surety_solve_log_progress(surety_solver *s, int force, char mark)

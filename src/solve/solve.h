@@ -441,11 +441,11 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
 size_t surety_decomp_threads(const surety_solver *s);
 void surety_decomp_free(surety_solver *s);
 
-/* lns.c: one part of the incumbent solved again (the jobs of the next
- * pair of resources not closed at this incumbent, and the jobs left out),
- * its searches stopping at `deadline`. Returns 1 when it made a better
- * plan (accepted by surety_solve_offer), 0 when not (also when every
- * part is closed at this incumbent, or m < 2), -1 out of memory. */
+/* lns.c: one part of the incumbent solved again (two or three resources
+ * chosen at random, about half of their jobs and of the jobs left out
+ * freed, the rest kept), its search stopping at `deadline`. Returns 1
+ * when it made a better plan (accepted by surety_solve_offer), 0 when
+ * not (also when m < 2 or nothing was freed), -1 out of memory. */
 int surety_lns_step(surety_solver *s, double deadline);
 void surety_lns_free(surety_solver *s);
 

@@ -370,8 +370,12 @@ static void decomp_round(surety_solver *s)
 #define SURETY_LNS_PATIENCE 12
 static void lns_round(surety_solver *s)
 {
-    if (s->lns_after <= 0 || !s->have_inc)
+    if (s->lns_after <= 0 || !s->have_inc || s->npool == 0)
         return;
+    double best = s->pool[0].bound < s->root_cap ? s->pool[0].bound
+                                                 : s->root_cap;
+    if (!(best > surety_cutoff(s)))
+        return; /* the search is about to close: no part can pay */
     if (!s->lns_started) {
         if (!work_reached(s, s->lns_after))
             return;
