@@ -20,7 +20,8 @@
  * search exchanges job sets among several resources and the jobs left
  * out at once: on the 40-job, 1000-scenario instance the local search's
  * later improvements moved eight jobs among three resources
- * (bench/README.md, "Findings").
+ * (bench/README.md, "Findings", "Parts of the best plan searched
+ * again").
  *
  * Every plan found here goes through surety_solve_offer, which re-counts
  * it on the scenarios as given: a part's plan never enters unchecked (and
