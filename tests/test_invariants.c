@@ -154,9 +154,10 @@ Test(invariants, split_caps_bound_every_completion)
 /* Parts of the best plan searched again (lns.c) after every node (dives
  * of one node): a part's plan that gains must complete the kept plan
  * within the allowance (the invariant build aborts when the whole plan
- * fails the library's count), joint and separate, with required jobs,
- * forbidden pairs and parts that pin some of their jobs (twelve to
- * fifteen jobs). */
+ * fails the library's count), and a part's result must be worth at least
+ * the incumbent's placements it started from (it aborts when the part
+ * did not take them), joint and separate, with required jobs, forbidden
+ * pairs and parts that pin some of their jobs (twelve to fifteen jobs). */
 Test(invariants, parts_complete_the_kept_plan)
 {
     for (uint64_t t = 0; t < 24; t++) {
