@@ -90,6 +90,14 @@
  * problem of a branch-and-bound node of the Lagrangian dual with the
  * root's multipliers, which caps the node's whole subtree. The probes
  * give only the smallest single decision's value.
+ *
+ * Identical resources (same capacity, factor and jobs) at equal prices
+ * have one and the same V_i, so a batch solves it once and copies it
+ * (run_subs, twin_of). Their prices start equal and stay equal while
+ * their plans are the same, which loses nothing: the dual function is
+ * convex and unchanged when identical resources swap prices, so it has a
+ * minimum where their prices are equal. On four identical resources a
+ * round costs a quarter of the solves (bench/README.md, "Findings").
  * SPDX-License-Identifier: MIT */
 #include <math.h>
 #include <pthread.h>
@@ -251,6 +259,7 @@ struct solve_dec {
     size_t nthr;   /* workers: opt->threads, at most m */
     struct sub_task *task; /* m: a batch of one-resource solves */
     size_t *ord;   /* m: the order run_subs takes them in */
+    size_t *twin;  /* m: the task whose solve answers each (twin_of) */
     double *mu;    /* m*N0 scenario prices, or NULL (not priced) */
     double *dj, *dm; /* the last step's directions: n for lam, m*N0 for mu */
     double *gm;    /* m*N0: this round's subgradient of mu */
@@ -317,6 +326,47 @@ static void *sub_work(void *arg)
     }
 }
 
+/* The first task of the batch whose one-resource problem is task q's
+ * own: the same capacity and hours factor, the same jobs with the same
+ * flags (a probe's or a node's decisions), the same job prices and the
+ * same scenario costs. Its solve then answers q as well: V_i depends on
+ * nothing else (the start is a hint; a solve stopped early gives a bound
+ * of the same problem), so identical resources at equal prices are
+ * solved once. The prices of identical resources stay equal round after
+ * round when their plans are the same (the rounds' steps treat them
+ * alike), and the symmetric prices lose nothing: the decomposition's
+ * function is convex and unchanged when identical resources swap their
+ * prices, so the mean of an optimum over such swaps is an optimum too.
+ * Returns q when no earlier task matches. */
+static size_t twin_of(const surety_solver *s, const sub_task *task, size_t q)
+{
+    const dec_sub *a = task[q].u;
+    size_t N0 = s->N0;
+    for (size_t p = 0; p < q; p++) {
+        const dec_sub *b = task[p].u;
+        if (s->dec->twin[p] != p || a->nj != b->nj ||
+            a->res.capacity != b->res.capacity ||
+            a->res.hours_factor != b->res.hours_factor ||
+            (task[p].cost == NULL) != (task[q].cost == NULL) ||
+            memcmp(a->job, b->job, a->nj * sizeof *a->job) != 0)
+            continue;
+        int same = 1;
+        for (size_t t = 0; t < a->nj && same; t++)
+            same = *a->jobs[t].allowed == *b->jobs[t].allowed &&
+                   a->jobs[t].required == b->jobs[t].required;
+        for (size_t t = 0; t < a->nj && same; t++) {
+            size_t j = a->job[t];
+            same = task[q].lam[j] == task[p].lam[j];
+        }
+        if (same && task[q].cost)
+            same = memcmp(task[q].cost, task[p].cost,
+                          N0 * sizeof *task[q].cost) == 0;
+        if (same)
+            return p;
+    }
+    return q;
+}
+
 /* Runs the tasks, on up to d->nthr threads (the caller's among them),
  * and adds their nodes and knapsacks to the solver's counts. The tasks
  * are independent (distinct resources, each worker its own scenario
@@ -330,22 +380,25 @@ static void run_subs(surety_solver *s, sub_task *task, size_t ntask,
                      double deadline)
 {
     solve_dec *d = s->dec;
-    size_t *ord = d->ord;
+    size_t *ord = d->ord, *twin = d->twin, nrun = 0;
     if (ntask == 0)
         return; /* e.g. a probed job that no resource's problem holds */
     for (size_t q = 0; q < ntask; q++) {
-        size_t r = q;
+        twin[q] = twin_of(s, task, q);
+        if (twin[q] != q)
+            continue; /* an earlier task's solve answers it */
+        size_t r = nrun++;
         long w = task[q].u->work;
         for (; r > 0 && d->nthr > 1 && task[ord[r - 1]].u->work < w; r--)
             ord[r] = ord[r - 1];
         ord[r] = q;
     }
-    sub_batch b = {.s = s, .task = task, .ord = ord, .ntask = ntask,
+    sub_batch b = {.s = s, .task = task, .ord = ord, .ntask = nrun,
                    .next = 0, .deadline = deadline};
     sub_worker w[SURETY_DEC_MAX_THREADS];
     pthread_t th[SURETY_DEC_MAX_THREADS];
     int started[SURETY_DEC_MAX_THREADS] = {0};
-    size_t nw = d->nthr < ntask ? d->nthr : ntask;
+    size_t nw = d->nthr < nrun ? d->nthr : nrun;
     if (nw > SURETY_DEC_MAX_THREADS)
         nw = SURETY_DEC_MAX_THREADS;
     for (size_t k = 0; k < nw; k++)
@@ -357,6 +410,20 @@ static void run_subs(surety_solver *s, sub_task *task, size_t ntask,
         if (started[k])
             pthread_join(th[k], NULL);
     for (size_t q = 0; q < ntask; q++) {
+        if (twin[q] != q) {
+            /* the same problem: the same bound, and its plan */
+            sub_task *t = &task[q], *p = &task[twin[q]];
+            t->v = p->v;
+            t->nodes = 0;
+            t->knaps = 0;
+            if (t->out && p->out && p->u->have_start) {
+                memcpy(t->out->resource, p->out->resource,
+                       t->u->nj * sizeof *t->out->resource);
+                t->u->have_start = 1;
+            }
+            s->dec_twins++;
+            continue;
+        }
         s->dec_nodes += task[q].nodes;
         s->dec_knaps += task[q].knaps;
         task[q].u->work = task[q].nodes;
@@ -391,6 +458,7 @@ void surety_decomp_free(surety_solver *s)
     surety_xfree(d->scs);
     surety_xfree(d->task);
     surety_xfree(d->ord);
+    surety_xfree(d->twin);
     surety_bundle_free(d->bun);
     surety_xfree(d->bx);
     surety_xfree(d->bi);
@@ -451,10 +519,12 @@ static int dec_init(surety_solver *s)
     d->scs = surety_xcalloc(d->nthr, sizeof *d->scs);
     d->task = surety_xcalloc(m, sizeof *d->task);
     d->ord = surety_xmalloc(m, sizeof *d->ord);
+    d->twin = surety_xmalloc(m, sizeof *d->twin);
     d->fresh = surety_xcalloc(m, 1);
     d->want = surety_xmalloc(n * m, 1);
     d->hplan = surety_xmalloc(n, sizeof *d->hplan);
-    if (!d->scs || !d->task || !d->ord || !d->fresh || !d->want || !d->hplan)
+    if (!d->scs || !d->task || !d->ord || !d->twin || !d->fresh ||
+        !d->want || !d->hplan)
         return -1;
     for (size_t w = 0; w < d->nthr; w++) {
         d->scs[w].hours = surety_xmalloc(s->N0 * most, sizeof *d->scs->hours);

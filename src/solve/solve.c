@@ -615,6 +615,11 @@ static surety_code solve_run(const surety_model *model,
               "from the rounds' plans",
               s.dec_root, s.dec_iters, s.dec_nodes, s.dec_secs,
               s.dec_master_secs, s.dec_heur_secs, s.dec_found);
+    if (s.dec_twins)
+        logf_(&s, SURETY_LOG_INFO,
+              "decomposition: %ld one-resource solves answered by an "
+              "identical resource's at the same prices",
+              s.dec_twins);
     if (s.dec_probes)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition probes: %ld one-resource solves with one job "

@@ -279,6 +279,7 @@ struct surety_solver {
     int dec_done;        /* no more rounds or probes */
     double dec_root;     /* the best round's value, or INFINITY */
     long dec_iters, dec_nodes; /* price rounds, nodes of the sub-solves */
+    long dec_twins;      /* sub-solves answered by an identical one's */
     long dec_found; /* incumbents made from the rounds' plans */
     unsigned long long dec_knaps; /* knapsacks of the sub-solves */
     unsigned long long dec_knaps0; /* knaps when the first step came */
