@@ -753,6 +753,9 @@ static void chk_pairs(const surety_solver *s, size_t row)
                 if (v < c)
                     c = v;
             }
+            /* and the restored ancestor's own solves (tree.c, node_split) */
+            if (s->chk_nodec && s->chk_nodec[i] < c)
+                c = s->chk_nodec[i];
             if (c != s->dec_c[i])
                 chk_fail("probed caps", row, 0, i);
         }
@@ -1194,6 +1197,8 @@ void surety_bound_free(surety_solver *s)
 #ifdef SURETY_CHECK_INVARIANTS
     free(s->chk_ub);
     s->chk_ub = NULL;
+    free(s->chk_nodec);
+    s->chk_nodec = NULL;
 #endif
     lagr_keep_free(s);
     surety_xfree(s->lam);

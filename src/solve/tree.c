@@ -487,6 +487,8 @@ static double node_split(surety_solver *s, double b)
     s->dec_secs += surety_solve_now() - now;
 #ifdef SURETY_CHECK_INVARIANTS
     chk_cap(s, dec_cap(s, INFINITY));
+    if (s->chk_nodec && s->dec_c)
+        memcpy(s->chk_nodec, s->dec_c, s->m * sizeof *s->dec_c);
 #endif
     double c = dec_cap(s, b);
     if (!(c > surety_cutoff(s)))
@@ -653,6 +655,14 @@ double surety_tree_search(surety_solver *s)
         }
         size_t d = 0;
         int ok = 1;
+#ifdef SURETY_CHECK_INVARIANTS
+        /* a new restored node: no solves of its own yet */
+        if (!s->chk_nodec)
+            s->chk_nodec = malloc(s->m * sizeof *s->chk_nodec);
+        if (s->chk_nodec)
+            for (size_t i = 0; i < s->m; i++)
+                s->chk_nodec[i] = INFINITY;
+#endif
         for (; d < e.depth && ok; d++)
             ok = apply(s, d, s->order[d], e.dec[d]);
         /* d decisions applied (the last one may have failed) */
