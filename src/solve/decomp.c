@@ -260,6 +260,8 @@ struct solve_dec {
     struct sub_task *task; /* m: a batch of one-resource solves */
     size_t *ord;   /* m: the order run_subs takes them in */
     size_t *twin;  /* m: the task whose solve answers each (twin_of) */
+    double *nv;    /* m: V_i solved at the current restored node */
+    unsigned char *nsolved; /* m: nv[i] is set (surety_decomp_node) */
     double *mu;    /* m*N0 scenario prices, or NULL (not priced) */
     double *dj, *dm; /* the last step's directions: n for lam, m*N0 for mu */
     double *gm;    /* m*N0: this round's subgradient of mu */
@@ -459,6 +461,8 @@ void surety_decomp_free(surety_solver *s)
     surety_xfree(d->task);
     surety_xfree(d->ord);
     surety_xfree(d->twin);
+    surety_xfree(d->nv);
+    surety_xfree(d->nsolved);
     surety_bundle_free(d->bun);
     surety_xfree(d->bx);
     surety_xfree(d->bi);
@@ -520,11 +524,13 @@ static int dec_init(surety_solver *s)
     d->task = surety_xcalloc(m, sizeof *d->task);
     d->ord = surety_xmalloc(m, sizeof *d->ord);
     d->twin = surety_xmalloc(m, sizeof *d->twin);
+    d->nv = surety_xmalloc(m, sizeof *d->nv);
+    d->nsolved = surety_xcalloc(m, 1);
     d->fresh = surety_xcalloc(m, 1);
     d->want = surety_xmalloc(n * m, 1);
     d->hplan = surety_xmalloc(n, sizeof *d->hplan);
-    if (!d->scs || !d->task || !d->ord || !d->twin || !d->fresh ||
-        !d->want || !d->hplan)
+    if (!d->scs || !d->task || !d->ord || !d->twin || !d->nv ||
+        !d->nsolved || !d->fresh || !d->want || !d->hplan)
         return -1;
     for (size_t w = 0; w < d->nthr; w++) {
         d->scs[w].hours = surety_xmalloc(s->N0 * most, sizeof *d->scs->hours);
@@ -1176,6 +1182,31 @@ static int probe_next(surety_solver *s, double deadline)
  * as the probes do (tree.c, dec_cap); it lowers dec_c[i], which the
  * node's subtree inherits. Returns 0, or 2 when a limit stopped a
  * sub-solve (its dec_c[i] then stays). */
+/* Resource h's problem at the node is resource i's (both solved with the
+ * node's decisions): the same capacity, factor and jobs, the same prices,
+ * and no job placed in either, so that each job is free or kept out in
+ * both alike. */
+static int node_twin(const surety_solver *s, size_t h, size_t i)
+{
+    const solve_dec *d = s->dec;
+    const dec_sub *a = &d->sub[h], *b = &d->sub[i];
+    size_t m = s->m, N0 = s->N0;
+    const unsigned char *px = s->pxs;
+    if (s->nin[h] || s->nin[i] || a->nj != b->nj ||
+        a->res.capacity != b->res.capacity ||
+        a->res.hours_factor != b->res.hours_factor ||
+        memcmp(a->job, b->job, a->nj * sizeof *a->job) != 0)
+        return 0;
+    for (size_t t = 0; t < a->nj; t++) {
+        size_t j = a->job[t];
+        if (px[j * m + h] != px[j * m + i])
+            return 0;
+    }
+    return !d->best_priced ||
+           memcmp(s->dec_mu + h * N0, s->dec_mu + i * N0,
+                  N0 * sizeof *s->dec_mu) == 0;
+}
+
 int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
                        double deadline)
 {
@@ -1186,6 +1217,25 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
     const unsigned char *px = s->pxs; /* row 0: the root's */
     if (cnt > m - i0)
         cnt = m - i0;
+    if (i0 == 0) /* a new node: nothing solved at it yet */
+        memset(d->nsolved, 0, m);
+    /* a resource whose problem an earlier call of this node solved takes
+     * that value (the calls go in resource order, from 0) */
+    size_t first = i0;
+    for (; first < i0 + cnt; first++) {
+        size_t h = 0;
+        while (h < i0 && !(d->nsolved[h] && node_twin(s, h, first)))
+            h++;
+        if (h == i0)
+            break;
+        s->dec_twins++;
+        d->nv[first] = d->nv[h];
+        d->nsolved[first] = 1;
+        if (d->nv[h] < s->dec_c[first])
+            s->dec_c[first] = d->nv[h];
+    }
+    cnt -= first - i0;
+    i0 = first;
     for (size_t r = 0; r < cnt; r++) {
         size_t i = i0 + r;
         dec_sub *u = &d->sub[i];
@@ -1216,6 +1266,8 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
             stopped = 1;
             continue;
         }
+        d->nv[i] = v;
+        d->nsolved[i] = 1;
         s->dec_nsolves++;
         if (v < s->dec_c[i])
             s->dec_c[i] = v;
