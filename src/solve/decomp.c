@@ -1173,15 +1173,21 @@ static int probe_next(surety_solver *s, double deadline)
     return d->next >= s->nb;
 }
 
-/* The restored node's own V_i for the resources i0 .. i0+cnt-1 (one
- * batch: run_subs): each one's problem with all of the node's decisions
- * at once (its jobs in i forced in, its jobs placed elsewhere or
- * rejected kept out), at the best round's prices. It is at most the
- * smallest probed value of those decisions (its job sets are among each
- * probe's), and bounds resource i's part of every completion of the node
- * as the probes do (tree.c, dec_cap); it lowers dec_c[i], which the
- * node's subtree inherits. Returns 0, or 2 when a limit stopped a
- * sub-solve (its dec_c[i] then stays). */
+/* The invariant build keeps the values the restored node's own solves
+ * gave, apart from dec_c, so that its check of the caps along the path
+ * (bound.c, "probed caps") has a reference of its own. */
+static void chk_node_value(surety_solver *s, size_t i, double v)
+{
+#ifdef SURETY_CHECK_INVARIANTS
+    if (s->chk_nodec && v < s->chk_nodec[i])
+        s->chk_nodec[i] = v;
+#else
+    (void)s;
+    (void)i;
+    (void)v;
+#endif
+}
+
 /* Resource h's problem at the node is resource i's (both solved with the
  * node's decisions): the same capacity, factor and jobs, the same prices,
  * and no job placed in either, so that each job is free or kept out in
@@ -1207,6 +1213,15 @@ static int node_twin(const surety_solver *s, size_t h, size_t i)
                   N0 * sizeof *s->dec_mu) == 0;
 }
 
+/* The restored node's own V_i for the resources i0 .. i0+cnt-1 (one
+ * batch: run_subs): each one's problem with all of the node's decisions
+ * at once (its jobs in i forced in, its jobs placed elsewhere or
+ * rejected kept out), at the best round's prices. It is at most the
+ * smallest probed value of those decisions (its job sets are among each
+ * probe's), and bounds resource i's part of every completion of the node
+ * as the probes do (tree.c, dec_cap); it lowers dec_c[i], which the
+ * node's subtree inherits. Returns 0, or 2 when a limit stopped a
+ * sub-solve (its dec_c[i] then stays). */
 int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
                        double deadline)
 {
@@ -1231,6 +1246,7 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
         s->dec_twins++;
         d->nv[first] = d->nv[h];
         d->nsolved[first] = 1;
+        chk_node_value(s, first, d->nv[h]);
         if (d->nv[h] < s->dec_c[first])
             s->dec_c[first] = d->nv[h];
     }
@@ -1268,6 +1284,7 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
         }
         d->nv[i] = v;
         d->nsolved[i] = 1;
+        chk_node_value(s, i, v);
         s->dec_nsolves++;
         if (v < s->dec_c[i])
             s->dec_c[i] = v;

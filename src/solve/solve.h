@@ -197,8 +197,8 @@ struct surety_solver {
     size_t rlcap;
 #ifdef SURETY_CHECK_INVARIANTS
     double *chk_ub;      /* (nb+2)*N: the values ubv must hold per depth */
-    double *chk_nodec;   /* m: the restored node's dec_c after its own
-                          * solves (tree.c, node_split), INFINITY before */
+    double *chk_nodec;   /* m: the least value the restored node's own
+                          * solves gave (decomp.c), INFINITY before them */
 #endif
     unsigned long evals; /* bound evaluations (refresh schedule) */
     /* scenario knapsacks evaluated by the node bounds (bound.c): the

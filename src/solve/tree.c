@@ -487,8 +487,6 @@ static double node_split(surety_solver *s, double b)
     s->dec_secs += surety_solve_now() - now;
 #ifdef SURETY_CHECK_INVARIANTS
     chk_cap(s, dec_cap(s, INFINITY));
-    if (s->chk_nodec && s->dec_c)
-        memcpy(s->chk_nodec, s->dec_c, s->m * sizeof *s->dec_c);
 #endif
     double c = dec_cap(s, b);
     if (!(c > surety_cutoff(s)))
