@@ -474,7 +474,8 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
     if (!s->p || !s->cap || !s->cap_hi || !s->allowed || !s->required ||
         !s->cand || !s->order || !s->rclass || merge_scenarios(s) != 0)
         goto oom;
-    if (s->mu && !(s->cq = surety_xmalloc(s->N, sizeof *s->cq)))
+    if (s->mu && (!(s->cq = surety_xmalloc(s->N, sizeof *s->cq)) ||
+                  !(s->cq2 = surety_xmalloc(s->N, sizeof *s->cq2))))
         goto oom;
 
     /* the job's value: its mean profit, summed as plan.c does */
@@ -629,6 +630,7 @@ void surety_presolve_free(surety_solver *s)
     surety_xfree(s->cnt);
     surety_xfree(s->mu);
     surety_xfree(s->cq);
+    surety_xfree(s->cq2);
     surety_xfree(s->cap);
     surety_xfree(s->cap_hi);
     surety_xfree(s->p);

@@ -128,7 +128,7 @@ struct surety_solver {
     unsigned *cnt;       /* N multiplicities (sum = W <= N0) */
     double *mu;          /* N failure costs (the copies' sum), with
                           * opt->scenario_cost; else NULL */
-    solve_cq *cq;        /* N: scratch of the cost bound (bound.c) */
+    solve_cq *cq, *cq2;  /* N each: scratch of the cost bound (bound.c) */
     double *cap;         /* m capacities in base hours, C_i / f_i */
     double *cap_hi;      /* m: above this a load is clearly overloaded */
     double *p;           /* n mean profits (sum over l / N0) */
