@@ -1567,6 +1567,31 @@ static void check_round(void *ctx, const surety_dec_round *r)
  * must have one of at least a thousandth of the optimum (a hundredth of
  * which is still thousands of times the tolerance). Nothing here depends
  * on time. */
+/* A solve with the decomposition's watcher: its result passes
+ * check_result, and its status and value are the enumerated ones (feas,
+ * bf) to tol. */
+static surety_result *watched_enumerated(const surety_model *md,
+                                         const surety_scenarios *sc,
+                                         const surety_solve_options *o,
+                                         surety_dec_watch watch, void *ctx,
+                                         int feas, double bf, double tol,
+                                         uint64_t t)
+{
+    surety_result *res = NULL;
+    surety_error err;
+    surety_error_clear(&err);
+    cr_assert_eq(surety_solve_watched(md, sc, o, watch, ctx, &res, &err),
+                 SURETY_OK, "%s", err.message);
+    check_result(md, sc, res);
+    cr_assert_eq(surety_result_status(res),
+                 feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE);
+    if (feas)
+        cr_assert(fabs(surety_result_objective(res) - bf) <= tol,
+                  "instance %lu: solver %.12g, enumeration %.12g",
+                  (unsigned long)t, surety_result_objective(res), bf);
+    return res;
+}
+
 /* What the rounds of a set of solves showed (rounds_case). */
 typedef struct round_totals {
     long rounds, priced, with;
@@ -1601,19 +1626,8 @@ static void rounds_case(const solve_gen_params *p, uint64_t t, int one_each,
         o.log = catch_line;
         o.log_ctx = g;
     }
-    surety_result *res = NULL;
-    surety_error err;
-    surety_error_clear(&err);
-    cr_assert_eq(surety_solve_watched(md, sc, &o, check_round, &e, &res,
-                                      &err),
-                 SURETY_OK, "%s", err.message);
-    check_result(md, sc, res);
-    cr_assert_eq(surety_result_status(res),
-                 feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE);
-    if (feas)
-        cr_assert(fabs(surety_result_objective(res) - bf) <= e.tol,
-                  "instance %lu: solver %.12g, enumeration %.12g",
-                  (unsigned long)t, surety_result_objective(res), bf);
+    surety_result *res =
+        watched_enumerated(md, sc, &o, check_round, &e, feas, bf, e.tol, t);
     cr_assert(!e.bad_price, "instance %lu: a price of the wrong sign",
               (unsigned long)t);
     cr_assert(e.short_by <= e.tol,
@@ -1833,19 +1847,8 @@ Test(solve, probe_tables_cap_the_sets_their_decisions_allow)
         o.decomp_after = 1;
         o.decomp_rounds = 1 + (int)(t % 3);
         o.decomp_jobs_only = t % 6 < 3;
-        surety_result *res = NULL;
-        surety_error err;
-        surety_error_clear(&err);
-        cr_assert_eq(surety_solve_watched(md, sc, &o, check_probes, &q, &res,
-                                          &err),
-                     SURETY_OK, "%s", err.message);
-        check_result(md, sc, res);
-        cr_assert_eq(surety_result_status(res),
-                     feas ? SURETY_OPTIMAL : SURETY_INFEASIBLE);
-        if (feas)
-            cr_assert(fabs(surety_result_objective(res) - bf) <= q.e.tol,
-                      "instance %lu: solver %.12g, enumeration %.12g",
-                      (unsigned long)t, surety_result_objective(res), bf);
+        surety_result *res = watched_enumerated(md, sc, &o, check_probes, &q,
+                                                feas, bf, q.e.tol, t);
         cr_assert(q.short_by <= q.e.tol,
                   "instance %lu: the cap of job %zu decided as %ld on "
                   "resource %zu is %.10g below the best set it allows",
