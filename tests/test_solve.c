@@ -1035,6 +1035,68 @@ Test(solve, parts_of_the_plan_keep_the_enumerated_optimum)
               found, parts);
 }
 
+/* The parts' share of the tree's work (tree.c, lns_round) starts at a
+ * quarter and halves after each twelve parts in a row that find no better
+ * plan, down to a sixteenth of it, so that a search whose plan is already
+ * the best pays little. Each search here starts from the best plan of a
+ * longer search without parts and stops at a node limit; where its plan
+ * stays that start (no part and nothing else found a better one), the
+ * share after P parts must be exactly 0.25 / 2^min(floor(P/12), 4) (the
+ * log line says it). With the halving left out it stays 0.25 and this
+ * fails; enough searches must keep their start through 12 parts or more
+ * (measured: 4 of 10, two of them through 24). */
+Test(solve, parts_take_less_while_they_find_nothing)
+{
+    int kept = 0;
+    for (uint64_t t = 0; t < 10; t++) {
+        solve_gen_params p = {.n = 20 + t % 3, .m = 3, .N = 100,
+                              .eps = 0.1, .tightness = 0.5,
+                              .dist = (solve_gen_dist)(t % 2),
+                              .seed = mix(31500 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.improve_after = -1;
+        o.node_limit = 100000;
+        surety_result *ref = solve_ok(md, sc, &o);
+        const surety_plan *start = surety_result_plan(ref);
+        cr_assert_not_null(start);
+        o.start = start;
+        o.improve_after = 1;
+        o.node_limit = 120000;
+        two_logs g = {{"parts of the best plan searched again: %lf parts", 0,
+                       0},
+                      {"parts of the best plan searched again: %*d parts, "
+                       "%*d nodes, %*f s; %*d better plans; at the end they "
+                       "were allowed %lf",
+                       0, 0}};
+        o.log = catch_two;
+        o.log_ctx = &g;
+        surety_result *res = solve_ok(md, sc, &o);
+        check_result(md, sc, res);
+        if (g.a.seen &&
+            surety_result_objective(res) == surety_result_objective(ref)) {
+            cr_assert(g.b.seen, "instance %lu: no share in the log",
+                      (unsigned long)t);
+            long halvings = (long)g.a.value / 12;
+            double want = ldexp(0.25, -(int)(halvings < 4 ? halvings : 4));
+            cr_assert(g.b.value == want,
+                      "instance %lu: %.0f parts, share %g where %g is due",
+                      (unsigned long)t, g.a.value, g.b.value, want);
+            kept += g.a.value >= 12;
+        }
+        surety_result_free(res);
+        surety_result_free(ref);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("%d searches kept their start through 12 parts or more",
+                kept);
+    cr_assert(kept >= 3, "only %d searches kept their start through 12 "
+              "parts or more", kept);
+}
+
 /* The probes after the price rounds (one or two rounds here, so they come
  * soon): each pair's one-resource problem with the job forced in or kept
  * out caps every node that takes that decision, and pairs whose cap alone

@@ -633,8 +633,10 @@ static surety_code solve_run(const surety_model *model,
     if (s.lns_parts)
         logf_(&s, SURETY_LOG_INFO,
               "parts of the best plan searched again: %ld parts, %ld nodes, "
-              "%.2f s; %ld better plans",
-              s.lns_parts, s.lns_nodes, s.lns_secs, s.lns_found);
+              "%.2f s; %ld better plans; at the end they were allowed %.6g "
+              "of the tree's work",
+              s.lns_parts, s.lns_nodes, s.lns_secs, s.lns_found,
+              s.lns_share);
     logf_(&s, SURETY_LOG_INFO,
           "solve: %s (%s), objective %.6f, bound %.6f, %ld nodes, %.2f s",
           surety_status_name(res->status), surety_stop_name(res->stop),
