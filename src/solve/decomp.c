@@ -333,29 +333,30 @@ static void *sub_work(void *arg)
     }
 }
 
+/* Do two resources' problems have the same capacity, hours factor and
+ * jobs (twin_of and node_twin compare the rest)? */
+static int same_sub(const dec_sub *a, const dec_sub *b)
+{
+    return a->nj == b->nj && a->res.capacity == b->res.capacity &&
+           a->res.hours_factor == b->res.hours_factor &&
+           memcmp(a->job, b->job, a->nj * sizeof *a->job) == 0;
+}
+
 /* The first task of the batch whose one-resource problem is task q's
- * own: the same capacity and hours factor, the same jobs with the same
- * flags (a probe's or a node's decisions), the same job prices and the
- * same scenario costs. Its solve then answers q as well: V_i depends on
- * nothing else (the start is a hint; a solve stopped early gives a bound
- * of the same problem), so identical resources at equal prices are
- * solved once. The prices of identical resources stay equal round after
- * round when their plans are the same (the rounds' steps treat them
- * alike), and the symmetric prices lose nothing: the decomposition's
- * function is convex and unchanged when identical resources swap their
- * prices, so the mean of an optimum over such swaps is an optimum too.
- * Returns q when no earlier task matches. */
+ * own: same_sub, the same flags (a probe's or a node's decisions), the
+ * same job prices and the same scenario costs. Its solve then answers q
+ * as well: V_i depends on nothing else (the start is a hint; a solve
+ * stopped early gives a bound of the same problem). Why the prices of
+ * identical resources stay equal, and lose nothing by it: the head of
+ * this file. Returns q when no earlier task matches. */
 static size_t twin_of(const surety_solver *s, const sub_task *task, size_t q)
 {
     const dec_sub *a = task[q].u;
     size_t N0 = s->N0;
     for (size_t p = 0; p < q; p++) {
         const dec_sub *b = task[p].u;
-        if (s->dec->twin[p] != p || a->nj != b->nj ||
-            a->res.capacity != b->res.capacity ||
-            a->res.hours_factor != b->res.hours_factor ||
-            (task[p].cost == NULL) != (task[q].cost == NULL) ||
-            memcmp(a->job, b->job, a->nj * sizeof *a->job) != 0)
+        if (s->dec->twin[p] != p || !same_sub(a, b) ||
+            (task[p].cost == NULL) != (task[q].cost == NULL))
             continue;
         int same = 1;
         for (size_t t = 0; t < a->nj && same; t++)
@@ -1203,10 +1204,7 @@ static int node_twin(const surety_solver *s, size_t h, size_t i)
     const dec_sub *a = &d->sub[h], *b = &d->sub[i];
     size_t m = s->m, N0 = s->N0;
     const unsigned char *px = s->pxs;
-    if (s->nin[h] || s->nin[i] || a->nj != b->nj ||
-        a->res.capacity != b->res.capacity ||
-        a->res.hours_factor != b->res.hours_factor ||
-        memcmp(a->job, b->job, a->nj * sizeof *a->job) != 0)
+    if (s->nin[h] || s->nin[i] || !same_sub(a, b))
         return 0;
     for (size_t t = 0; t < a->nj; t++) {
         size_t j = a->job[t];
