@@ -202,6 +202,17 @@ static inline void solve_gen_one_resource_each(surety_model *md)
             md->jobs[j].allowed[i] = i == j % md->m;
 }
 
+/* The last resource made a copy of the first (capacity, factor and the
+ * jobs it may take), with the others between them left as they are. */
+static inline void solve_gen_last_copies_first(surety_model *md)
+{
+    size_t last = md->m - 1;
+    md->resources[last].capacity = md->resources[0].capacity;
+    md->resources[last].hours_factor = md->resources[0].hours_factor;
+    for (size_t j = 0; j < md->n; j++)
+        md->jobs[j].allowed[last] = md->jobs[j].allowed[0];
+}
+
 static inline void solve_gen_scenarios_free(surety_scenarios *sc)
 {
     if (!sc)

@@ -266,6 +266,7 @@ struct solve_dec {
     size_t *ord;   /* m: the order run_subs takes them in */
     size_t *twin;  /* m: the task whose solve answers each (twin_of) */
     double *nv;    /* m: V_i solved at the current restored node */
+    size_t *nidx;  /* m: the resources a node's batch solves */
     unsigned char *nsolved; /* m: nv[i] is set (surety_decomp_node) */
     double *mu;    /* m*N0 scenario prices, or NULL (not priced) */
     double *dj, *dm; /* the last step's directions: n for lam, m*N0 for mu */
@@ -468,6 +469,7 @@ void surety_decomp_free(surety_solver *s)
     surety_xfree(d->ord);
     surety_xfree(d->twin);
     surety_xfree(d->nv);
+    surety_xfree(d->nidx);
     surety_xfree(d->nsolved);
     surety_bundle_free(d->bun);
     surety_xfree(d->bx);
@@ -531,11 +533,12 @@ static int dec_init(surety_solver *s)
     d->ord = surety_xmalloc(m, sizeof *d->ord);
     d->twin = surety_xmalloc(m, sizeof *d->twin);
     d->nv = surety_xmalloc(m, sizeof *d->nv);
+    d->nidx = surety_xmalloc(m, sizeof *d->nidx);
     d->nsolved = surety_xcalloc(m, 1);
     d->fresh = surety_xcalloc(m, 1);
     d->want = surety_xmalloc(n * m, 1);
     d->hplan = surety_xmalloc(n, sizeof *d->hplan);
-    if (!d->scs || !d->task || !d->ord || !d->twin || !d->nv ||
+    if (!d->scs || !d->task || !d->ord || !d->twin || !d->nv || !d->nidx ||
         !d->nsolved || !d->fresh || !d->want || !d->hplan)
         return -1;
     for (size_t w = 0; w < d->nthr; w++) {
@@ -1238,25 +1241,27 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
     if (i0 == 0) /* a new node: nothing solved at it yet */
         memset(d->nsolved, 0, m);
     /* a resource whose problem an earlier call of this node solved takes
-     * that value (the calls go in resource order, from 0) */
-    size_t first = i0;
-    for (; first < i0 + cnt; first++) {
+     * that value (the calls go in resource order, from 0); the others of
+     * the batch are solved, in idx */
+    size_t nt = 0, *idx = d->nidx;
+    for (size_t i = i0; i < i0 + cnt; i++) {
         size_t h = 0;
-        while (h < i0 && !(d->nsolved[h] && node_twin(s, h, first)))
+        while (h < i0 && !(d->nsolved[h] && node_twin(s, h, i)))
             h++;
-        if (h == i0)
-            break;
+        if (h == i0) {
+            idx[nt++] = i;
+            continue;
+        }
         s->dec_twins++;
-        d->nv[first] = d->nv[h];
-        d->nsolved[first] = 1;
-        chk_node_value(s, first, d->nv[h]);
-        if (d->nv[h] < s->dec_c[first])
-            s->dec_c[first] = d->nv[h];
+        s->dec_ntwins++;
+        d->nv[i] = d->nv[h];
+        d->nsolved[i] = 1;
+        chk_node_value(s, i, d->nv[h]);
+        if (d->nv[h] < s->dec_c[i])
+            s->dec_c[i] = d->nv[h];
     }
-    cnt -= first - i0;
-    i0 = first;
-    for (size_t r = 0; r < cnt; r++) {
-        size_t i = i0 + r;
+    for (size_t r = 0; r < nt; r++) {
+        size_t i = idx[r];
         dec_sub *u = &d->sub[i];
         d->task[r] = best_task(s, i);
         for (size_t t = 0; t < u->nj; t++) {
@@ -1271,10 +1276,10 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
             }
         }
     }
-    run_subs(s, d->task, cnt, deadline);
+    run_subs(s, d->task, nt, deadline);
     int stopped = 0;
-    for (size_t r = 0; r < cnt; r++) {
-        size_t i = i0 + r;
+    for (size_t r = 0; r < nt; r++) {
+        size_t i = idx[r];
         dec_sub *u = &d->sub[i];
         for (size_t t = 0; t < u->nj; t++) {
             u->jobs[t].allowed = &u->one;

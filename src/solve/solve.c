@@ -628,8 +628,9 @@ static surety_code solve_run(const surety_model *model,
     if (s.dec_nsolves)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition at restored nodes: %ld one-resource solves, "
-              "%ld nodes pruned",
-              s.dec_nsolves, s.dec_npruned);
+              "%ld nodes pruned; %ld more answered by an identical "
+              "resource's",
+              s.dec_nsolves, s.dec_npruned, s.dec_ntwins);
     if (s.lns_parts)
         logf_(&s, SURETY_LOG_INFO,
               "parts of the best plan searched again: %ld parts, %ld nodes, "
