@@ -107,14 +107,21 @@ static double knap_joint(const surety_solver *s, size_t l)
     double *r = m <= 64 ? res : s->kn;
     /* a resource whose residual is below the lightest open job's hours,
      * or that no open job can still enter (possible_pairs), takes no more
-     * jobs in this scenario: its residual is not counted */
-    double wmin = INFINITY;
-    const uint32_t *lt = s->light + l * s->nb;
-    for (size_t t = 0; t < s->nb; t++)
-        if (s->state[lt[t]] == SURETY_JOB_FREE) {
-            wmin = row[lt[t]];
-            break;
-        }
+     * jobs in this scenario: its residual is not counted. With one
+     * resource that changes nothing (no open job fits it alone then, and
+     * the value is 0 either way), so its scan is left out: it reads a
+     * table row of its own per scenario, a cache miss at large N (the
+     * decomposition's one-resource solves) */
+    double wmin = -INFINITY;
+    if (m > 1) {
+        const uint32_t *lt = s->light + l * s->nb;
+        wmin = INFINITY;
+        for (size_t t = 0; t < s->nb; t++)
+            if (s->state[lt[t]] == SURETY_JOB_FREE) {
+                wmin = row[lt[t]];
+                break;
+            }
+    }
     double agg = 0, rmax = -INFINITY; /* rmax: over resources still open */
     for (size_t i = 0; i < m; i++) {
         r[i] = s->cap_hi[i] - s->load[i * N + l];
