@@ -94,6 +94,31 @@ static size_t count_over(const double *ld, const double *wj,
     return over;
 }
 
+#ifdef SURETY_CHECK_INVARIANTS
+#include <stdio.h>
+/* Built only for tests/test_invariants.c: with one resource knap_joint
+ * leaves out the scan for the lightest open job, which only matters when
+ * the residual r is positive and below it; then no open candidate may fit
+ * alone (their hours hsum sum to 0). Aborts otherwise. */
+static void chk_one_resource(const surety_solver *s, size_t l, double r,
+                             double hsum)
+{
+    const double *row = s->w + l * s->n;
+    double wmin = INFINITY;
+    for (size_t t = 0; t < s->nb; t++) {
+        size_t j = s->order[t];
+        if (s->state[j] == SURETY_JOB_FREE && row[j] < wmin)
+            wmin = row[j];
+    }
+    if (r > 0 && r < wmin && hsum != 0) {
+        fprintf(stderr, "invariant: scenario %zu, residual %.17g below the "
+                "lightest open job's %.17g, yet open jobs fit\n", l, r,
+                wmin);
+        abort();
+    }
+}
+#endif
+
 /* Fractional knapsack for the joint constraint in scenario l: candidates
  * by efficiency into the aggregated residual capacity of all resources
  * (base hours), restricted to items that fit one allowed resource on
@@ -179,6 +204,10 @@ static double knap_joint(const surety_solver *s, size_t l)
                 bits |= (uint64_t)1 << rk[j];
         }
     }
+#ifdef SURETY_CHECK_INVARIANTS
+    if (m == 1)
+        chk_one_resource(s, l, r[0], hsum);
+#endif
     if (hsum <= agg)
         return psum;
     /* Every job is taken whole or not at all, so this is a 0-1 knapsack
