@@ -163,6 +163,22 @@ static void count_copies(void *ctx, surety_log_level level, const char *line)
         *(long *)ctx += c;
 }
 
+/* The decomposition from the first node on, one or two price rounds,
+ * dives of one or seven nodes (most nodes are restored and solve their
+ * own one-resource problems), no LP; the log to `log`. */
+static void split_options(surety_solve_options *o, uint64_t t, int threads,
+                          surety_log_fn log, void *ctx)
+{
+    surety_solve_options_init(o);
+    o->dive_nodes = 1 + (long)(t % 2) * 6;
+    o->lp_after = -1;
+    o->decomp_after = 1;
+    o->decomp_rounds = 1 + (int)(t % 2);
+    o->threads = threads;
+    o->log = log;
+    o->log_ctx = ctx;
+}
+
 /* The same caps on models whose resources are alike (some jobs forbidden
  * in some of them): a round, a probe or a restored node solves each
  * distinct one-resource problem once (decomp.c, twin_of and node_twin),
@@ -183,14 +199,7 @@ Test(invariants, split_caps_hold_with_identical_resources)
                               .equal_resources = 1,
                               .seed = 0x5eed2400 + t};
         surety_solve_options o;
-        surety_solve_options_init(&o);
-        o.dive_nodes = 1 + (long)(t % 2) * 6;
-        o.lp_after = -1;
-        o.decomp_after = 1;
-        o.decomp_rounds = 1 + (int)(t % 2);
-        o.threads = t % 4 == 1 ? 2 : 1;
-        o.log = count_copies;
-        o.log_ctx = &copied;
+        split_options(&o, t, t % 4 == 1 ? 2 : 1, count_copies, &copied);
         solve_checked(&p, NULL, &o);
     }
     /* measured: 171 copies; with node_twin's test of placed jobs left
@@ -230,14 +239,7 @@ Test(invariants, split_caps_hold_when_a_node_copies_within_a_batch)
                               .p_forbid = t % 3 == 1 ? 0.15 : 0,
                               .seed = 0x5eed4100 + t};
         surety_solve_options o;
-        surety_solve_options_init(&o);
-        o.dive_nodes = 1 + (long)(t % 2) * 6;
-        o.lp_after = -1;
-        o.decomp_after = 1;
-        o.decomp_rounds = 1 + (int)(t % 2);
-        o.threads = 2;
-        o.log = count_node_copies;
-        o.log_ctx = &copied;
+        split_options(&o, t, 2, count_node_copies, &copied);
         solve_checked(&p, solve_gen_last_copies_first, &o);
     }
     cr_log_info("restored nodes copied %ld one-resource solves", copied);
