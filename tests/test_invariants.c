@@ -30,8 +30,8 @@
 #include "solve_gen.h"
 #include "surety.h"
 
-/* Solves p's model (each job in one resource when `single`) with o and
- * checks what the invariant build cannot: the status, and that a
+/* Solves p's model (reshaped by `shape` when given, e.g. each job in one
+ * resource) with o and checks what the invariant build cannot: the status, and that a
  * reported plan passes the independent count below the bound. */
 static void solve_checked(const solve_gen_params *p,
                           void (*shape)(surety_model *),
@@ -152,15 +152,20 @@ Test(invariants, split_caps_bound_every_completion)
     }
 }
 
-/* The one-resource solves a solve copied from an identical resource's,
- * from its log line. */
-static void count_copies(void *ctx, surety_log_level level, const char *line)
+/* A count read from the solve's log lines that match `format` (its one
+ * conversion is the count), summed over solves. */
+typedef struct log_sum {
+    const char *format;
+    long total;
+} log_sum;
+
+static void sum_log(void *ctx, surety_log_level level, const char *line)
 {
     (void)level;
+    log_sum *g = ctx;
     long c = 0;
-    if (sscanf(line, "decomposition: %ld one-resource solves answered", &c) ==
-        1)
-        *(long *)ctx += c;
+    if (sscanf(line, g->format, &c) == 1)
+        g->total += c;
 }
 
 /* The decomposition from the first node on, one or two price rounds,
@@ -187,7 +192,7 @@ static void split_options(surety_solve_options *o, uint64_t t, int threads,
  * the check to bite. */
 Test(invariants, split_caps_hold_with_identical_resources)
 {
-    long copied = 0;
+    log_sum copied = {"decomposition: %ld one-resource solves answered", 0};
     for (uint64_t t = 0; t < 24; t++) {
         solve_gen_params p = {.n = 9 + t % 2, .m = 3,
                               .N = 40 + 20 * (t % 3),
@@ -199,23 +204,13 @@ Test(invariants, split_caps_hold_with_identical_resources)
                               .equal_resources = 1,
                               .seed = 0x5eed2400 + t};
         surety_solve_options o;
-        split_options(&o, t, t % 4 == 1 ? 2 : 1, count_copies, &copied);
+        split_options(&o, t, t % 4 == 1 ? 2 : 1, sum_log, &copied);
         solve_checked(&p, NULL, &o);
     }
     /* measured: 171 copies; with node_twin's test of placed jobs left
      * out, a cap falls below its node's best completion */
-    cr_assert(copied >= 80, "only %ld one-resource solves were copied",
-              copied);
-}
-
-static void count_node_copies(void *ctx, surety_log_level level,
-                              const char *line)
-{
-    (void)level;
-    long c = 0;
-    if (sscanf(line, "decomposition at restored nodes: %*f one-resource "
-                     "solves, %*f nodes pruned; %ld more", &c) == 1)
-        *(long *)ctx += c;
+    cr_assert(copied.total >= 80, "only %ld one-resource solves were copied",
+              copied.total);
 }
 
 /* On two threads a restored node solves its resources two at a time
@@ -229,7 +224,8 @@ static void count_node_copies(void *ctx, surety_log_level level,
  * what split_caps_hold_with_identical_resources catches.) */
 Test(invariants, split_caps_hold_when_a_node_copies_within_a_batch)
 {
-    long copied = 0;
+    log_sum copied = {"decomposition at restored nodes: %*f one-resource "
+                      "solves, %*f nodes pruned; %ld more", 0};
     for (uint64_t t = 0; t < 32; t++) {
         solve_gen_params p = {.n = 10 + t % 3, .m = 4,
                               .N = 60 + 20 * (t % 3),
@@ -239,12 +235,13 @@ Test(invariants, split_caps_hold_when_a_node_copies_within_a_batch)
                               .p_forbid = t % 3 == 1 ? 0.15 : 0,
                               .seed = 0x5eed4100 + t};
         surety_solve_options o;
-        split_options(&o, t, 2, count_node_copies, &copied);
+        split_options(&o, t, 2, sum_log, &copied);
         solve_checked(&p, solve_gen_last_copies_first, &o);
     }
-    cr_log_info("restored nodes copied %ld one-resource solves", copied);
-    cr_assert(copied >= 20, "restored nodes copied only %ld one-resource "
-              "solves", copied);
+    cr_log_info("restored nodes copied %ld one-resource solves",
+                copied.total);
+    cr_assert(copied.total >= 20, "restored nodes copied only %ld "
+              "one-resource solves", copied.total);
 }
 
 /* Parts of the best plan searched again (lns.c) after every node (dives

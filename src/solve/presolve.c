@@ -586,16 +586,17 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
     /* per scenario, the jobs to decide by hours ascending: a node finds
      * the lightest open job of a scenario in a few steps, not O(n). One
      * resource needs none (bound.c, knap_joint) */
-    s->light = m > 1 ? surety_xmalloc(s->N * (s->nb ? s->nb : 1),
-                                      sizeof *s->light)
-                     : NULL;
-    if (m > 1 && !s->light)
-        goto oom;
-    for (size_t l = 0; l < s->N && s->light; l++) {
-        uint32_t *e = s->light + l * s->nb;
-        for (size_t t = 0; t < s->nb; t++)
-            e[t] = (uint32_t)s->order[t];
-        qsort_r(e, s->nb, sizeof *e, cmp_light, (void *)(s->w + l * n));
+    if (m > 1) {
+        s->light = surety_xmalloc(s->N * (s->nb ? s->nb : 1),
+                                  sizeof *s->light);
+        if (!s->light)
+            goto oom;
+        for (size_t l = 0; l < s->N; l++) {
+            uint32_t *e = s->light + l * s->nb;
+            for (size_t t = 0; t < s->nb; t++)
+                e[t] = (uint32_t)s->order[t];
+            qsort_r(e, s->nb, sizeof *e, cmp_light, (void *)(s->w + l * n));
+        }
     }
 
     /* identical resources (same capacity, factor and allowed jobs) are
