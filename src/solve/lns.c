@@ -237,6 +237,18 @@ static size_t part_jobs(surety_solver *s, size_t r)
         L->job[v] = j;
         L->pin[v] = f;
     }
+#ifdef SURETY_CHECK_INVARIANTS
+    /* every job the incumbent places in R is in the part: one left out
+     * would keep its place while the part searched as if its hours were
+     * not there */
+    for (size_t j = 0, u = 0; j < n; j++) {
+        while (u < c && L->job[u] < j)
+            u++;
+        long i = s->inc_plan[j];
+        if (i >= 0 && L->at[i] >= 0 && (u == c || L->job[u] != j))
+            abort();
+    }
+#endif
     return c;
 }
 
