@@ -6,25 +6,6 @@
 
 #include "hash.h"
 
-/* SplitMix64 (Steele, Lea & Flood, "Fast splittable pseudorandom number
- * generators", OOPSLA 2014), the seeding Vigna recommends for xoshiro:
- * it never yields four zero words from any start. */
-static uint64_t splitmix64(uint64_t *x)
-{
-    uint64_t z = (*x += 0x9e3779b97f4a7c15ULL);
-    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
-    z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
-    return z ^ (z >> 31);
-}
-
-surety_rng surety_rng_from(uint64_t x)
-{
-    surety_rng r;
-    for (int w = 0; w < 4; w++)
-        r.s[w] = splitmix64(&x);
-    return r;
-}
-
 surety_rng surety_rng_at(uint64_t seed, uint64_t stream, uint64_t l)
 {
     return surety_rng_from(surety_hash_stream(seed, stream, l));

@@ -21,8 +21,27 @@ typedef struct surety_rng {
  * by value so that callers keep it in registers. */
 surety_rng surety_rng_at(uint64_t seed, uint64_t stream, uint64_t l);
 
-/* The generator started from a single 64-bit value (the SplitMix64 start). */
-surety_rng surety_rng_from(uint64_t x);
+/* SplitMix64 (Steele, Lea & Flood, "Fast splittable pseudorandom number
+ * generators", OOPSLA 2014), the seeding Vigna recommends for xoshiro:
+ * it never yields four zero words from any start. */
+static inline uint64_t surety_rng_splitmix64(uint64_t *x)
+{
+    uint64_t z = (*x += 0x9e3779b97f4a7c15ULL);
+    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
+    z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
+    return z ^ (z >> 31);
+}
+
+/* The generator started from a single 64-bit value (the SplitMix64
+ * start). Inline: the sampler seeds one generator per scenario, and the
+ * seeding of neighbouring scenarios then overlaps. */
+static inline surety_rng surety_rng_from(uint64_t x)
+{
+    surety_rng r;
+    for (int w = 0; w < 4; w++)
+        r.s[w] = surety_rng_splitmix64(&x);
+    return r;
+}
 
 static inline uint64_t surety_rng_rotl(uint64_t x, int k)
 {
