@@ -129,7 +129,11 @@ Test(normal, quantile_batch_equals_scalar)
     static double p[M], want[M];
     static const double edge[] = {0.0, 1.0, NAN, -0.1, 1.5, 0.5, 0.075,
                                   0.925, 0.07499999999999999, 1e-300,
-                                  4.9e-324, 1.0 - 0x1p-53};
+                                  4.9e-324, 1.0 - 0x1p-53,
+                                  /* r = sqrt(-ln p) about 5, the border of
+                                   * the tail's two formulas */
+                                  1.3887943864964021e-11, 1e-11, 1e-12,
+                                  1.0 - 1e-11};
     size_t nedge = NROWS(edge);
     for (size_t t = 0; t < M; t++) {
         /* a deterministic spread over (0,1), denser in the tails */
