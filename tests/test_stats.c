@@ -120,6 +120,37 @@ Test(normal, infinite_arguments)
     cr_expect(surety_norm_cdf(surety_norm_quantile(1.0)) == 1.0);
 }
 
+/* The batch normal CDF gives the scalar one's bits on every element: on
+ * both sides of x = -sqrt 2, where the scalar routine starts to correct
+ * for the rounding of x/sqrt 2, in the far lower tail, at the limits and
+ * at NaN. */
+Test(normal, cdf_batch_equals_scalar)
+{
+    enum { M = 1000 };
+    static double x[M], want[M];
+    static const double edge[] = {-INFINITY, INFINITY, NAN, 0.0, -0.0,
+                                  -M_SQRT2, -1.4142135623730949,
+                                  -1.4142135623730954, -38.5, -40.0, 8.3,
+                                  40.0};
+    size_t nedge = NROWS(edge);
+    for (size_t t = 0; t < M; t++) {
+        /* a deterministic spread over [-39, 9), twice as dense below -1 */
+        double u = (t + 0.5) / M;
+        x[t] = t < nedge ? edge[t] : (t % 2 ? -1.0 - 38.0 * u : 9.0 - 10.0 * u);
+        want[t] = surety_norm_cdf(x[t]);
+    }
+    surety_norm_cdf_batch(x, M);
+    size_t bad = 0;
+    for (size_t t = 0; t < M; t++) {
+        int same = isnan(want[t]) ? isnan(x[t])
+                                  : memcmp(&x[t], &want[t], sizeof x[t]) == 0;
+        if (!same && bad++ < 10)
+            cr_log_error("element %zu: %.17g vs %.17g", t, x[t], want[t]);
+    }
+    cr_expect(bad == 0, "%zu of %d elements differ", bad, M);
+    surety_norm_cdf_batch(NULL, 0);
+}
+
 /* The batch quantile gives the scalar one's bits on every element: both
  * AS 241 regions, their borders, the limits and invalid input, over
  * lengths that cross its internal passes. */
