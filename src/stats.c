@@ -135,23 +135,26 @@ static void central_pass(const double *restrict x, double *restrict w)
 
 /* The elements tail[0 .. nt-1] of `in` outside the central region, into
  * x: the scalar routine's intermediate formula, operation for operation,
- * with the side of 1/2 chosen without a branch (a random mix of sides
- * costs the scalar routine a mispredicted jump on every other element);
+ * inline. The scalar's q < 0 ? p : 1 - p is the smaller of the two here
+ * (no tail element lies at 1/2), which compiles to a minimum instead of a
+ * jump that a random mix of sides mispredicts on every other element, and
+ * its sign of the result is q's, so copysign. An argument of log outside
+ * (0, 1) is replaced first, so log raises nothing the scalar would not;
  * the rare others (beyond r = 5, about p < 1.4e-11, and 0, 1, NaN or out
- * of range) go through the scalar routine. */
+ * of range) then go through the scalar routine. */
 static void tail_pass(const double *in, const size_t *tail, size_t nt,
                       double *x)
 {
     for (size_t k = 0; k < nt; k++) {
-        double p = in[tail[k]], q = p - 0.5;
-        double r = sqrt(-log(q < 0.0 ? p : 1.0 - p));
+        double p = in[tail[k]], q = p - 0.5, c = 1.0 - p;
+        double a = p < c ? p : c;
+        double r = sqrt(-log(a > 0.0 ? a : 0.5));
         if (!(p > 0.0 && p < 1.0 && r <= 5.0)) {
             x[tail[k]] = surety_norm_quantile(p);
             continue;
         }
         r -= 1.6;
-        double v = poly7(ppnd_c, r) / poly7(ppnd_d, r);
-        x[tail[k]] = q < 0.0 ? -v : v;
+        x[tail[k]] = copysign(poly7(ppnd_c, r) / poly7(ppnd_d, r), q);
     }
 }
 

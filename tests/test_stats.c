@@ -129,12 +129,16 @@ Test(normal, cdf_batch_equals_scalar)
     enum { M = 1000 };
     static double x[M], want[M];
     static const double edge[] = {-INFINITY, INFINITY, NAN, 0.0, -0.0,
-                                  -M_SQRT2, -1.4142135623730949,
+                                  /* z = -x/sqrt 2 just below 1, at 1,
+                                   * then above it */
+                                  -1.4142135623730947, -1.4142135623730949,
+                                  -M_SQRT2,
                                   -1.4142135623730954, -38.5, -40.0, 8.3,
                                   40.0};
     size_t nedge = NROWS(edge);
     for (size_t t = 0; t < M; t++) {
-        /* a deterministic spread over [-39, 9), twice as dense below -1 */
+        /* a deterministic spread over (-39, 9): half of it over the
+         * lower tail below -1 */
         double u = (t + 0.5) / M;
         x[t] = t < nedge ? edge[t] : (t % 2 ? -1.0 - 38.0 * u : 9.0 - 10.0 * u);
         want[t] = surety_norm_cdf(x[t]);
