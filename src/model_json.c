@@ -297,7 +297,7 @@ static int get_count(reader *r, json_t *o, const char *key, double lo,
     if (!v)
         return 0;
     push_key(r, key);
-    double x;
+    double x = 0;
     int rc = number_value(r, v, 1, ANY, &x);
     if (rc > 0 && x != floor(x))
         rc = fail(r, AT_VALUE, "must be a whole number (got %g)", x);

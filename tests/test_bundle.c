@@ -421,7 +421,7 @@ Test(bundle, scaled_master_matches_its_minimiser_by_cases)
     int checked = 0, multi = 0;
     for (uint64_t s = 0; s < 300; s++) {
         rng_state = 9100 + s;
-        double a[3], g[6], c[2], d[2], t = 0.5 + 2 * unif(), want[2];
+        double a[3], g[6], c[2], d[2], t = 0.5 + 2 * unif(), want[2] = {0, 0};
         for (int k = 0; k < 3; k++) {
             a[k] = 4 * unif() - 2;
             g[2 * k] = 4 * unif() - 2;
