@@ -31,8 +31,6 @@
 #include "solve_gen.h"
 #include "surety.h"
 
-
-
 /* Solves p's model (reshaped by `shape` when given, e.g. each job in one
  * resource) with o and checks what the invariant build cannot: the status, and that a
  * reported plan passes the independent count below the bound. */
@@ -306,16 +304,18 @@ static double solve_optimum(const surety_model *md, const surety_scenarios *sc,
  * plan may still place it, and then every part holding its resource must
  * keep it there (lns.c, part_jobs), or the part would take its room and
  * the whole plan overload (the invariant build aborts when a part's plan
- * that gains fails the library's count, and when a part lacks a job the
- * incumbent places in its resources). The start is the optimum with that
- * job required in one resource, its hours cut to 0.3 of the generator's
- * so that this start often stays the best plan for a while; the parts
- * run after every node, and the search must end on the optimum without
- * the job. Measured: 98 parts held the started job; without lns.c's pin
- * of it, the invariant build aborts. */
+ * that gains fails the library's count). The invariant build aborts when
+ * a part lacks a job the incumbent places in its resources. The start is
+ * the optimum with that job required in one resource, its hours cut to 0.3
+ * of the generator's so that this start often stays the best plan for a
+ * while; the parts run after every node, and the search must end on the
+ * optimum without the job. Measured: 98 parts kept the started job;
+ * without lns.c's pin of it, the invariant build aborts (at its check of
+ * the part's jobs: the plans' count alone does not catch it here). */
 Test(invariants, parts_keep_a_started_job_the_search_leaves_out)
 {
-    log_sum parts = {"parts of the best plan searched again: %ld parts", 0};
+    log_sum kept = {"parts that kept a placed job the search leaves out: "
+                    "%ld", 0};
     int started = 0;
     for (uint64_t t = 0; t < 24; t++) {
         solve_gen_params p = {.n = 12 + t % 3, .m = 2 + t % 2,
@@ -342,6 +342,7 @@ Test(invariants, parts_keep_a_started_job_the_search_leaves_out)
         double best = solve_optimum(md, sc, &o, NULL);
         /* the start: the job required in its first allowed resource */
         unsigned char allowed[3];
+        cr_assert(p.m <= sizeof allowed);
         memcpy(allowed, zj->allowed, p.m);
         for (size_t i = 0, first = 1; i < p.m; i++) {
             zj->allowed[i] = allowed[i] && first;
@@ -362,14 +363,17 @@ Test(invariants, parts_keep_a_started_job_the_search_leaves_out)
         o.dive_nodes = 1;
         o.improve_after = 1;
         o.log = sum_log;
-        o.log_ctx = &parts;
+        o.log_ctx = &kept;
+        o.verbosity = SURETY_LOG_DEBUG;
         cr_assert_float_eq(solve_optimum(md, sc, &o, NULL), best,
                            1e-9 * (1 + fabs(best)));
         surety_plan_free(start);
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);
     }
-    cr_log_info("%d starts, %ld parts", started, parts.total);
+    cr_log_info("%d starts, %ld parts kept the started job", started,
+                kept.total);
     cr_assert(started >= 16, "only %d starts", started);
-    cr_assert(parts.total >= 100, "only %ld parts", parts.total);
+    cr_assert(kept.total >= 50, "only %ld parts kept the started job",
+              kept.total);
 }

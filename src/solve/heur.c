@@ -288,7 +288,7 @@ static int cmp_key_ext(const void *a, const void *b, void *ctx);
 
 static uint64_t next_rand(uint64_t *x)
 {
-    return surety_splitmix(x);
+    return surety_rng_splitmix64(x);
 }
 
 /* A random allowed resource that keeps job j's group within the

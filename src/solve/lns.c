@@ -116,7 +116,7 @@ static int lns_init(surety_solver *s)
 static void pick(size_t *v, size_t c, size_t want, uint64_t *seed)
 {
     for (size_t t = 0; t < want && t < c; t++) {
-        size_t u = t + (size_t)(surety_splitmix(seed) % (c - t));
+        size_t u = t + (size_t)(surety_rng_splitmix64(seed) % (c - t));
         size_t x = v[t];
         v[t] = v[u];
         v[u] = x;
@@ -218,6 +218,7 @@ static size_t part_jobs(surety_solver *s, size_t r)
         L->pin[u] = u < np && u >= wp;
     /* a job the search does not decide that the incumbent places in R (a
      * caller's starting plan may hold one) is pinned there too */
+    size_t c0 = c;
     for (size_t j = 0; j < n; j++) {
         long i = s->inc_plan[j];
         if (s->state[j] != SURETY_JOB_FREE && i >= 0 && L->at[i] >= 0) {
@@ -225,6 +226,7 @@ static size_t part_jobs(surety_solver *s, size_t r)
             L->job[c++] = j;
         }
     }
+    s->lns_kept += c > c0;
     /* in ascending job order, so that a resource's load in the part is
      * summed as the whole plan's recount sums it */
     for (size_t u = 1; u < c; u++) {

@@ -638,6 +638,10 @@ static surety_code solve_run(const surety_model *model,
               "of the tree's work",
               s.lns_parts, s.lns_nodes, s.lns_secs, s.lns_found,
               s.lns_share);
+    if (s.lns_kept)
+        logf_(&s, SURETY_LOG_DEBUG,
+              "parts that kept a placed job the search leaves out: %ld",
+              s.lns_kept);
     logf_(&s, SURETY_LOG_INFO,
           "solve: %s (%s), objective %.6f, bound %.6f, %ld nodes, %.2f s",
           surety_status_name(res->status), surety_stop_name(res->stop),

@@ -9,6 +9,7 @@
 
 #include "model.h"
 #include "plan.h"
+#include "rng.h"
 #include "sample.h"
 #include "surety.h"
 
@@ -43,16 +44,6 @@ enum { SURETY_JK_DECIDED = 0, SURETY_JK_ALL = 1, SURETY_JK_SOME = 2 };
 enum { SURETY_LIVE = 0, SURETY_DEAD_LOAD = 1, SURETY_DEAD_BOUND = 2 };
 
 typedef struct surety_solver surety_solver;
-
-/* SplitMix64 (Steele, Lea & Flood 2014, cited from memory): the fixed,
- * seeded sequences of the heuristics, which keep runs reproducible. */
-static inline uint64_t surety_splitmix(uint64_t *x)
-{
-    uint64_t z = (*x += 0x9e3779b97f4a7c15ULL);
-    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
-    z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
-    return z ^ (z >> 31);
-}
 
 /* A live scenario in the cost bound (bound.c): its bound, weight, cost. */
 typedef struct solve_cq {
@@ -319,6 +310,8 @@ struct surety_solver {
     unsigned long long lns_knaps0; /* knaps when the first part came */
     unsigned long long lns_knaps;  /* knapsacks of the parts' searches */
     long lns_nodes, lns_parts, lns_found; /* their nodes, parts, plans */
+    long lns_kept;       /* parts that pinned a placed job the search leaves
+                          * out (a caller's starting plan's) */
     double lns_secs;     /* their time */
     double lns_share;    /* their share of the tree's knapsacks */
     int lns_idle;        /* parts in a row without a better plan */
