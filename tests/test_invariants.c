@@ -303,9 +303,9 @@ static double solve_optimum(const surety_model *md, const surety_scenarios *sc,
  * it (presolve leaves it out of the branching order). A caller's starting
  * plan may still place it, and then every part holding its resource must
  * keep it there (lns.c, part_jobs), or the part would take its room and
- * the whole plan overload (the invariant build aborts when a part's plan
- * that gains fails the library's count). The invariant build aborts when
- * a part lacks a job the incumbent places in its resources. The start is
+ * the whole plan overload. The invariant build aborts when a part lacks a
+ * job the incumbent places in its resources, and when a part's plan that
+ * gains fails the library's count. The start is
  * the optimum with that job required in one resource, its hours cut to 0.3
  * of the generator's so that this start often stays the best plan for a
  * while; the parts run after every node, and the search must end on the

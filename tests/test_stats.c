@@ -120,6 +120,21 @@ Test(normal, infinite_arguments)
     cr_expect(surety_norm_cdf(surety_norm_quantile(1.0)) == 1.0);
 }
 
+/* Elements of got whose bits differ from want's (any NaN matches any
+ * NaN), the first ten of them logged. */
+static size_t count_differing(const double *got, const double *want,
+                              size_t count)
+{
+    size_t bad = 0;
+    for (size_t t = 0; t < count; t++) {
+        int same = isnan(want[t]) ? isnan(got[t])
+                                  : memcmp(&got[t], &want[t], sizeof *got) == 0;
+        if (!same && bad++ < 10)
+            cr_log_error("element %zu: %.17g vs %.17g", t, got[t], want[t]);
+    }
+    return bad;
+}
+
 /* The batch normal CDF gives the scalar one's bits on every element: on
  * both sides of x = -sqrt 2, where the scalar routine starts to correct
  * for the rounding of x/sqrt 2, in the far lower tail, at the limits and
@@ -144,13 +159,7 @@ Test(normal, cdf_batch_equals_scalar)
         want[t] = surety_norm_cdf(x[t]);
     }
     surety_norm_cdf_batch(x, M);
-    size_t bad = 0;
-    for (size_t t = 0; t < M; t++) {
-        int same = isnan(want[t]) ? isnan(x[t])
-                                  : memcmp(&x[t], &want[t], sizeof x[t]) == 0;
-        if (!same && bad++ < 10)
-            cr_log_error("element %zu: %.17g vs %.17g", t, x[t], want[t]);
-    }
+    size_t bad = count_differing(x, want, M);
     cr_expect(bad == 0, "%zu of %d elements differ", bad, M);
     surety_norm_cdf_batch(NULL, 0);
 }
@@ -177,13 +186,7 @@ Test(normal, quantile_batch_equals_scalar)
         want[t] = surety_norm_quantile(p[t]);
     }
     surety_norm_quantile_batch(p, M);
-    size_t bad = 0;
-    for (size_t t = 0; t < M; t++) {
-        int same = isnan(want[t]) ? isnan(p[t])
-                                  : memcmp(&p[t], &want[t], sizeof p[t]) == 0;
-        if (!same && bad++ < 10)
-            cr_log_error("element %zu: %.17g vs %.17g", t, p[t], want[t]);
-    }
+    size_t bad = count_differing(p, want, M);
     cr_expect(bad == 0, "%zu of %d elements differ", bad, M);
     /* length 0 touches nothing */
     surety_norm_quantile_batch(NULL, 0);
