@@ -951,17 +951,54 @@ Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
     cr_log_info("rounds in %d solves, probes in %d", runs, probed);
 }
 
+/* The decomposition's end-of-run counts: price rounds, plans made from
+ * the rounds' plans, and the better plans among them. */
+typedef struct round_plans_log {
+    long rounds, made, found;
+    int seen;
+} round_plans_log;
+
+static void catch_round_plans(void *ctx, surety_log_level level,
+                              const char *line)
+{
+    (void)level;
+    round_plans_log *g = ctx;
+    if (sscanf(line,
+               "decomposition bound: %*f, %ld price rounds, %*d nodes in "
+               "one-resource solves, %*f s (bundle steps %*f s, %ld plans "
+               "made from the rounds' plans %*f s); %ld better plans",
+               &g->rounds, &g->made, &g->found) == 3)
+        g->seen = 1;
+}
+
+/* Plans made from the rounds' plans in `rounds` rounds when none is
+ * better: rounds 1, 3, 7, then every 8th (decomp.c, price_round: the
+ * gap doubles after each plan that finds nothing, up to 8 rounds). */
+static long round_plans_without_gain(long rounds)
+{
+    long made = 0, due = 0, gap = 1;
+    for (long r = 1; r <= rounds; r++)
+        if (r >= due) {
+            made++;
+            gap = gap < 8 ? 2 * gap : 8;
+            due = r + gap;
+        }
+    return made;
+}
+
 /* Each price round's one-resource plans made into a whole plan
  * (heur.c surety_heur_from: conflicts settled, jobs dropped to the joint
- * allowance, then the local search) and offered as an incumbent. Solved
+ * allowance, then the local search) and offered as an incumbent, every
+ * round while they pay and further apart while they do not. Solved
  * light (the root's greedy without its local search, as sub-solves are),
  * so that the rounds' plans have incumbents to beat; the answers must be
- * the enumerated ones, and some rounds' plans must have been taken (the
- * log line counts them). The invariant build also checks each such plan
- * against the library's count (decomp.c, round_plan). */
+ * the enumerated ones, some rounds' plans must have been taken, and
+ * where none was, the plans must have been made on the rounds above
+ * (the log line counts them). The invariant build also checks each such
+ * plan against the library's count (decomp.c, round_plan). */
 Test(solve, plans_from_price_rounds_keep_the_enumerated_optimum)
 {
-    int runs = 0;
+    int runs = 0, spaced = 0;
     double taken = 0;
     for (uint64_t t = 0; t < 120; t++) {
         solve_gen_params p;
@@ -972,23 +1009,28 @@ Test(solve, plans_from_price_rounds_keep_the_enumerated_optimum)
         int feas = split_case(mix(29000 + t), 9, t % 4 == 0 ? 120 : 40, &p,
                               &md, &sc, &bf, &o);
         o.decomp_subgradient = t % 3 == 0;
-        lp_log g = {"decomposition bound: %*f, %*d price rounds, %*d nodes "
-                    "in one-resource solves, %*f s (bundle steps %*f s, "
-                    "plans made from the rounds' plans %*f s); %lf better "
-                    "plans",
-                    0, 0};
-        o.log = catch_line;
+        round_plans_log g = {0, 0, 0, 0};
+        o.log = catch_round_plans;
         o.log_ctx = &g;
         expect_enumerated_light(md, sc, &o, &p, t, feas, bf, "light, ", 1);
         runs += g.seen;
-        taken += g.seen ? g.value : 0;
+        taken += (double)g.found;
+        cr_assert(g.found <= g.made && g.made <= g.rounds,
+                  "%ld better of %ld plans in %ld rounds", g.found, g.made,
+                  g.rounds);
+        if (g.seen && g.found == 0) {
+            cr_assert_eq(g.made, round_plans_without_gain(g.rounds),
+                         "%ld plans in %ld rounds", g.made, g.rounds);
+            spaced += g.made < g.rounds;
+        }
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);
     }
-    cr_log_info("rounds in %d solves, %.0f plans taken from them", runs,
-                taken);
+    cr_log_info("rounds in %d solves, %.0f plans taken from them; %d "
+                "solves spaced their plans out", runs, taken, spaced);
     cr_assert(runs >= 30, "the decomposition ran in only %d solves", runs);
     cr_assert(taken >= 5, "only %.0f plans came from the rounds", taken);
+    cr_assert(spaced >= 5, "only %d solves spaced their plans out", spaced);
 }
 
 /* Parts of the best plan searched again (lns.c) from the first node on,

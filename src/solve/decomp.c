@@ -286,6 +286,8 @@ struct solve_dec {
     unsigned char *want; /* n*m: the round's plans that hold job j */
     long *hplan;   /* n: a plan made from them (surety_heur_from) */
     uint64_t hseed; /* its local search's random sequence */
+    long plan_due;  /* the round (dec_iters) of the next such plan */
+    long plan_gap;  /* rounds from one such plan to the next */
     int probing;   /* the rounds are over: pairs are probed */
     size_t next;   /* position in s->order of the next job to probe */
 };
@@ -553,6 +555,8 @@ static int dec_init(surety_solver *s)
         d->lam[j] = s->state[j] == SURETY_JOB_FREE ? s->lam[j] : 0;
     d->theta = 1;
     d->hseed = 0x0dec5eedULL ^ (uint64_t)s->N0 * 0x9e3779b97f4a7c15ULL;
+    d->plan_due = 0;
+    d->plan_gap = 1;
     return 0;
 }
 
@@ -836,6 +840,10 @@ static int bundle_round(surety_solver *s, double L, double deadline)
     return pred > 1e-7 * (fabs(L) + 1) ? 0 : 1;
 }
 
+/* Most rounds between two plans made from the rounds' plans while they
+ * find nothing better (price_round). */
+#define ROUND_PLAN_GAP 8
+
 /* A whole plan from this round's one-resource plans (surety_heur_from),
  * offered as an incumbent. */
 static void round_plan(surety_solver *s)
@@ -920,7 +928,19 @@ static int price_round(surety_solver *s, double deadline)
     if (!(L < INFINITY))
         return 2; /* a limit stopped a sub-solve: this round is not known */
     s->dec_iters++;
-    round_plan(s);
+    if (s->dec_iters >= d->plan_due) {
+        /* every round while its plans pay; after each round whose plan
+         * does not, the next is twice as far off, at most ROUND_PLAN_GAP
+         * rounds (a plan costs about what a round's solves cost where
+         * they take milliseconds: bench/README.md, "Findings") */
+        long found = s->dec_found;
+        round_plan(s);
+        s->dec_made++;
+        d->plan_gap = s->dec_found > found ? 1
+                      : d->plan_gap < ROUND_PLAN_GAP ? 2 * d->plan_gap
+                                                     : ROUND_PLAN_GAP;
+        d->plan_due = s->dec_iters + d->plan_gap;
+    }
 #ifdef SURETY_CHECK_INVARIANTS
     chk_round(s, L);
 #endif

@@ -610,11 +610,11 @@ static surety_code solve_run(const surety_model *model,
     if (s.dec_iters)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition bound: %.6f, %ld price rounds, %ld nodes in "
-              "one-resource solves, %.2f s (bundle steps %.2f s, plans "
+              "one-resource solves, %.2f s (bundle steps %.2f s, %ld plans "
               "made from the rounds' plans %.2f s); %ld better plans made "
               "from the rounds' plans",
               s.dec_root, s.dec_iters, s.dec_nodes, s.dec_secs,
-              s.dec_master_secs, s.dec_heur_secs, s.dec_found);
+              s.dec_master_secs, s.dec_made, s.dec_heur_secs, s.dec_found);
     if (s.dec_twins)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition: %ld one-resource solves answered by an "

@@ -274,6 +274,8 @@ struct surety_solver {
     long dec_iters, dec_nodes; /* price rounds, nodes of the sub-solves */
     long dec_twins;      /* sub-solves answered by an identical one's */
     long dec_found; /* incumbents made from the rounds' plans */
+    long dec_made;  /* plans made from them (every round while they pay,
+                     * then fewer: decomp.c, price_round) */
     unsigned long long dec_knaps; /* knapsacks of the sub-solves */
     unsigned long long dec_knaps0; /* knaps when the first step came */
     int dec_started;     /* the first step has come */
