@@ -21,10 +21,10 @@ typedef struct surety_rng {
  * by value so that callers keep it in registers. */
 surety_rng surety_rng_at(uint64_t seed, uint64_t stream, uint64_t l);
 
-/* SplitMix64 (Steele, Lea & Flood, "Fast splittable pseudorandom number
- * generators", OOPSLA 2014), the seeding Vigna recommends for xoshiro:
- * it never yields four zero words from any start. The solver's heuristics
- * also draw their fixed, seeded sequences from it. */
+/* SplitMix64 (Steele, Lea & Flood 2014, "Fast splittable pseudorandom
+ * number generators"; cited from memory), the seeding Vigna recommends for
+ * xoshiro: it never yields four zero words from any start. The solver's
+ * heuristics also draw their fixed, seeded sequences from it. */
 static inline uint64_t surety_rng_splitmix64(uint64_t *x)
 {
     uint64_t z = (*x += 0x9e3779b97f4a7c15ULL);

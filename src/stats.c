@@ -137,11 +137,12 @@ static void central_pass(const double *restrict x, double *restrict w)
  * x: the scalar routine's intermediate formula, operation for operation,
  * inline. The scalar's q < 0 ? p : 1 - p is the smaller of the two here
  * (no tail element lies at 1/2), which compiles to a minimum instead of a
- * jump that a random mix of sides mispredicts on every other element, and
- * its sign of the result is q's, so copysign. An argument of log outside
- * (0, 1) is replaced first, so log raises nothing the scalar would not;
- * the rare others (beyond r = 5, about p < 1.4e-11, and 0, 1, NaN or out
- * of range) then go through the scalar routine. */
+ * jump that a random mix of sides mispredicts on every other element;
+ * the result takes q's sign (copysign: the value is positive there). An
+ * argument of log outside (0, 1) is replaced first, so log raises nothing
+ * the scalar would not; the rare others (beyond r = 5, about
+ * p < 1.4e-11, and 0, 1, NaN or out of range) then go through the scalar
+ * routine. */
 static void tail_pass(const double *in, const size_t *tail, size_t nt,
                       double *x)
 {

@@ -931,8 +931,9 @@ static int price_round(surety_solver *s, double deadline)
     if (s->dec_iters >= d->plan_due) {
         /* every round while its plans pay; after each round whose plan
          * does not, the next is twice as far off, at most ROUND_PLAN_GAP
-         * rounds (a plan costs about what a round's solves cost where
-         * they take milliseconds: bench/README.md, "Findings") */
+         * rounds (at 1000 scenarios a plan can cost as much as a round's
+         * solves: bench/README.md, "Plans from the price rounds spaced
+         * out") */
         long found = s->dec_found;
         round_plan(s);
         s->dec_made++;
