@@ -299,7 +299,8 @@ struct surety_solver {
     long dec_probes, dec_ruled; /* one-resource probes; pairs ruled out */
     long dec_nsolves;    /* one-resource solves at restored nodes */
     long dec_npruned;    /* restored nodes those solves pruned */
-    long dec_ntwins;     /* of those, answered by an identical resource's */
+    long dec_ntwins;     /* besides those, values copied from an identical
+                          * resource solved at the same node */
     int dec_nodes_on;    /* restored nodes solve their own V_i (tree.c) */
     double dec_rule_inc; /* the incumbent when pairs were last ruled out */
     surety_dec_watch dec_watch; /* called after each price round, or NULL */
