@@ -23,6 +23,11 @@ has() { # has FILE TEXT DESCRIPTION
     if grep -qF -- "$2" "$1"; then passed=$((passed + 1)); else
         failed=$((failed + 1)); echo "FAIL: $3: '$2' not in $1"; cat "$1"; fi
 }
+lacks() { # lacks FILE TEXT DESCRIPTION
+    if grep -qF -- "$2" "$1"; then
+        failed=$((failed + 1)); echo "FAIL: $3: '$2' in $1"; cat "$1"; else
+        passed=$((passed + 1)); fi
+}
 
 tut=$src/instances/tutorial.json
 expect 0 "help" -- "$surety" --help
@@ -68,6 +73,13 @@ expect 4 "root LP after 1 node" -- "$surety" solve "$src/instances/workshops-30.
 has "$tmp/err" "LP bound: root" "root LP reported on the progress stream"
 expect 0 "root LP never" -- "$surety" solve "$tut" --lp-after never --quiet
 expect 1 "bad --lp-after" -- "$surety" solve "$tut" --lp-after 0
+# by default the root LP runs only where the split does not: past 65 536
+# nodes, without and with the split
+expect 4 "root LP by default without the split" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --split-after never --node-limit 70000 --progress
+has "$tmp/err" "LP bound: root" "root LP by default where the split does not run"
+expect 4 "no root LP by default with the split" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --node-limit 70000 --progress
+has "$tmp/err" "decomposition bound:" "the split ran"
+lacks "$tmp/err" "LP bound: root" "no root LP by default where the split runs"
 # the decomposition bound: rounds from node 1 on are said, with their value
 expect 4 "decomposition after 1 node" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --split-after 1 --node-limit 6000 --progress
 has "$tmp/err" "decomposition bound:" "decomposition bound reported on the progress stream"
