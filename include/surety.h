@@ -359,7 +359,7 @@ typedef struct surety_solve_options {
      * many nodes of a joint search where nodes cost more (separate
      * constraints); 0: the default (65536); < 0: never. Needs the
      * best-bound pool and at least two resources. Its rounds then take
-     * about as much bound work as the tree, counted in scenario knapsacks
+     * about four times the tree's bound work, counted in scenario knapsacks
      * (their nodes are not counted in the result's nodes, nor limited by
      * node_limit; each one-resource solve stops after 200 000 nodes and
      * at the time limit). After its price rounds it

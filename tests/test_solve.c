@@ -2000,11 +2000,12 @@ static void count_round(void *ctx, const surety_dec_round *r)
  * joint nodes (tree.c, decomp_round), before decomp_after nodes:
  * here every solve stops at 200 nodes, half of decomp_after, and still
  * runs price rounds (with the share counted in nodes it runs none), and
- * the rounds keep their share of the work from then on. Its bounds stay
- * above the optimum found without the decomposition. */
+ * the rounds keep their share of the work from then on, so that most of
+ * these searches close within the 200 nodes. Its bounds stay above the
+ * optimum found without the decomposition. */
 Test(solve, separate_searches_reach_the_split_by_its_work)
 {
-    long with = 0, stopped = 0;
+    long closed = 0;
     for (uint64_t t = 0; t < 6; t++) {
         solve_gen_params p = {.n = 16 + t % 2, .m = 4, .N = 400, .eps = 0.05,
                               .tightness = 0.5, .separate = 1,
@@ -2031,25 +2032,16 @@ Test(solve, separate_searches_reach_the_split_by_its_work)
         cr_assert(surety_result_bound(res) >= opt - 1e-9 * (1 + fabs(opt)),
                   "instance %lu: bound %.12g below the optimum %.12g",
                   (unsigned long)t, surety_result_bound(res), opt);
-        if (surety_result_status(res) != SURETY_OPTIMAL) {
-            stopped++;
-            with += rounds > 0;
-            /* and the share: the rounds' knapsacks keep up with the
-             * tree's (measured 2-4 rounds; the rounds given a tenth of
-             * the tree's knapsacks run one) */
-            cr_assert(rounds == 0 || rounds >= 2,
-                      "instance %lu: %ld price round(s) in 200 nodes",
-                      (unsigned long)t, rounds);
-        }
+        /* the rounds started by work and kept their share: measured 8-13
+         * rounds in each */
+        cr_assert(rounds >= 2, "instance %lu: %ld price round(s) in %ld nodes",
+                  (unsigned long)t, rounds, surety_result_nodes(res));
+        closed += surety_result_status(res) == SURETY_OPTIMAL;
         surety_result_free(res);
         surety_model_destroy(md);
         solve_gen_scenarios_free(sc);
     }
-    /* power: the node limit must stop most of them */
-    cr_assert(stopped >= 4, "only %ld of 6 solves reached the node limit",
-              stopped);
-    cr_assert_eq(with, stopped, "%ld of %ld stopped solves ran no price "
-                 "round before 200 nodes", stopped - with, stopped);
+    cr_log_info("%ld of 6 closed within 200 nodes", closed);
 }
 
 /* The slow suite (SURETY_SLOW=1, meson test --suite slow): searches long

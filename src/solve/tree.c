@@ -304,6 +304,14 @@ static int work_reached(const surety_solver *s, long after)
     return s->nodes >= after || (double)s->knaps >= (double)after * win;
 }
 
+/* The tree's scenario knapsacks per one-resource solve's knapsack while
+ * the decomposition works: a quarter, so that its rounds and probes get
+ * about four fifths of the work. At one to one, the tree's half of the
+ * rounds' time found no better plan and pruned little on the 40-job,
+ * 1000-scenario instances, whose proofs wait for the rounds and probes
+ * (bench/README.md, "The decomposition's share raised to four fifths"). */
+#define SURETY_DEC_TREE_SHARE 0.25
+
 /* A step of the resource-decomposition bound (decomp.c): a price round,
  * or once the rounds are over, the probes of one job. The first comes
  * once the search has run dec_after nodes without closing, or the
@@ -311,15 +319,15 @@ static int work_reached(const surety_solver *s, long after)
  * bound.c) where a node costs more: with separate constraints a node
  * evaluates a knapsack per resource and live scenario, about 30 times a
  * joint node's at n=40, m=4, N=1000. The next step comes whenever the
- * tree's node bounds have evaluated as many scenario knapsacks since as
- * the one-resource solves have in all (counted in nodes, the separate
- * searches gave the rounds under 1% of their time: bench/README.md,
- * "Findings"); after the probes, pairs are ruled out again whenever the
- * incumbent has improved. The unit is rough: at n=40, m=4, N=1000 the
- * steps take 112 of the first 240 s of the joint search and 38 of the
- * separate one, whose knapsacks cost more. The one-resource solves stop
- * at the time limit, not at the node limit, and their nodes are not in
- * the reported count. Each improvement caps every bound from then on. */
+ * tree's node bounds have evaluated SURETY_DEC_TREE_SHARE times as many
+ * scenario knapsacks since the first as the one-resource solves have in
+ * all (counted in nodes, the separate searches gave the rounds under 1%
+ * of their time: bench/README.md, "Findings"); after the probes, pairs
+ * are ruled out again whenever the incumbent has improved. The unit is
+ * rough: a one-resource knapsack and a joint one differ in cost. The
+ * one-resource solves stop at the time limit, not at the node limit, and
+ * their nodes are not in the reported count. Each improvement caps every
+ * bound from then on. */
 static void decomp_round(surety_solver *s)
 {
     if (s->dec_done && s->dec_vin && s->have_inc && s->inc > s->dec_rule_inc) {
@@ -334,7 +342,8 @@ static void decomp_round(surety_solver *s)
             return;
         s->dec_started = 1;
         s->dec_knaps0 = s->knaps;
-    } else if (s->dec_knaps > s->knaps - s->dec_knaps0) {
+    } else if (SURETY_DEC_TREE_SHARE * (double)s->dec_knaps >
+               (double)(s->knaps - s->dec_knaps0)) {
         return;
     }
     double now = surety_solve_now(), tl = s->opt->time_limit_s;
