@@ -14,7 +14,8 @@
  * most b while including it they exceed b; i.e. the (b+1)-th smallest when
  * every weight is 1. Quickselect with a median-of-three pivot (expected
  * O(c), deterministic). Requires total weight > b. Reorders both arrays. */
-static double select_weighted(double *vals, unsigned *wts, size_t c, size_t b)
+double surety_select_weighted(double *vals, unsigned *wts, size_t c,
+                              size_t b)
 {
     size_t lo = 0, hi = c; /* active range [lo, hi) */
     for (;;) {
@@ -500,7 +501,7 @@ static double lagr_quantiles(surety_solver *s, size_t row)
             else if (parent)
                 over = s->qk[(row - 1) * m + i] - kp + slack;
             else
-                over = select_weighted(s->ub, s->ubw, c, b);
+                over = surety_select_weighted(s->ub, s->ubw, c, b);
         }
         /* Without `all` the quantile is among the recomputed scenarios:
          * their values are at most `over`, the others' kept values above
@@ -542,7 +543,7 @@ static double lagr_quantiles(surety_solver *s, size_t row)
                         s->ubw[c++] = s->cnt[l];
                     }
             }
-            q = select_weighted(s->ub, s->ubw, c, b);
+            q = surety_select_weighted(s->ub, s->ubw, c, b);
         }
         if (s->qk)
             s->qk[row * m + i] = q + s->kp[i];
@@ -699,7 +700,7 @@ static void set_list(surety_solver *s, size_t row, const size_t *ids,
         s->rln[row] = n;
         return;
     }
-    double tau = select_weighted(vals, wts, c, want);
+    double tau = surety_select_weighted(vals, wts, c, want);
     size_t below = 0;
     for (size_t t = 0; t < c; t++)
         if (vals[t] < tau)
@@ -1023,7 +1024,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
         s->knaps += nr;
         s->rix_all = nr == 0 || livew == rw;
         if (rw > b) {
-            qa = select_weighted(s->ub, s->ubw, c, b);
+            qa = surety_select_weighted(s->ub, s->ubw, c, b);
             /* for the children: about the want smallest recomputed */
             lst_c = c;
             lst_w = rw;
@@ -1037,7 +1038,7 @@ double surety_bound_node(surety_solver *s, double cutoff, size_t row)
                     s->ubw[c] = s->cnt[l];
                     s->rix[c++] = l;
                 }
-            qa = select_weighted(s->ub, s->ubw, c, b);
+            qa = surety_select_weighted(s->ub, s->ubw, c, b);
             lst_c = c;
             lst_w = livew;
             lst_slack = slack;
@@ -1209,6 +1210,8 @@ int surety_bound_init(surety_solver *s)
             theta /= 2;
             stall = 0;
         }
+        if (it + 1 == iters)
+            break; /* no step that no round would use */
         double norm = 0;
         for (size_t j = 0; j < n; j++)
             if (s->cand[j] && s->state[j] == SURETY_JOB_FREE)
@@ -1226,8 +1229,13 @@ int surety_bound_init(surety_solver *s)
             s->lam[j] = v < 0 ? 0 : (v > s->p[j] ? s->p[j] : v);
         }
     }
-    memcpy(s->lam, best, n * sizeof *best);
-    lagr_prepare(s);
+    if (memcmp(s->lam, best, n * sizeof *best) != 0) {
+        /* the orders for the best prices (one resource, a single round:
+         * they are the last round's; the decomposition's one-resource
+         * solves paid for the orders twice) */
+        memcpy(s->lam, best, n * sizeof *best);
+        lagr_prepare(s);
+    }
     /* for the joint constraint the aggregated bound is often the smaller
      * one; the per-resource bound is kept only when it helps at the root */
     s->use_lagr = 1;

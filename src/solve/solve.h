@@ -467,6 +467,10 @@ void surety_lpb_free(surety_solver *s);
 /* tree.c: the value a bound must beat: the incumbent plus the user's gap
  * tolerance (never below rounding noise), -INFINITY before any plan. */
 double surety_cutoff(const surety_solver *s);
+/* bound.c: the value at weighted rank b (0-based) of vals[0..c-1], weights
+ * wts; reorders both; needs total weight > b */
+double surety_select_weighted(double *vals, unsigned *wts, size_t c,
+                              size_t b);
 
 /* tree.c: 1 when a limit (time, nodes, interrupt) has stopped the search;
  * sets s->stop. */
