@@ -2033,8 +2033,9 @@ Test(solve, separate_searches_reach_the_split_by_its_work)
                   "instance %lu: bound %.12g below the optimum %.12g",
                   (unsigned long)t, surety_result_bound(res), opt);
         /* the rounds started by work and kept their share: measured 8-13
-         * rounds in each */
-        cr_assert(rounds >= 2, "instance %lu: %ld price round(s) in %ld nodes",
+         * rounds in each (2-4 when they had as many knapsacks as the
+         * tree) */
+        cr_assert(rounds >= 6, "instance %lu: %ld price round(s) in %ld nodes",
                   (unsigned long)t, rounds, surety_result_nodes(res));
         closed += surety_result_status(res) == SURETY_OPTIMAL;
         surety_result_free(res);

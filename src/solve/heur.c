@@ -442,8 +442,9 @@ static int heur_init(surety_solver *s)
         const double *wj = s->wt + j * N;
         double q = wj[0];
         if (target == 0 || target > s->W) {
-            /* no scenario must hold, or (k > W) none can fail enough:
-             * the smallest, or the largest hours */
+            /* as the sort's scan did: with k = W no scenario must hold
+             * (the smallest hours); k > W wraps the rank past W (the
+             * largest) */
             for (size_t l = 1; l < N; l++)
                 if (target == 0 ? wj[l] < q : wj[l] > q)
                     q = wj[l];
