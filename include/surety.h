@@ -341,8 +341,9 @@ typedef struct surety_solve_options {
      * formulation is solved at the root, to cap every bound from then on
      * and rule out pairs by reduced cost (an instance that closes sooner
      * never pays for it); 0: the default (65536, or never where the
-     * decomposition bound runs: decomp_after not negative, at least two
-     * resources, lp_restored off); < 0: never. Needs the
+     * decomposition bound runs from 65536 nodes on or sooner: decomp_after
+     * at most 65536 and not negative, at least two resources, lp_restored
+     * off); < 0: never. Needs the
      * best-bound pool (dive_nodes >= 0) and at most 4096 scenario columns
      * (N, or m*N for separate constraints); under a time limit the root LP
      * stops after a quarter of the time left, with a bound that is still
@@ -368,8 +369,8 @@ typedef struct surety_solve_options {
      * caps every node that takes that decision. From then on each node
      * restored from the pool solves each resource's problem with all of
      * its decisions at once, which caps its subtree, as long as those
-     * solves have taken no more scenario knapsacks than the tree since the
-     * first round. */
+     * solves (the rounds' and probes' included) have taken no more
+     * scenario knapsacks than the tree since the first round. */
     long decomp_after;
     /* most price rounds before the probes; 0 or less: the default (60) */
     int decomp_rounds;

@@ -1154,10 +1154,10 @@ Test(solve, decomposition_probes_keep_the_enumerated_optimum)
 {
     int probed = 0, restored = 0;
     double ruled = 0, pruned = 0;
-    for (uint64_t t = 0; t < 160; t++) {
+    for (uint64_t t = 0; t < 200; t++) {
         /* two mixes: high risk with ample room (more probe caps bite),
          * and lower risk with tighter room (more pairs ruled out); the
-         * last 40 are larger, under separate constraints, whose trees
+         * last 80 are larger, under separate constraints, whose trees
          * run on after the probes */
         int hi = t % 2 == 0, big = t >= 120;
         solve_gen_params p = {.n = big ? 11 : 9 + t % 2, .m = 2,

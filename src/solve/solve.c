@@ -506,13 +506,14 @@ static surety_code solve_run(const surety_model *model,
         }
         {
             s.dec_after = opt->decomp_after == 0 ? 65536 : opt->decomp_after;
-            /* by default no root LP where the decomposition bound runs:
-             * its first round is already below the LP on the 40-job
+            /* by default no root LP where the decomposition bound runs
+             * from the LP's own trigger on (or sooner): its first round is
+             * already below the LP on the 40-job
              * instances, and the LP's 1.6-3.9 s at 1000 scenarios pruned
              * no node and ruled out no pair there (bench/README.md, "The
              * decomposition's share raised to four fifths") */
-            int dec_runs = s.dec_after > 0 && s.m >= 2 &&
-                           opt->dive_nodes >= 0;
+            int dec_runs = s.dec_after > 0 && s.dec_after <= 65536 &&
+                           s.m >= 2 && opt->dive_nodes >= 0;
             s.lp_after = opt->lp_after != 0 ? opt->lp_after
                          : dec_runs && !opt->lp_restored ? -1
                                                          : 65536;

@@ -473,9 +473,14 @@ static void chk_cap(const surety_solver *s, double cap)
 /* The bound b of a node restored from the pool, capped by its own
  * one-resource problems once the probes are done (decomp.c,
  * surety_decomp_node): they lower dec_c, which the node's dive inherits
- * and undo() restores with the node's last decision. The same share as
- * the rounds': only while the one-resource solves have taken no more
- * scenario knapsacks than the tree since the first round. Restored nodes
+ * and undo() restores with the node's last decision. Only while the
+ * one-resource solves, the rounds' and probes' included, have taken no
+ * more scenario knapsacks than the tree since the first round: after the
+ * probes, which ran at four times the tree's share, the tree catches up
+ * before restored nodes solve their own (on the 0.3-capacity instances
+ * of bench/README.md, "The decomposition's share raised to four fifths",
+ * one to one counted from the probes' end, or a quarter, proved them
+ * slower). Restored nodes
  * are those of the best bound, which hold the reported bound up. On
  * 40-job, 100-scenario instances this halves the proofs' time
  * (bench/README.md, "Findings"). */
