@@ -505,20 +505,23 @@ static surety_code solve_run(const surety_model *model,
             s.hseed = 0x1a5eedULL ^ (uint64_t)s.N * 0x9e3779b97f4a7c15ULL;
         }
         {
-            s.dec_after = opt->decomp_after == 0 ? 65536 : opt->decomp_after;
-            /* by default no root LP where the decomposition bound runs
-             * from the LP's own trigger on (or sooner): its first round is
-             * already below the LP on the 40-job
-             * instances, and the LP's 1.6-3.9 s at 1000 scenarios pruned
-             * no node and ruled out no pair there (bench/README.md, "The
-             * decomposition's share raised to four fifths") */
-            int dec_runs = s.dec_after > 0 && s.dec_after <= 65536 &&
+            /* the nodes (or their work) after which the root LP, the
+             * decomposition and the parts start, unless the caller says */
+            const long after = 65536;
+            s.dec_after = opt->decomp_after == 0 ? after : opt->decomp_after;
+            /* by default no root LP where the decomposition bound starts by
+             * the LP's own trigger: its first round is already below the
+             * LP on the 40-job instances, and the LP's 1.6-3.9 s at 1000
+             * scenarios pruned no node and ruled out no pair there
+             * (bench/README.md, "The decomposition's share raised to four
+             * fifths") */
+            int dec_runs = s.dec_after > 0 && s.dec_after <= after &&
                            s.m >= 2 && opt->dive_nodes >= 0;
             s.lp_after = opt->lp_after != 0 ? opt->lp_after
                          : dec_runs && !opt->lp_restored ? -1
-                                                         : 65536;
+                                                         : after;
             s.dec_nodes_on = !opt->decomp_root_only;
-            s.lns_after = opt->improve_after == 0 ? 65536
+            s.lns_after = opt->improve_after == 0 ? after
                                                   : opt->improve_after;
             if (opt->scenario_cost)
                 s.lns_after = -1; /* the parts' searches price no failures */

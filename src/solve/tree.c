@@ -477,13 +477,12 @@ static void chk_cap(const surety_solver *s, double cap)
  * one-resource solves, the rounds' and probes' included, have taken no
  * more scenario knapsacks than the tree since the first round: after the
  * probes, which ran at four times the tree's share, the tree catches up
- * before restored nodes solve their own (on the 0.3-capacity instances
- * of bench/README.md, "The decomposition's share raised to four fifths",
- * one to one counted from the probes' end, or a quarter, proved them
- * slower). Restored nodes
- * are those of the best bound, which hold the reported bound up. On
- * 40-job, 100-scenario instances this halves the proofs' time
- * (bench/README.md, "Findings"). */
+ * before restored nodes solve their own (one to one counted from the
+ * probes' end, or a quarter, proved the 0.3-capacity instances slower:
+ * bench/README.md, "The decomposition's share raised to four fifths").
+ * Restored nodes are those of the best bound, which hold the reported
+ * bound up. On 40-job, 100-scenario instances this halves the proofs'
+ * time (bench/README.md, "Findings"). */
 static double node_split(surety_solver *s, double b)
 {
     if (!s->dec_done || !s->dec || s->dec_knaps > s->knaps - s->dec_knaps0)
