@@ -58,34 +58,93 @@ static void reset(surety_solver *s, const long *plan)
     }
 }
 
-/* Failed weight of resource i's group if job `add` (or none, SIZE_MAX)
- * joined and job `rem` (or none) left resource i. */
-static size_t fail_after(const surety_solver *s, size_t i, size_t add,
-                         size_t rem)
+#ifdef SURETY_CHECK_INVARIANTS
+#include <stdio.h>
+/* Built only for tests/test_invariants.c: fail_after's count made again
+ * one scenario at a time, as it was before it ran four at once. */
+static void chk_fail_after(const surety_solver *s, size_t i, size_t add,
+                           size_t rem, size_t got)
 {
-    size_t N = s->N, g = group_of(s, i);
-    const double *ld = s->hload + i * N;
-    const unsigned char *ov = s->hover + i * N;
-    const unsigned *hv = s->hov + g * N;
-    const double *wa = add != SIZE_MAX ? s->wt + add * N : NULL;
-    const double *wr = rem != SIZE_MAX ? s->wt + rem * N : NULL;
-    size_t fail = s->hfail[g];
+    size_t N = s->N, g = group_of(s, i), fail = s->hfail[g];
     for (size_t l = 0; l < N; l++) {
-        double x = ld[l];
-        if (wa)
-            x += wa[l];
-        if (wr)
-            x -= wr[l];
-        int o = over(s, i, x);
-        if (o == ov[l])
-            continue;
-        unsigned c = hv[l] - ov[l] + (unsigned)o;
-        int was = hv[l] > 0, now = c > 0;
+        double x = s->hload[i * N + l];
+        if (add != SIZE_MAX)
+            x += s->wt[add * N + l];
+        if (rem != SIZE_MAX)
+            x -= s->wt[rem * N + l];
+        int was = s->hov[g * N + l] > 0;
+        int now = s->hov[g * N + l] - s->hover[i * N + l] + over(s, i, x) > 0;
         if (now && !was)
             fail += s->cnt[l];
         else if (was && !now)
             fail -= s->cnt[l];
     }
+    if (fail != got) {
+        fprintf(stderr, "invariant broken: fail_after %zu, recounted %zu\n",
+                got, fail);
+        abort();
+    }
+}
+#endif
+
+/* Failed weight of resource i's group if job `add` (or none, SIZE_MAX)
+ * joined and job `rem` (or none) left resource i: the local search's
+ * inner loop. A scenario's weight counts in where no resource of the
+ * group overloaded it and now i would, and out where i was the only one
+ * and no longer would. Four scenarios at a time without a branch (adding
+ * a job changes the flag in many scenarios, so a branch per change paid
+ * more than it saved); the capacity test is over()'s, the same product
+ * against the same slackened capacity, so the count is exact. */
+SURETY_CLONES
+static size_t fail_after(const surety_solver *s, size_t i, size_t add,
+                         size_t rem)
+{
+    size_t N = s->N, g = group_of(s, i), l = 0;
+    const surety_resource *r = &s->model->resources[i];
+    double f = r->hours_factor;
+    double cap = r->capacity * (1 + SURETY_CAPACITY_SLACK);
+    const double *ld = s->hload + i * N;
+    const unsigned char *ov = s->hover + i * N;
+    const unsigned *hv = s->hov + g * N, *cnt = s->cnt;
+    const double *wa = add != SIZE_MAX ? s->wt + add * N : NULL;
+    const double *wr = rem != SIZE_MAX ? s->wt + rem * N : NULL;
+    const surety_v4d fv = {f, f, f, f}, cv = {cap, cap, cap, cap};
+    const surety_v4i zero = {0, 0, 0, 0};
+    surety_v4i acc = zero;
+    for (; l + 4 <= N; l += 4) {
+        surety_v4d x, w;
+        memcpy(&x, ld + l, sizeof x);
+        if (wa) {
+            memcpy(&w, wa + l, sizeof w);
+            x += w;
+        }
+        if (wr) {
+            memcpy(&w, wr + l, sizeof w);
+            x -= w;
+        }
+        surety_v4i o = ~(surety_v4i)(fv * x <= cv) & 1; /* over() */
+        surety_v4i was = {ov[l], ov[l + 1], ov[l + 2], ov[l + 3]};
+        surety_v4i h = {hv[l], hv[l + 1], hv[l + 2], hv[l + 3]};
+        surety_v4i c = {cnt[l], cnt[l + 1], cnt[l + 2], cnt[l + 3]};
+        surety_v4i now = h - was + o;
+        acc += ((surety_v4i)(now > zero) & c) - ((surety_v4i)(h > zero) & c);
+    }
+    size_t fail = s->hfail[g] + (size_t)(acc[0] + acc[1] + acc[2] + acc[3]);
+    for (; l < N; l++) {
+        double x = ld[l];
+        if (wa)
+            x += wa[l];
+        if (wr)
+            x -= wr[l];
+        unsigned now = hv[l] - ov[l] + (unsigned)over(s, i, x);
+        if (now > 0 && hv[l] == 0)
+            fail += cnt[l];
+        else if (hv[l] > 0 && now == 0)
+            fail -= cnt[l];
+    }
+#ifdef SURETY_CHECK_INVARIANTS
+    chk_fail_after(s, i, add, rem, fail);
+#endif
     return fail;
 }
 
