@@ -283,6 +283,85 @@ Test(solve, toy_instance_of_methods)
     solve_gen_scenarios_free(sc);
 }
 
+static int cmp_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* The node bound's selection (bound.c, surety_select_weighted) against
+ * its definition by sorting: the smallest value whose weights strictly
+ * before it, in ascending order, sum to at most b and with it exceed b.
+ * Weights all 1 take a path of their own (select_plain), other weights
+ * the three-way partition; both must leave the arrays a permutation of
+ * the (value, weight) pairs, as the children's list selects from them
+ * again. Values with many ties (a few distinct levels, as scenarios whose
+ * every open job fits give) and -INFINITY (infeasible scenarios) among
+ * them. */
+Test(solve, selection_is_the_order_statistic_of_the_sorted_values)
+{
+    solve_gen_rng r;
+    solve_gen_seed(&r, 4242);
+    enum { MAXC = 300 };
+    double v[MAXC], ref[MAXC], pairs[MAXC], back[MAXC];
+    unsigned w[MAXC], w0[MAXC];
+    size_t plain = 0, weighted = 0;
+    for (int rep = 0; rep < 3000; rep++) {
+        size_t c = 1 + solve_gen_next(&r) % MAXC;
+        unsigned levels = 1 + (unsigned)(solve_gen_next(&r) % 6);
+        int unit = solve_gen_next(&r) % 2 == 0, ties = rep % 3 == 0;
+        size_t tot = 0;
+        for (size_t t = 0; t < c; t++) {
+            double u = solve_gen_unif(&r);
+            v[t] = ties ? (double)(solve_gen_next(&r) % levels) : u * 100;
+            if (solve_gen_next(&r) % 50 == 0)
+                v[t] = -INFINITY;
+            w[t] = unit ? 1 : 1 + (unsigned)(solve_gen_next(&r) % 4);
+            w0[t] = w[t];
+            tot += w[t];
+            /* each (value, weight) pair as one number, to compare the
+             * pairs before and after */
+            pairs[t] = v[t] == -INFINITY ? -1e9 - w[t] : v[t] * 8 + w[t];
+        }
+        size_t b = solve_gen_next(&r) % tot; /* total weight > b */
+        /* by sorting: values in ascending order, weights summed along */
+        size_t ord[MAXC];
+        for (size_t t = 0; t < c; t++)
+            ord[t] = t;
+        for (size_t a = 1; a < c; a++) /* insertion sort by value */
+            for (size_t u = a; u > 0 && v[ord[u - 1]] > v[ord[u]]; u--) {
+                size_t x = ord[u];
+                ord[u] = ord[u - 1];
+                ord[u - 1] = x;
+            }
+        double want = NAN;
+        size_t acc = 0;
+        for (size_t t = 0; t < c; t++) {
+            acc += w0[ord[t]];
+            if (acc > b) {
+                want = v[ord[t]];
+                break;
+            }
+        }
+        memcpy(ref, pairs, c * sizeof *ref);
+        qsort(ref, c, sizeof *ref, cmp_double);
+        double got = surety_select_weighted(v, w, c, b);
+        cr_assert(got == want, "c=%zu b=%zu unit=%d: %g, by sorting %g", c,
+                  b, unit, got, want);
+        /* still the same pairs */
+        for (size_t t = 0; t < c; t++)
+            back[t] = v[t] == -INFINITY ? -1e9 - w[t] : v[t] * 8 + w[t];
+        qsort(back, c, sizeof *back, cmp_double);
+        cr_assert(memcmp(back, ref, c * sizeof *ref) == 0,
+                  "c=%zu: the arrays are no longer a permutation", c);
+        if (unit)
+            plain++;
+        else
+            weighted++;
+    }
+    cr_assert(plain > 1000 && weighted > 1000);
+}
+
 /* A load equal to its capacity in decimal fits (src/plan.h): in binary
  * 1.35 x 11 = 14.850000000000001 > 14.85, which the test's relative slack
  * of 1e-12 absorbs. The case is the minimised fuzzer model of

@@ -9,14 +9,67 @@
 
 #include "solve/solve.h"
 
+/* The (b+1)-th smallest of vals[0..c-1] (b < c), for weights that are
+ * all 1 (scenarios without duplicates, the usual case at large N). A
+ * quickselect with the same pivot as the weighted one, but without a
+ * branch on the values, which come in no useful order, so that such a
+ * branch is mispredicted often (bench/README.md, "Three exact savings in
+ * the node's work"): one pass counts the values below and equal to the pivot, a second swaps the
+ * side that holds the answer to the front of the range (a partition in
+ * the manner of Lomuto's, whose swap need not be skipped: the array stays
+ * a permutation of the values, which set_list selects from again). */
+static double select_plain(double *vals, size_t c, size_t b)
+{
+    size_t lo = 0, hi = c;
+    for (;;) {
+        if (hi - lo == 1)
+            return vals[lo];
+        double a = vals[lo], m = vals[lo + (hi - lo) / 2], z = vals[hi - 1];
+        double piv = a < m ? (m < z ? m : (a < z ? z : a))
+                           : (a < z ? a : (m < z ? z : m));
+        size_t below = 0, eq = 0;
+        for (size_t t = lo; t < hi; t++) {
+            below += vals[t] < piv;
+            eq += vals[t] == piv;
+        }
+        if (below <= b && below + eq > b)
+            return piv;
+        size_t n = lo;
+        if (below > b) {
+            for (size_t t = lo; t < hi; t++) {
+                double v = vals[t];
+                vals[t] = vals[n];
+                vals[n] = v;
+                n += v < piv;
+            }
+        } else {
+            for (size_t t = lo; t < hi; t++) {
+                double v = vals[t];
+                vals[t] = vals[n];
+                vals[n] = v;
+                n += v > piv;
+            }
+            b -= below + eq;
+        }
+        hi = n;
+    }
+}
+
 /* Weighted selection: the smallest value v among vals[0..c-1] such that the
  * weights of the values strictly before it in ascending order sum to at
  * most b while including it they exceed b; i.e. the (b+1)-th smallest when
  * every weight is 1. Quickselect with a median-of-three pivot (expected
- * O(c), deterministic). Requires total weight > b. Reorders both arrays. */
+ * O(c), deterministic). Requires total weight > b. Reorders both arrays
+ * (with weights all 1, only the values: any order of the weights is
+ * theirs). */
 double surety_select_weighted(double *vals, unsigned *wts, size_t c,
                               size_t b)
 {
+    unsigned other = 0;
+    for (size_t t = 0; t < c; t++)
+        other |= wts[t] ^ 1u;
+    if (!other)
+        return select_plain(vals, c, b);
     size_t lo = 0, hi = c; /* active range [lo, hi) */
     for (;;) {
         if (hi - lo == 1)
@@ -120,6 +173,17 @@ static void chk_one_resource(const surety_solver *s, size_t l, double r,
 }
 #endif
 
+/* The efficiency of the last job taken whole before the break job (last,
+ * or -1 for none: infinite), computed once where the bound needs it
+ * rather than for every job taken. */
+static double last_eff(const surety_solver *s, const double *row, long last)
+{
+    if (last < 0)
+        return INFINITY;
+    double w = row[last];
+    return w > 0 ? s->p[last] / w : INFINITY;
+}
+
 /* Fractional knapsack for the joint constraint in scenario l: candidates
  * by efficiency into the aggregated residual capacity of all resources
  * (base hours), restricted to items that fit one allowed resource on
@@ -218,8 +282,8 @@ static double knap_joint(const surety_solver *s, size_t l)
      * missing hours are removed from the taken jobs at least at the last
      * taken job's efficiency). Both are at most the LP value. */
     const uint32_t *e = s->eff + l * s->ncand;
-    double v = 0, c = agg, elast = INFINITY;
-    long brk = -1;
+    double v = 0, c = agg;
+    long brk = -1, last = -1; /* last: the last job taken whole */
     for (size_t t = 0;;) {
         /* the next fitting job by efficiency (the others are decided, or
          * fit no resource on its own here) */
@@ -241,7 +305,7 @@ static double knap_joint(const surety_solver *s, size_t l)
             if (wj <= c) {
                 v += s->p[j];
                 c -= wj;
-                elast = wj > 0 ? s->p[j] / wj : INFINITY;
+                last = (long)j;
                 continue;
             }
             brk = (long)j;
@@ -249,6 +313,7 @@ static double knap_joint(const surety_solver *s, size_t l)
         }
         /* the first fitting job after the break job */
         double u0 = v + c * (s->p[j] / wj);
+        double elast = last_eff(s, row, last);
         double wc = row[brk];
         double u1 = v + s->p[brk] - (wc - c) * elast;
         double lp = v + s->p[brk] * (c / wc);
@@ -256,6 +321,7 @@ static double knap_joint(const surety_solver *s, size_t l)
         return u < lp ? u : lp;
     }
     if (brk >= 0) {
+        double elast = last_eff(s, row, last);
         double wc = row[brk];
         double u1 = v + s->p[brk] - (wc - c) * elast;
         double lp = v + s->p[brk] * (c / wc);
