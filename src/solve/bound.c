@@ -1182,6 +1182,7 @@ static int cmp_lagr(const void *a, const void *b, void *ctx)
 }
 
 /* Reduced profits and the per-scenario orders for the current prices. */
+#define LAGR_INSERT_MAX 48
 static void lagr_prepare(surety_solver *s)
 {
     size_t n = s->n;
@@ -1199,7 +1200,23 @@ static void lagr_prepare(surety_solver *s)
             if (s->rp[j] > 0)
                 e[c++] = (uint32_t)j;
         lctx ctx = {s->rp, s->w + l * n};
-        qsort_r(e, c, sizeof *e, cmp_lagr, &ctx);
+        if (c > LAGR_INSERT_MAX) {
+            qsort_r(e, c, sizeof *e, cmp_lagr, &ctx);
+            continue;
+        }
+        /* a few jobs (a one-resource solve's, mostly): insertion with the
+         * comparison inline, which a call per comparison cost more than
+         * the sort's work. cmp_lagr orders any two jobs strictly (ties
+         * by index), so every sort gives the same order. */
+        for (size_t a = 1; a < c; a++) {
+            uint32_t x = e[a];
+            size_t u = a;
+            while (u > 0 && cmp_lagr(&x, &e[u - 1], &ctx) < 0) {
+                e[u] = e[u - 1];
+                u--;
+            }
+            e[u] = x;
+        }
     }
 }
 
