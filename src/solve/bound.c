@@ -12,12 +12,13 @@
 /* The (b+1)-th smallest of vals[0..c-1] (b < c), for weights that are
  * all 1 (scenarios without duplicates, the usual case at large N). A
  * quickselect with the same pivot as the weighted one, but without a
- * branch on the values, which come in no useful order, so that such a
- * branch is mispredicted often (bench/README.md, "Three exact savings in
- * the node's work"): one pass counts the values below and equal to the pivot, a second swaps the
- * side that holds the answer to the front of the range (a partition in
- * the manner of Lomuto's, whose swap need not be skipped: the array stays
- * a permutation of the values, which set_list selects from again). */
+ * branch on the values: they come in no useful order, so such a branch is
+ * mispredicted often (bench/README.md, "Branch-free counts and selection
+ * in the inner loops"). One pass counts the values below and equal to the
+ * pivot; a second swaps the side that holds the answer to the front of
+ * the range (a partition in the manner of Lomuto's, whose swap need not
+ * be skipped). The array stays a permutation of the values, which
+ * set_list selects from again. */
 static double select_plain(double *vals, size_t c, size_t b)
 {
     size_t lo = 0, hi = c;
