@@ -303,8 +303,8 @@ Test(solve, selection_is_the_order_statistic_of_the_sorted_values)
     solve_gen_rng r;
     solve_gen_seed(&r, 4242);
     enum { MAXC = 300 };
-    double v[MAXC], ref[MAXC], pairs[MAXC], back[MAXC];
-    unsigned w[MAXC], w0[MAXC];
+    double v[MAXC + 1], ref[MAXC], pairs[MAXC], back[MAXC];
+    unsigned w[MAXC + 1], w0[MAXC];
     size_t plain = 0, weighted = 0;
     for (int rep = 0; rep < 3000; rep++) {
         size_t c = 1 + solve_gen_next(&r) % MAXC;
@@ -324,6 +324,8 @@ Test(solve, selection_is_the_order_statistic_of_the_sorted_values)
             pairs[t] = v[t] == -INFINITY ? -1e9 - w[t] : v[t] * 8 + w[t];
         }
         size_t b = solve_gen_next(&r) % tot; /* total weight > b */
+        v[c] = 12345.5; /* past the end: must stay as it is */
+        w[c] = 7;
         /* by sorting: values in ascending order, weights summed along */
         size_t ord[MAXC];
         for (size_t t = 0; t < c; t++)
@@ -348,6 +350,7 @@ Test(solve, selection_is_the_order_statistic_of_the_sorted_values)
         double got = surety_select_weighted(v, w, c, b);
         cr_assert(got == want, "c=%zu b=%zu unit=%d: %g, by sorting %g", c,
                   b, unit, got, want);
+        cr_assert(v[c] == 12345.5 && w[c] == 7, "c=%zu: written past c", c);
         /* still the same pairs */
         for (size_t t = 0; t < c; t++)
             back[t] = v[t] == -INFINITY ? -1e9 - w[t] : v[t] * 8 + w[t];

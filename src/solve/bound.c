@@ -31,7 +31,9 @@ static double select_plain(double *vals, size_t c, size_t b)
         size_t below = 0, eq = 0;
         for (size_t t = lo; t < hi; t++) {
             below += vals[t] < piv;
-            eq += vals[t] == piv;
+            /* "neither below nor above": equal, and the pivot counts
+             * itself even when it is NaN, so the range always shrinks */
+            eq += !(vals[t] < piv) & !(vals[t] > piv);
         }
         if (below <= b && below + eq > b)
             return piv;
@@ -1172,6 +1174,12 @@ typedef struct lctx {
     const double *row;
 } lctx;
 
+/* Job a before job b when rp_a / w_a > rp_b / w_b, compared as the
+ * products rp_a w_b and rp_b w_a exactly: where the rounded products tie,
+ * their rounding errors (fma gives them exactly) decide, then the index.
+ * Rounded products alone can order three jobs in a circle, and then two
+ * sorting methods may disagree; exact ones make this a total order, so
+ * every sort gives the same one. */
 static int cmp_lagr(const void *a, const void *b, void *ctx)
 {
     const lctx *e = ctx;
@@ -1179,6 +1187,10 @@ static int cmp_lagr(const void *a, const void *b, void *ctx)
     double x = e->rp[ja] * e->row[jb], y = e->rp[jb] * e->row[ja];
     if (x != y)
         return x > y ? -1 : 1;
+    double xe = fma(e->rp[ja], e->row[jb], -x);
+    double ye = fma(e->rp[jb], e->row[ja], -y);
+    if (xe != ye)
+        return xe > ye ? -1 : 1;
     return (ja > jb) - (ja < jb);
 }
 
@@ -1207,8 +1219,8 @@ static void lagr_prepare(surety_solver *s)
         }
         /* a few jobs (a one-resource solve's, mostly): insertion with the
          * comparison inline, which a call per comparison cost more than
-         * the sort's work. cmp_lagr orders any two jobs strictly (ties
-         * by index), so every sort gives the same order. */
+         * the sort's work. cmp_lagr is a total order, so the order is
+         * qsort_r's. */
         for (size_t a = 1; a < c; a++) {
             uint32_t x = e[a];
             size_t u = a;
