@@ -9,6 +9,15 @@
 
 #include "solve/solve.h"
 
+/* The quickselects' pivot: the median of the first, middle and last
+ * values of the range [lo, hi). */
+static double pivot3(const double *vals, size_t lo, size_t hi)
+{
+    double a = vals[lo], m = vals[lo + (hi - lo) / 2], z = vals[hi - 1];
+    return a < m ? (m < z ? m : (a < z ? z : a))
+                 : (a < z ? a : (m < z ? z : m));
+}
+
 /* The (b+1)-th smallest of vals[0..c-1] (b < c), for weights that are
  * all 1 (scenarios without duplicates, the usual case at large N). A
  * quickselect with the same pivot as the weighted one, but without a
@@ -25,9 +34,7 @@ static double select_plain(double *vals, size_t c, size_t b)
     for (;;) {
         if (hi - lo == 1)
             return vals[lo];
-        double a = vals[lo], m = vals[lo + (hi - lo) / 2], z = vals[hi - 1];
-        double piv = a < m ? (m < z ? m : (a < z ? z : a))
-                           : (a < z ? a : (m < z ? z : m));
+        double piv = pivot3(vals, lo, hi);
         size_t below = 0, eq = 0;
         for (size_t t = lo; t < hi; t++) {
             below += vals[t] < piv;
@@ -77,9 +84,7 @@ double surety_select_weighted(double *vals, unsigned *wts, size_t c,
     for (;;) {
         if (hi - lo == 1)
             return vals[lo];
-        double a = vals[lo], m = vals[lo + (hi - lo) / 2], z = vals[hi - 1];
-        double piv = a < m ? (m < z ? m : (a < z ? z : a))
-                           : (a < z ? a : (m < z ? z : m));
+        double piv = pivot3(vals, lo, hi);
         /* three-way partition: [lo, lt) < piv, [lt, gt) == piv, [gt, hi) > */
         size_t lt = lo, t = lo, gt = hi;
         while (t < gt) {
