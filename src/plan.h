@@ -30,10 +30,16 @@ struct surety_plan {
  * job order) <= capacity_i * (1 + SURETY_CAPACITY_SLACK). Written as a
  * product on the left, never as sum <= capacity_i / factor_i, which rounds
  * differently; every counter (plan.c, check.c, the solver's recount, the
- * chart) uses this function. */
+ * chart) uses this function. surety_plan_limit is its right-hand side, for
+ * loops that test many sums against one capacity at once. */
+static inline double surety_plan_limit(double capacity)
+{
+    return capacity * (1 + SURETY_CAPACITY_SLACK);
+}
+
 static inline int surety_plan_holds(double factor, double sum, double capacity)
 {
-    return factor * sum <= capacity * (1 + SURETY_CAPACITY_SLACK);
+    return factor * sum <= surety_plan_limit(capacity);
 }
 
 /* The summed cost[l] of the scenarios of `sc` in which the plan overloads

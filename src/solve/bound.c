@@ -44,23 +44,16 @@ static double select_plain(double *vals, size_t c, size_t b)
         }
         if (below <= b && below + eq > b)
             return piv;
+        int low = below > b; /* the answer is below the pivot */
         size_t n = lo;
-        if (below > b) {
-            for (size_t t = lo; t < hi; t++) {
-                double v = vals[t];
-                vals[t] = vals[n];
-                vals[n] = v;
-                n += v < piv;
-            }
-        } else {
-            for (size_t t = lo; t < hi; t++) {
-                double v = vals[t];
-                vals[t] = vals[n];
-                vals[n] = v;
-                n += v > piv;
-            }
-            b -= below + eq;
+        for (size_t t = lo; t < hi; t++) {
+            double v = vals[t];
+            vals[t] = vals[n];
+            vals[n] = v;
+            n += low ? v < piv : v > piv;
         }
+        if (!low)
+            b -= below + eq;
         hi = n;
     }
 }
@@ -1199,8 +1192,10 @@ static int cmp_lagr(const void *a, const void *b, void *ctx)
     return (ja > jb) - (ja < jb);
 }
 
-/* Reduced profits and the per-scenario orders for the current prices. */
+/* Up to this many jobs lagr_prepare sorts a scenario by insertion. */
 #define LAGR_INSERT_MAX 48
+
+/* Reduced profits and the per-scenario orders for the current prices. */
 static void lagr_prepare(surety_solver *s)
 {
     size_t n = s->n;

@@ -9,6 +9,10 @@
 #include "alloc.h"
 #include "solve/solve.h"
 
+#ifdef SURETY_CHECK_INVARIANTS
+#include <stdio.h>
+#endif
+
 static int over(const surety_solver *s, size_t i, double load)
 {
     const surety_resource *r = &s->model->resources[i];
@@ -58,34 +62,29 @@ static void reset(surety_solver *s, const long *plan)
     }
 }
 
-#ifdef SURETY_CHECK_INVARIANTS
-#include <stdio.h>
-/* Built only for tests/test_invariants.c: fail_after's count made again
- * one scenario at a time, as it was before it ran four at once. */
-static void chk_fail_after(const surety_solver *s, size_t i, size_t add,
-                           size_t rem, size_t got)
+/* fail, changed as fail_after changes it for the scenarios from `from`
+ * on, one scenario at a time: fail_after's last few scenarios, and the
+ * invariant build's recount of all of them. */
+static size_t fail_scalar(const surety_solver *s, size_t i, size_t add,
+                          size_t rem, size_t from, size_t fail)
 {
-    size_t N = s->N, g = group_of(s, i), fail = s->hfail[g];
-    for (size_t l = 0; l < N; l++) {
+    size_t N = s->N, g = group_of(s, i);
+    const unsigned *hv = s->hov + g * N;
+    const unsigned char *ov = s->hover + i * N;
+    for (size_t l = from; l < N; l++) {
         double x = s->hload[i * N + l];
         if (add != SIZE_MAX)
             x += s->wt[add * N + l];
         if (rem != SIZE_MAX)
             x -= s->wt[rem * N + l];
-        int was = s->hov[g * N + l] > 0;
-        int now = s->hov[g * N + l] - s->hover[i * N + l] + over(s, i, x) > 0;
-        if (now && !was)
+        unsigned now = hv[l] - ov[l] + (unsigned)over(s, i, x);
+        if (now > 0 && hv[l] == 0)
             fail += s->cnt[l];
-        else if (was && !now)
+        else if (hv[l] > 0 && now == 0)
             fail -= s->cnt[l];
     }
-    if (fail != got) {
-        fprintf(stderr, "invariant broken: fail_after %zu, recounted %zu\n",
-                got, fail);
-        abort();
-    }
+    return fail;
 }
-#endif
 
 /* Failed weight of resource i's group if job `add` (or none, SIZE_MAX)
  * joined and job `rem` (or none) left resource i: the local search's
@@ -102,7 +101,7 @@ static size_t fail_after(const surety_solver *s, size_t i, size_t add,
     size_t N = s->N, g = group_of(s, i), l = 0;
     const surety_resource *r = &s->model->resources[i];
     double f = r->hours_factor;
-    double cap = r->capacity * (1 + SURETY_CAPACITY_SLACK);
+    double cap = surety_plan_limit(r->capacity);
     const double *ld = s->hload + i * N;
     const unsigned char *ov = s->hover + i * N;
     const unsigned *hv = s->hov + g * N, *cnt = s->cnt;
@@ -130,20 +129,16 @@ static size_t fail_after(const surety_solver *s, size_t i, size_t add,
         acc += ((surety_v4i)(now > zero) & c) - ((surety_v4i)(h > zero) & c);
     }
     size_t fail = s->hfail[g] + (size_t)(acc[0] + acc[1] + acc[2] + acc[3]);
-    for (; l < N; l++) {
-        double x = ld[l];
-        if (wa)
-            x += wa[l];
-        if (wr)
-            x -= wr[l];
-        unsigned now = hv[l] - ov[l] + (unsigned)over(s, i, x);
-        if (now > 0 && hv[l] == 0)
-            fail += cnt[l];
-        else if (hv[l] > 0 && now == 0)
-            fail -= cnt[l];
-    }
+    fail = fail_scalar(s, i, add, rem, l, fail);
 #ifdef SURETY_CHECK_INVARIANTS
-    chk_fail_after(s, i, add, rem, fail);
+    /* built only for tests/test_invariants.c: the four-wide count against
+     * the count one scenario at a time */
+    size_t want = fail_scalar(s, i, add, rem, 0, s->hfail[g]);
+    if (fail != want) {
+        fprintf(stderr, "invariant broken: fail_after %zu, recounted %zu\n",
+                fail, want);
+        abort();
+    }
 #endif
     return fail;
 }
