@@ -1047,8 +1047,8 @@ static void catch_round_plans(void *ctx, surety_log_level level,
     round_plans_log *g = ctx;
     if (sscanf(line,
                "decomposition bound: %*f, %ld price rounds, %*d nodes in "
-               "one-resource solves, %*f s (bundle steps %*f s, %ld plans "
-               "made from the rounds' plans %*f s); %ld better plans",
+               "their one-resource solves, %*f s (bundle steps %*f s, %ld "
+               "plans made from the rounds' plans %*f s); %ld better plans",
                &g->rounds, &g->made, &g->found) == 3)
         g->seen = 1;
 }
@@ -1300,6 +1300,93 @@ Test(solve, decomposition_probes_keep_the_enumerated_optimum)
               restored);
     cr_assert(pruned >= 50, "restored nodes' solves pruned only %g",
               pruned);
+}
+
+/* The decomposition's work as the log lines give it, phase by phase. */
+typedef struct phase_log {
+    long rounds, nodes[3]; /* the rounds, then their nodes by phase */
+    int seen;             /* the rounds' line came */
+} phase_log;
+
+static void catch_phases(void *ctx, surety_log_level level,
+                         const char *line)
+{
+    (void)level;
+    phase_log *g = ctx;
+    if (sscanf(line,
+               "decomposition bound: %*f, %ld price rounds, %ld nodes in "
+               "their one-resource solves",
+               &g->rounds, &g->nodes[0]) == 2)
+        g->seen = 1;
+    sscanf(line,
+           "decomposition probes: %*d one-resource solves with one job "
+           "forced in or kept out, %*d pairs ruled out; %ld nodes",
+           &g->nodes[1]);
+    sscanf(line,
+           "decomposition at restored nodes: %*d one-resource solves, %*d "
+           "nodes pruned; %*d more answered by an identical resource's; "
+           "%ld nodes",
+           &g->nodes[2]);
+}
+
+/* The rounds' line counts the nodes of the rounds' one-resource solves
+ * alone; the probes and the restored nodes have their own. A search that
+ * a node limit stops soon after its rounds (20 nodes) and one allowed
+ * 4000 run the same rounds (the search is the same under node limits),
+ * so their rounds' nodes must agree, while the longer one's probes and
+ * restored nodes may only have solved more. A count that also took in
+ * the probes' and restored nodes' solves, as the rounds' line once did,
+ * differs between the two wherever the longer search solved more. */
+Test(solve, decomposition_work_is_counted_per_phase)
+{
+    int compared = 0, longer = 0;
+    for (uint64_t t = 0; t < 60; t++) {
+        solve_gen_params p;
+        random_params(&p, mix(31000 + t), 1, 1, 1);
+        p.n = 12 + t % 8;
+        p.m = 2 + t % 3;
+        p.N = 200;
+        p.eps = 0.1;
+        p.tightness = 0.4 + 0.05 * (double)(t % 5);
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = 1;
+        o.decomp_after = 1;
+        o.lp_after = -1;
+        o.decomp_rounds = 2;
+        o.log = catch_phases;
+        phase_log g[2];
+        memset(g, 0, sizeof g);
+        for (int r = 0; r < 2; r++) {
+            o.node_limit = r ? 4000 : 20;
+            o.log_ctx = &g[r];
+            surety_result_free(solve_ok(md, sc, &o));
+        }
+        if (g[0].seen && g[1].seen && g[0].rounds == g[1].rounds) {
+            compared++;
+            cr_assert_eq(g[0].nodes[0], g[1].nodes[0],
+                         "model %llu: the rounds' nodes %ld after 20 nodes, "
+                         "%ld after 4000", (unsigned long long)t,
+                         g[0].nodes[0], g[1].nodes[0]);
+            for (int q = 1; q < 3; q++)
+                cr_assert(g[1].nodes[q] >= g[0].nodes[q],
+                          "model %llu, phase %d: %ld nodes after 20 nodes, "
+                          "%ld after 4000", (unsigned long long)t, q,
+                          g[0].nodes[q], g[1].nodes[q]);
+            longer += g[1].nodes[1] + g[1].nodes[2] >
+                      g[0].nodes[1] + g[0].nodes[2];
+        }
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("%d models compared, %d solved more after the rounds",
+                compared, longer);
+    cr_assert(compared >= 10, "only %d models ran the same rounds",
+              compared);
+    cr_assert(longer >= 5, "only %d longer searches solved more after the "
+              "rounds", longer);
 }
 
 /* opt->threads runs the decomposition's one-resource solves side by side

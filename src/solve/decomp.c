@@ -388,7 +388,7 @@ static size_t twin_of(const surety_solver *s, const sub_task *task, size_t q)
  * not start last. A thread that cannot be started leaves its share to
  * the others. */
 static void run_subs(surety_solver *s, sub_task *task, size_t ntask,
-                     double deadline)
+                     double deadline, int phase)
 {
     solve_dec *d = s->dec;
     size_t *ord = d->ord, *twin = d->twin, nrun = 0;
@@ -435,7 +435,7 @@ static void run_subs(surety_solver *s, sub_task *task, size_t ntask,
             s->dec_twins++;
             continue;
         }
-        s->dec_nodes += task[q].nodes;
+        s->dec_nodes[phase] += task[q].nodes;
         s->dec_knaps += task[q].knaps;
         task[q].u->work = task[q].nodes;
     }
@@ -912,7 +912,7 @@ static int price_round(surety_solver *s, double deadline)
                              .out = &u->start};
         u->have_start = 0; /* set again by a plan of this round */
     }
-    run_subs(s, task, m, deadline);
+    run_subs(s, task, m, deadline, SURETY_DEC_ROUNDS);
     for (size_t i = 0; i < m; i++) {
         dec_sub *u = &d->sub[i];
         d->v[i] = task[i].v;
@@ -1177,7 +1177,7 @@ static int probe_next(surety_solver *s, double deadline)
             u->pstart.resource[q] = 0;
         }
     }
-    run_subs(s, d->task, nt, deadline);
+    run_subs(s, d->task, nt, deadline, SURETY_DEC_PROBES);
     int stopped = 0;
     for (size_t r = 0; r < nt; r++) {
         sub_task *k = &d->task[r];
@@ -1297,7 +1297,7 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
             }
         }
     }
-    run_subs(s, d->task, nt, deadline);
+    run_subs(s, d->task, nt, deadline, SURETY_DEC_NODES);
     int stopped = 0;
     for (size_t r = 0; r < nt; r++) {
         size_t i = idx[r];
@@ -1336,19 +1336,23 @@ int surety_decomp_round(surety_solver *s, double deadline)
 {
     if (s->m < 2)
         return 1; /* nothing to split */
+    double t0 = surety_solve_now();
     if (!s->dec && dec_init(s) != 0) {
         surety_decomp_free(s);
         return -1;
     }
     solve_dec *d = s->dec;
+    int r;
     if (d->probing) {
-        int r = probe_next(s, deadline);
-        return r == 0 ? 0 : 1;
+        r = probe_next(s, deadline) == 0 ? 0 : 1;
+        s->dec_secs[SURETY_DEC_PROBES] += surety_solve_now() - t0;
+        return r;
     }
-    int r = price_round(s, deadline);
-    if (r == 0)
-        return 0;
-    if (r == 2 || !(s->dec_root < INFINITY) || s->nb == 0)
-        return 1;
-    return probe_init(s) != 0 ? -1 : 0;
+    r = price_round(s, deadline);
+    if (r == 2 || (r != 0 && (!(s->dec_root < INFINITY) || s->nb == 0)))
+        r = 1;
+    else if (r != 0)
+        r = probe_init(s) != 0 ? -1 : 0;
+    s->dec_secs[SURETY_DEC_ROUNDS] += surety_solve_now() - t0;
+    return r;
 }

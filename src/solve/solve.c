@@ -623,11 +623,12 @@ static surety_code solve_run(const surety_model *model,
     if (s.dec_iters)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition bound: %.6f, %ld price rounds, %ld nodes in "
-              "one-resource solves, %.2f s (bundle steps %.2f s, %ld plans "
-              "made from the rounds' plans %.2f s); %ld better plans made "
-              "from the rounds' plans",
-              s.dec_root, s.dec_iters, s.dec_nodes, s.dec_secs,
-              s.dec_master_secs, s.dec_made, s.dec_heur_secs, s.dec_found);
+              "their one-resource solves, %.2f s (bundle steps %.2f s, %ld "
+              "plans made from the rounds' plans %.2f s); %ld better plans "
+              "made from the rounds' plans",
+              s.dec_root, s.dec_iters, s.dec_nodes[SURETY_DEC_ROUNDS],
+              s.dec_secs[SURETY_DEC_ROUNDS], s.dec_master_secs, s.dec_made,
+              s.dec_heur_secs, s.dec_found);
     if (s.dec_twins)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition: %ld one-resource solves answered by an "
@@ -636,14 +637,16 @@ static surety_code solve_run(const surety_model *model,
     if (s.dec_probes)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition probes: %ld one-resource solves with one job "
-              "forced in or kept out, %ld pairs ruled out",
-              s.dec_probes, s.dec_ruled);
+              "forced in or kept out, %ld pairs ruled out; %ld nodes, %.2f s",
+              s.dec_probes, s.dec_ruled, s.dec_nodes[SURETY_DEC_PROBES],
+              s.dec_secs[SURETY_DEC_PROBES]);
     if (s.dec_nsolves)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition at restored nodes: %ld one-resource solves, "
               "%ld nodes pruned; %ld more answered by an identical "
-              "resource's",
-              s.dec_nsolves, s.dec_npruned, s.dec_ntwins);
+              "resource's; %ld nodes, %.2f s",
+              s.dec_nsolves, s.dec_npruned, s.dec_ntwins,
+              s.dec_nodes[SURETY_DEC_NODES], s.dec_secs[SURETY_DEC_NODES]);
     if (s.lns_parts)
         logf_(&s, SURETY_LOG_INFO,
               "parts of the best plan searched again: %ld parts, %ld nodes, "

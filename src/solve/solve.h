@@ -52,6 +52,8 @@ typedef struct solve_cq {
 } solve_cq;
 typedef struct solve_lp solve_lp; /* lpbound.c */
 typedef struct solve_dec solve_dec; /* decomp.c */
+/* The decomposition's phases, as its counts are kept (dec_nodes) */
+enum { SURETY_DEC_ROUNDS, SURETY_DEC_PROBES, SURETY_DEC_NODES };
 typedef struct solve_lns solve_lns; /* lns.c */
 
 /* A price round of the decomposition (decomp.c) as a watcher sees it,
@@ -271,7 +273,12 @@ struct surety_solver {
     long dec_after;      /* tree nodes before the first round; < 0 never */
     int dec_done;        /* no more rounds or probes */
     double dec_root;     /* the best round's value, or INFINITY */
-    long dec_iters, dec_nodes; /* price rounds, nodes of the sub-solves */
+    long dec_iters;      /* price rounds */
+    /* the one-resource solves' nodes and the time spent, apart for the
+     * rounds, the probes and the restored nodes (SURETY_DEC_*): each has
+     * its own line in the log */
+    long dec_nodes[3];
+    double dec_secs[3];
     long dec_twins;      /* sub-solves answered by an identical one's */
     long dec_found; /* incumbents made from the rounds' plans */
     long dec_made;  /* plans made from them (every round while they pay,
@@ -279,7 +286,6 @@ struct surety_solver {
     unsigned long long dec_knaps; /* knapsacks of the sub-solves */
     unsigned long long dec_knaps0; /* knaps when the first step came */
     int dec_started;     /* the first step has come */
-    double dec_secs;     /* their time */
     double dec_master_secs; /* the bundle's master problems' share */
     double dec_heur_secs;   /* the rounds' plans' share (surety_heur_from) */
     double *dec_lam;     /* n: the prices of the best round (dec_root) */

@@ -346,11 +346,10 @@ static void decomp_round(surety_solver *s)
                (double)(s->knaps - s->dec_knaps0)) {
         return;
     }
-    double now = surety_solve_now(), tl = s->opt->time_limit_s;
+    double tl = s->opt->time_limit_s;
     double before = s->dec_root;
     long found = s->dec_found;
     int r = surety_decomp_round(s, tl > 0 ? s->t0 + tl : INFINITY);
-    s->dec_secs += surety_solve_now() - now;
     if (r != 0) {
         s->dec_done = 1;
         /* kept for the restored nodes' own solves (node_split) */
@@ -497,7 +496,7 @@ static double node_split(surety_solver *s, double b)
         if (surety_decomp_node(s, i, step,
                                tl > 0 ? s->t0 + tl : INFINITY) != 0)
             break;
-    s->dec_secs += surety_solve_now() - now;
+    s->dec_secs[SURETY_DEC_NODES] += surety_solve_now() - now;
 #ifdef SURETY_CHECK_INVARIANTS
     chk_cap(s, dec_cap(s, INFINITY));
 #endif
