@@ -976,10 +976,6 @@ static void catch_three(void *ctx, surety_log_level level, const char *line)
     catch_line(&g->c, level, line);
 }
 
-/* Price rounds from the first node on, with dives of one node (every node
- * goes through the pool, where the rounds run): every answer must be the
- * enumerated one, joint and separate, with required jobs and forbidden
- * pairs (random_params). */
 /* A random model of at least two resources for the decomposition's
  * tests, with its enumerated optimum (*bf; returns whether any plan is
  * feasible) and options that start the split after one node: dives of
@@ -1005,6 +1001,10 @@ static int split_case(uint64_t seed, size_t nmax, size_t Nmax,
     return feas;
 }
 
+/* Price rounds from the first node on, with dives of one node (every node
+ * goes through the pool, where the rounds run): every answer must be the
+ * enumerated one, joint and separate, with required jobs and forbidden
+ * pairs (random_params). */
 Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
 {
     int runs = 0, probed = 0;
