@@ -1349,9 +1349,9 @@ int surety_decomp_round(surety_solver *s, double deadline)
         return r;
     }
     r = price_round(s, deadline);
-    if (r == 2 || (r != 0 && (!(s->dec_root < INFINITY) || s->nb == 0)))
+    if (r == 2 || (r == 1 && (!(s->dec_root < INFINITY) || s->nb == 0)))
         r = 1;
-    else if (r != 0)
+    else if (r == 1) /* the rounds are over: the probes next */
         r = probe_init(s) != 0 ? -1 : 0;
     s->dec_secs[SURETY_DEC_ROUNDS] += surety_solve_now() - t0;
     return r;
