@@ -1033,24 +1033,35 @@ Test(solve, decomposition_bound_keeps_the_enumerated_optimum)
     cr_log_info("rounds in %d solves, probes in %d", runs, probed);
 }
 
-/* The decomposition's end-of-run counts: price rounds, plans made from
- * the rounds' plans, and the better plans among them. */
-typedef struct round_plans_log {
+/* The decomposition's end-of-run counts as its log lines give them: price
+ * rounds, plans made from the rounds' plans and the better plans among
+ * them, and the one-resource solves' nodes of the rounds, the probes and
+ * the restored nodes. */
+typedef struct dec_log {
     long rounds, made, found;
-    int seen;
-} round_plans_log;
+    long nodes[3]; /* SURETY_DEC_ROUNDS, _PROBES, _NODES in solve.h */
+    int seen;      /* the rounds' line came */
+} dec_log;
 
-static void catch_round_plans(void *ctx, surety_log_level level,
-                              const char *line)
+static void catch_dec(void *ctx, surety_log_level level, const char *line)
 {
     (void)level;
-    round_plans_log *g = ctx;
+    dec_log *g = ctx;
     if (sscanf(line,
-               "decomposition bound: %*f, %ld price rounds, %*d nodes in "
+               "decomposition bound: %*f, %ld price rounds, %ld nodes in "
                "their one-resource solves, %*f s (bundle steps %*f s, %ld "
                "plans made from the rounds' plans %*f s); %ld better plans",
-               &g->rounds, &g->made, &g->found) == 3)
+               &g->rounds, &g->nodes[0], &g->made, &g->found) == 4)
         g->seen = 1;
+    sscanf(line,
+           "decomposition probes: %*d one-resource solves with one job "
+           "forced in or kept out, %*d pairs ruled out; %ld nodes",
+           &g->nodes[1]);
+    sscanf(line,
+           "decomposition at restored nodes: %*d one-resource solves, %*d "
+           "nodes pruned; %*d more answered by an identical resource's; "
+           "%ld nodes",
+           &g->nodes[2]);
 }
 
 /* Plans made from the rounds' plans in `rounds` rounds when none is
@@ -1091,8 +1102,9 @@ Test(solve, plans_from_price_rounds_keep_the_enumerated_optimum)
         int feas = split_case(mix(29000 + t), 9, t % 4 == 0 ? 120 : 40, &p,
                               &md, &sc, &bf, &o);
         o.decomp_subgradient = t % 3 == 0;
-        round_plans_log g = {0, 0, 0, 0};
-        o.log = catch_round_plans;
+        dec_log g;
+        memset(&g, 0, sizeof g);
+        o.log = catch_dec;
         o.log_ctx = &g;
         expect_enumerated_light(md, sc, &o, &p, t, feas, bf, "light, ", 1);
         runs += g.seen;
@@ -1302,33 +1314,6 @@ Test(solve, decomposition_probes_keep_the_enumerated_optimum)
               pruned);
 }
 
-/* The decomposition's work as the log lines give it, phase by phase. */
-typedef struct phase_log {
-    long rounds, nodes[3]; /* the rounds, then their nodes by phase */
-    int seen;             /* the rounds' line came */
-} phase_log;
-
-static void catch_phases(void *ctx, surety_log_level level,
-                         const char *line)
-{
-    (void)level;
-    phase_log *g = ctx;
-    if (sscanf(line,
-               "decomposition bound: %*f, %ld price rounds, %ld nodes in "
-               "their one-resource solves",
-               &g->rounds, &g->nodes[0]) == 2)
-        g->seen = 1;
-    sscanf(line,
-           "decomposition probes: %*d one-resource solves with one job "
-           "forced in or kept out, %*d pairs ruled out; %ld nodes",
-           &g->nodes[1]);
-    sscanf(line,
-           "decomposition at restored nodes: %*d one-resource solves, %*d "
-           "nodes pruned; %*d more answered by an identical resource's; "
-           "%ld nodes",
-           &g->nodes[2]);
-}
-
 /* The rounds' line counts the nodes of the rounds' one-resource solves
  * alone; the probes and the restored nodes have their own. A search that
  * a node limit stops soon after its rounds (20 nodes) and one allowed
@@ -1356,8 +1341,8 @@ Test(solve, decomposition_work_is_counted_per_phase)
         o.decomp_after = 1;
         o.lp_after = -1;
         o.decomp_rounds = 2;
-        o.log = catch_phases;
-        phase_log g[2];
+        o.log = catch_dec;
+        dec_log g[2];
         memset(g, 0, sizeof g);
         for (int r = 0; r < 2; r++) {
             o.node_limit = r ? 4000 : 20;
