@@ -1256,6 +1256,7 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
     solve_dec *d = s->dec;
     if (!d || !s->dec_c)
         return 2;
+    double t0 = surety_solve_now();
     const unsigned char *px = s->pxs; /* row 0: the root's */
     if (cnt > m - i0)
         cnt = m - i0;
@@ -1318,6 +1319,7 @@ int surety_decomp_node(surety_solver *s, size_t i0, size_t cnt,
         if (v < s->dec_c[i])
             s->dec_c[i] = v;
     }
+    s->dec_secs[SURETY_DEC_NODES] += surety_solve_now() - t0;
     return stopped ? 2 : 0;
 }
 

@@ -478,8 +478,8 @@ static void chk_cap(const surety_solver *s, double cap)
  * and undo() restores with the node's last decision. Only while the
  * one-resource solves, the rounds' and probes' included, have taken no
  * more scenario knapsacks than the tree since the first round: after the
- * probes, which ran at four times the tree's share, the tree catches up
- * before restored nodes solve their own (one to one counted from the
+ * probes, which ran with most of the work (SURETY_DEC_TREE_SHARE), the
+ * tree catches up before restored nodes solve their own (one to one counted from the
  * probes' end, or a quarter, proved the 0.3-capacity instances slower:
  * bench/README.md, "The decomposition's share raised to four fifths").
  * Restored nodes are those of the best bound, which hold the reported
@@ -489,7 +489,7 @@ static double node_split(surety_solver *s, double b)
 {
     if (!s->dec_done || !s->dec || s->dec_knaps > s->knaps - s->dec_knaps0)
         return b;
-    double now = surety_solve_now(), tl = s->opt->time_limit_s;
+    double tl = s->opt->time_limit_s;
     /* resource by resource (as many at once as there are threads),
      * until the cap prunes the node: the other resources' solves would
      * change nothing */
@@ -499,7 +499,6 @@ static double node_split(surety_solver *s, double b)
         if (surety_decomp_node(s, i, step,
                                tl > 0 ? s->t0 + tl : INFINITY) != 0)
             break;
-    s->dec_secs[SURETY_DEC_NODES] += surety_solve_now() - now;
 #ifdef SURETY_CHECK_INVARIANTS
     chk_cap(s, dec_cap(s, INFINITY));
 #endif
