@@ -2,19 +2,20 @@
 # failset.py - a plan's failed scenarios, and the model restricted to them. SPDX-License-Identifier: MIT
 """Writes the model in which a plan's failed scenarios are known in advance.
 
-Reads a model, its scenarios as `surety sample MODEL -o SAMPLE.csv` writes them, and a plan as
-`surety solve MODEL -o PLAN.json` writes it. It counts the scenarios the plan overloads (a
-resource holds when its load is at most its capacity plus a relative 1e-12, as surety counts;
-the count is compared with `surety check --json` when --surety is given) and prints, per
-resource, how many it overloads and how many of those no other resource overloads.
+Reads a model with the joint constraint, its scenarios as `surety sample MODEL -o SAMPLE.csv`
+writes them, and a feasible plan as `surety solve MODEL -o PLAN.json` writes it. It counts the
+scenarios the plan overloads, as surety counts them (a resource's base hours summed in the
+model's job order, times its hours factor, above its capacity plus a relative 1e-12; with
+--surety the count is also compared with `surety check --json`), and prints, per resource, how
+many it overloads and how many of those no other resource overloads.
 
 With -o OUT.json it also writes OUT.json and OUT.csv: the same jobs and resources on the
 scenarios the plan holds, with an allowance of 0 and each job's profit set to its mean over
-the whole sample in every row, so that the objective is unchanged. Every plan of OUT.json
-fails only the plan's failed scenarios in the full model, hence is feasible there, and the
-plan itself is feasible in OUT.json: the optimum of OUT.json is the best plan with those
-failed scenarios, at least the plan's value. Solving it shows how far the search's bound
-stands above that optimum once the failed scenarios are fixed (bench/README.md,
+the whole sample in every row, so that every plan keeps its objective. A plan of OUT.json
+fails at most the plan's failed scenarios in the full model, at most its allowance, so it is
+feasible there; the plan itself is feasible in OUT.json. So the optimum of OUT.json is the best
+plan that fails no other scenario, at least the plan's value. Solving it shows how far the
+search's bound stands above that optimum once the failed scenarios are fixed (bench/README.md,
 "The bound's gap lies in the choice of failed scenarios").
 """
 import argparse
@@ -36,22 +37,29 @@ def main():
     a = ap.parse_args()
 
     model = json.load(open(a.model))
-    plan = json.load(open(a.plan))["plan"]
+    if model.get("constraint", "joint") != "joint":
+        sys.exit("failset.py: the model's constraint is not joint: with one allowance per "
+                 "resource the failed scenarios of all resources together fix nothing")
+    plan = json.load(open(a.plan)).get("plan") or {}
     rows = list(csv.DictReader(open(a.sample, newline="")))
     res = {r["id"]: r for r in model["resources"]}
     jobs = [j["id"] for j in model["jobs"]]
+    for j, i in plan.items():
+        if j not in jobs or (i is not None and i not in res):
+            sys.exit(f"failset.py: the plan places {j!r} in {i!r}, "
+                     "which the model does not have")
     N = len(rows)
     over = {i: set() for i in res}
     for l, row in enumerate(rows):
-        load = dict.fromkeys(res, 0.0)
-        for j, i in plan.items():
+        base = dict.fromkeys(res, 0.0)  # base hours in the model's job order
+        for j in jobs:
+            i = plan.get(j)
             if i is not None:
-                load[i] += float(row[j + ".hours"]) * res[i].get("hours_factor", 1)
+                base[i] += float(row[j + ".hours"])
         for i, r in res.items():
-            cap = r["capacity"]
-            if load[i] > cap + 1e-12 * abs(cap):
+            if r.get("hours_factor", 1) * base[i] > r["capacity"] * (1 + 1e-12):
                 over[i].add(l)
-    failed = sorted(set().union(*over.values()))
+    failed = set().union(*over.values())
     k = int(model.get("risk", 0.05) * N + 1e-9)
     print(f"{N} scenarios, allowance {k}: the plan fails {len(failed)}")
     for i in res:
@@ -68,9 +76,15 @@ def main():
         print(f"  surety check agrees: {fit} fit")
     if not a.out:
         return
-    keep = [row for l, row in enumerate(rows) if l not in set(failed)]
-    mean = {j: sum(float(row[j + ".profit"]) for row in rows) / N for j in jobs}
+    if len(failed) > k:
+        sys.exit(f"failset.py: the plan fails {len(failed)} scenarios, more than the "
+                 f"allowance {k}: it is not feasible, and neither would the restricted "
+                 "model's plans be")
     table = os.path.splitext(a.out)[0] + ".csv"
+    if os.path.abspath(table) == os.path.abspath(a.sample):
+        sys.exit(f"failset.py: {table} would overwrite the sample; choose another -o")
+    keep = [row for l, row in enumerate(rows) if l not in failed]
+    mean = {j: sum(float(row[j + ".profit"]) for row in rows) / N for j in jobs}
     with open(table, "w", newline="") as f:
         w = csv.writer(f)
         w.writerow([c for j in jobs for c in (j + ".hours", j + ".profit")])
