@@ -1064,6 +1064,53 @@ static void catch_dec(void *ctx, surety_log_level level, const char *line)
            &g->nodes[2]);
 }
 
+/* The scenario prices' share of a node's cap counts the node's dead
+ * scenarios as failed (tree.c, dead_share): a completion that beats the
+ * cutoff fails them, so its failed scenarios sum to at most their prices
+ * plus the k - |dead| largest of the others. Joint models with the
+ * scenario prices, rounds from the first node, dives of one or seven
+ * nodes, high risk so that many scenarios die, and solved light (the
+ * root's greedy without its local search) so that many nodes still beat
+ * the cutoff when the share bites: every answer must be the enumerated
+ * one. A share that drops the dead scenarios' own prices (the k - |dead|
+ * largest alone) fails it. */
+Test(solve, dead_scenarios_share_keeps_the_enumerated_optimum)
+{
+    int runs = 0;
+    for (uint64_t t = 0; t < 160; t++) {
+        /* three resources on nine jobs only: the enumeration's cost */
+        size_t n = 9 + t % 3;
+        solve_gen_params p = {.n = n, .m = n == 9 && t % 2 ? 3 : 2,
+                              .N = 40 + 20 * (t % 4),
+                              .eps = t % 3 ? 0.3 : 0.4,
+                              .tightness = 0.4 + 0.1 * (double)(t % 4),
+                              .dist = (solve_gen_dist)(t % 3),
+                              .p_forbid = t % 4 == 3 ? 0.2 : 0,
+                              .seed = mix(26000 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        double bf = 0;
+        int feas = brute_force(md, sc, &bf);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.dive_nodes = 1 + (long)(t % 2) * 6;
+        o.decomp_after = 1;
+        o.decomp_rounds = 2 + (int)(t % 5) * 7;
+        o.lp_after = -1;
+        dec_log g = {0};
+        o.log = catch_dec;
+        o.log_ctx = &g;
+        expect_enumerated_light(md, sc, &o, &p, t, feas, bf, "dead share, ",
+                                1);
+        runs += g.seen;
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_assert(runs >= 60, "the decomposition ran in only %d solves", runs);
+    cr_log_info("rounds in %d solves", runs);
+}
+
+
 /* Plans made from the rounds' plans in `rounds` rounds when none is
  * better: rounds 1, 3, 7, then every 8th (decomp.c, price_round: the
  * gap doubles after each plan that finds nothing, up to 8 rounds). */

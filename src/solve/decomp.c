@@ -512,10 +512,16 @@ static int dec_init(surety_solver *s)
         d->srt = surety_xmalloc(N0, sizeof *d->srt);
         d->zf = surety_xcalloc(m * N0, 1);
         d->nf = surety_xcalloc(N0, sizeof *d->nf);
-        if (!s->dec_mu)
+        if (!s->dec_mu) {
             s->dec_mu = surety_xcalloc(m * N0, sizeof *s->dec_mu);
+            s->dec_mtot = surety_xcalloc(N0, sizeof *s->dec_mtot);
+            s->dec_msrt = surety_xmalloc(N0, sizeof *s->dec_msrt);
+            s->dec_mrow = surety_xcalloc(s->N ? s->N : 1, sizeof *s->dec_mrow);
+            s->dec_mpre = surety_xcalloc(s->k + 1, sizeof *s->dec_mpre);
+        }
         if (!d->mu || !d->dm || !d->gm || !d->mtot || !d->srt || !d->zf ||
-            !d->nf || !s->dec_mu)
+            !d->nf || !s->dec_mu || !s->dec_mtot || !s->dec_msrt ||
+            !s->dec_mrow || !s->dec_mpre)
             return -1;
     }
     size_t most = 1;
@@ -898,8 +904,9 @@ static int price_round(surety_solver *s, double deadline)
         if (s->state[j] == SURETY_JOB_FREE)
             lsum += lam[j];
     int priced = d->mu != NULL;
+    double T = 0;
     if (priced) {
-        double T = top_k(s, d);
+        T = top_k(s, d);
         lsum += T + 1e-12 * (T + 1); /* summed in another order below */
     }
     L = lsum;
@@ -952,8 +959,19 @@ static int price_round(surety_solver *s, double deadline)
         s->dec_lsum = lsum;
         memcpy(s->dec_lam, lam, n * sizeof *lam);
         memcpy(s->dec_v, d->v, m * sizeof *d->v);
-        if (d->mu)
+        if (d->mu) {
             memcpy(s->dec_mu, d->mu, m * N0 * sizeof *d->mu);
+            /* top_k's order of this round's prices (tree.c, dead_share) */
+            memcpy(s->dec_mtot, d->mtot, N0 * sizeof *d->mtot);
+            memcpy(s->dec_msrt, d->srt, N0 * sizeof *d->srt);
+            memset(s->dec_mrow, 0, s->N * sizeof *s->dec_mrow);
+            for (size_t l = 0; l < N0; l++)
+                if (s->row_of[l] != SIZE_MAX)
+                    s->dec_mrow[s->row_of[l]] += d->mtot[l];
+            for (size_t r = 0; r < s->k && r < N0; r++)
+                s->dec_mpre[r + 1] = s->dec_mpre[r] + d->mtot[d->srt[r]];
+            s->dec_T = T;
+        }
         d->best_priced = priced;
         for (size_t i = 0; i < m; i++) {
             dec_sub *u = &d->sub[i];

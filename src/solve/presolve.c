@@ -100,12 +100,13 @@ static int merge_scenarios(surety_solver *s)
             memcpy(s->w + c * n, sc->hours + l * n, n * sizeof *s->w);
             pos[l] = c++;
         }
-        s->cnt[pos[rep[l]]]++;
+        pos[l] = pos[rep[l]]; /* rep[l] <= l: its row is known */
+        s->cnt[pos[l]]++;
         /* copies fail together: the merged row carries all their costs */
         if (cost)
-            s->mu[pos[rep[l]]] += cost[l];
+            s->mu[pos[l]] += cost[l];
     }
-    surety_xfree(pos);
+    s->row_of = pos;
     surety_xfree(rep);
     return 0;
 }
@@ -421,8 +422,11 @@ static int set_aside_fitted(surety_solver *s)
     }
     size_t c = 0;
     for (size_t l = 0; l < N; l++) {
-        if (aside[l])
+        if (aside[l]) {
+            pw[l] = SIZE_MAX; /* reused: the row's new place */
             continue;
+        }
+        pw[l] = c;
         if (c != l) {
             memmove(s->w + c * n, s->w + l * n, n * sizeof *s->w);
             s->cnt[c] = s->cnt[l];
@@ -433,6 +437,8 @@ static int set_aside_fitted(surety_solver *s)
         }
         c++;
     }
+    for (size_t l = 0; l < s->N0; l++)
+        s->row_of[l] = pw[s->row_of[l]];
     s->N = c;
     s->N_aside = N - c;
     s->W -= wa;
@@ -632,6 +638,7 @@ void surety_presolve_free(surety_solver *s)
     surety_xfree(s->w);
     surety_xfree(s->wt);
     surety_xfree(s->cnt);
+    surety_xfree(s->row_of);
     surety_xfree(s->mu);
     surety_xfree(s->cq);
     surety_xfree(s->cq2);

@@ -221,6 +221,10 @@ static void solver_free(surety_solver *s)
     surety_xfree(s->dec_lam);
     surety_xfree(s->dec_v);
     surety_xfree(s->dec_mu);
+    surety_xfree(s->dec_mtot);
+    surety_xfree(s->dec_msrt);
+    surety_xfree(s->dec_mrow);
+    surety_xfree(s->dec_mpre);
     surety_xfree(s->dec_vin);
     surety_xfree(s->dec_vout);
     surety_xfree(s->dec_c);

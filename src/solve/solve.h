@@ -119,6 +119,8 @@ struct surety_solver {
     double *w;           /* N*n base hours, scenario-major, merged rows */
     double *wt;          /* n*N the same, job-major (load updates) */
     unsigned *cnt;       /* N multiplicities (sum = W <= N0) */
+    size_t *row_of;      /* N0: the searched row of each given scenario,
+                          * SIZE_MAX when it is set aside */
     double *mu;          /* N failure costs (the copies' sum), with
                           * opt->scenario_cost; else NULL */
     solve_cq *cq, *cq2;  /* N each: scratch of the cost bound (bound.c) */
@@ -295,6 +297,15 @@ struct surety_solver {
     double *dec_v;       /* m: the best round's V_i bounds */
     double *dec_mu;      /* m*N0: the best round's scenario prices, or
                           * NULL (joint constraint only) */
+    double *dec_mtot;    /* N0: their sums over the resources */
+    double *dec_mrow;    /* N: dec_mtot summed over each searched row's
+                          * given copies */
+    size_t *dec_msrt;    /* N0: the given scenarios by dec_mtot, largest
+                          * first */
+    double dec_T;        /* the k largest dec_mtot summed: the scenario
+                          * prices' share of dec_lsum (tree.c, dead_share) */
+    double *dec_mpre;    /* k+1: the d largest dec_mtot summed, d = 0..k:
+                          * the most that d dead scenarios take from dec_T */
     double dec_lsum;     /* its sum of prices (dec_root = dec_lsum + the
                           * sum of dec_v) */
     /* after the rounds, probes (decomp.c): n x m bounds on V_i at the best

@@ -435,20 +435,66 @@ static void lns_round(surety_solver *s)
  * only job sets with that one decision, a superset of the node's), or
  * the value of a restored ancestor's own problem (node_split: all of the
  * ancestor's decisions, again a superset), so the sum of prices plus the
- * dec_c caps bounds the node as well.
+ * dec_c caps bounds the node as well. `share` (0 or less) replaces the
+ * scenario prices' share of the sum of prices with the node's own
+ * (dead_share below).
  * Rounds change the prices only at the root, where nothing is rejected,
  * and probing starts only after the last round. */
-static double dec_cap(const surety_solver *s, double b)
+static double dec_cap_of(const surety_solver *s, double b, double share)
 {
-    double c = s->dec_root - s->rej_lam;
+    double c = s->dec_root - s->rej_lam + share;
     if (s->dec_c) {
-        double e = s->dec_lsum - s->rej_lam;
+        double e = s->dec_lsum - s->rej_lam + share;
         for (size_t i = 0; i < s->m; i++)
             e += s->dec_c[i];
         if (e < c)
             c = e;
     }
     return b < c ? b : c;
+}
+
+/* What the node's failed scenarios take from the scenario prices' share
+ * of the cap (0 or less). That share, T = the k largest summed prices
+ * M_l of the best round, bounds sum_l M_l z_l over any k failed
+ * scenarios (decomp.c). A completion that beats the cutoff fails the
+ * node's dead scenarios D (overloaded, or fixed by a bound), so its failed
+ * scenarios sum to at most M(D) plus the k - |D| largest of the others:
+ * the cap may use that sum in place of T. Given scenarios are counted one
+ * by one (copies merged into one row die together: dec_mrow sums their
+ * prices), those set aside count as live. O(N) a call, and the walk down
+ * the largest prices; skipped (0) when it cannot take the cap c to the
+ * cutoff: |D| dead scenarios take at most the |D| largest prices. */
+static double dead_share(const surety_solver *s, double c)
+{
+    if (!s->dec_mu || !(s->dec_root < INFINITY) || s->separate ||
+        s->dead_w[0] == 0 || s->dead_w[0] > s->k)
+        return 0;
+    size_t N0 = s->N0, N = s->N, k = s->k, d = s->dead_w[0];
+    if (c - s->dec_mpre[d] > surety_cutoff(s))
+        return 0;
+    const double *M = s->dec_mtot;
+    const size_t *row = s->row_of, *srt = s->dec_msrt;
+    double t = 0;
+    for (size_t r = 0; r < N; r++)
+        if (s->dead[r] != SURETY_LIVE)
+            t += s->dec_mrow[r];
+    for (size_t r = 0; r < N0 && d < k; r++) {
+        size_t l = srt[r];
+        if (row[l] == SIZE_MAX || s->dead[row[l]] == SURETY_LIVE) {
+            t += M[l];
+            d++;
+        }
+    }
+    /* summed in another order than dec_T: a margin */
+    double v = t - s->dec_T + 1e-12 * (t + s->dec_T + 1);
+    return v < 0 ? v : 0;
+}
+
+/* The cap of the node as it stands, its dead scenarios counted. */
+static double dec_cap(const surety_solver *s, double b)
+{
+    double c = dec_cap_of(s, INFINITY, 0);
+    return dec_cap_of(s, b, dead_share(s, c));
 }
 
 #ifdef SURETY_CHECK_INVARIANTS
@@ -458,15 +504,22 @@ static double dec_cap(const surety_solver *s, double b)
  * against its best completion on the pairs possible at the root
  * (surety_chk_completion). The rounds, the probes and the restored
  * nodes' own solves bound every plan on those pairs, whatever the cutoff,
- * so the cap must not be below it; small models only. Aborts. */
-static void chk_cap(const surety_solver *s, double cap)
+ * so the cap without the dead scenarios' share must not be below it; with
+ * that share (dead_share: scenarios fixed dead by a bound fail only in
+ * the completions that beat the cutoff), not when the completion beats
+ * the cutoff. Small models only. Aborts. */
+static void chk_cap(const surety_solver *s)
 {
+    double cap = dec_cap_of(s, INFINITY, 0);
     if (s->n > 12 || !(cap < INFINITY))
         return;
     double best = surety_chk_completion(s);
-    if (cap < best - 1e-9 * (s->pscale + 1)) {
+    double tol = 1e-9 * (s->pscale + 1);
+    double dead = dec_cap_of(s, INFINITY, dead_share(s, -INFINITY));
+    if (cap < best - tol || (best > surety_cutoff(s) && dead < best - tol)) {
         fprintf(stderr, "invariant: a node's decomposition cap %.12g "
-                "is below its best completion %.12g\n", cap, best);
+                "(%.12g with its dead scenarios) is below its best "
+                "completion %.12g\n", cap, dead, best);
         abort();
     }
 }
@@ -500,7 +553,7 @@ static double node_split(surety_solver *s, double b)
                                tl > 0 ? s->t0 + tl : INFINITY) != 0)
             break;
 #ifdef SURETY_CHECK_INVARIANTS
-    chk_cap(s, dec_cap(s, INFINITY));
+    chk_cap(s);
 #endif
     double c = dec_cap(s, b);
     if (!(c > surety_cutoff(s)))
@@ -609,12 +662,14 @@ static void dive(surety_solver *s, size_t d, double node_bound)
         int ok = apply(s, d, j, ch[t].c);
 #ifdef SURETY_CHECK_INVARIANTS
         if (ok)
-            chk_cap(s, dec_cap(s, INFINITY));
+            chk_cap(s);
 #endif
         if (ok && (cap = dec_cap(s, INFINITY)) > cut) {
             double b = surety_bound_node(s, cut, d + 1);
             if (b > cap)
                 b = cap;
+            if (b > cut) /* the bound may have fixed more scenarios dead */
+                b = dec_cap(s, b);
             if (b > node_bound)
                 b = node_bound; /* the parent's bound covers the child */
             if (b > cut) {
