@@ -980,6 +980,24 @@ static void catch_three(void *ctx, surety_log_level level, const char *line)
  * tests, with its enumerated optimum (*bf; returns whether any plan is
  * feasible) and options that start the split after one node: dives of
  * one node, no LP. */
+/* The model and scenarios of p, their enumerated optimum in *bf (the
+ * return value: whether a plan is feasible), and options with the
+ * decomposition from the first node, dives of one node and no LP. */
+static int split_case_of(const solve_gen_params *p, surety_model **md,
+                         surety_scenarios **sc, double *bf,
+                         surety_solve_options *o)
+{
+    *md = solve_gen_model(p);
+    *sc = solve_gen_scenarios(*md, p);
+    *bf = 0;
+    int feas = brute_force(*md, *sc, bf);
+    surety_solve_options_init(o);
+    o->dive_nodes = 1;
+    o->decomp_after = 1;
+    o->lp_after = -1;
+    return feas;
+}
+
 static int split_case(uint64_t seed, size_t nmax, size_t Nmax,
                       solve_gen_params *p, surety_model **md,
                       surety_scenarios **sc, double *bf,
@@ -990,15 +1008,7 @@ static int split_case(uint64_t seed, size_t nmax, size_t Nmax,
         p->m = 2;
     if (p->n == 8 && p->m == 3 && nmax == 8)
         p->n = 7;
-    *md = solve_gen_model(p);
-    *sc = solve_gen_scenarios(*md, p);
-    *bf = 0;
-    int feas = brute_force(*md, *sc, bf);
-    surety_solve_options_init(o);
-    o->dive_nodes = 1;
-    o->decomp_after = 1;
-    o->lp_after = -1;
-    return feas;
+    return split_case_of(p, md, sc, bf, o);
 }
 
 /* Price rounds from the first node on, with dives of one node (every node
@@ -1087,16 +1097,13 @@ Test(solve, dead_scenarios_share_keeps_the_enumerated_optimum)
                               .dist = (solve_gen_dist)(t % 3),
                               .p_forbid = t % 4 == 3 ? 0.2 : 0,
                               .seed = mix(26000 + t)};
-        surety_model *md = solve_gen_model(&p);
-        surety_scenarios *sc = solve_gen_scenarios(md, &p);
-        double bf = 0;
-        int feas = brute_force(md, sc, &bf);
+        surety_model *md;
+        surety_scenarios *sc;
+        double bf;
         surety_solve_options o;
-        surety_solve_options_init(&o);
+        int feas = split_case_of(&p, &md, &sc, &bf, &o);
         o.dive_nodes = 1 + (long)(t % 2) * 6;
-        o.decomp_after = 1;
         o.decomp_rounds = 2 + (int)(t % 5) * 7;
-        o.lp_after = -1;
         dec_log g = {0};
         o.log = catch_dec;
         o.log_ctx = &g;
@@ -1443,16 +1450,12 @@ Test(solve, threads_take_the_same_path)
                               .p_required = t % 6 == 1 ? 0.15 : 0,
                               .p_forbid = t % 4 == 3 ? 0.2 : 0,
                               .seed = mix(27000 + t)};
-        surety_model *md = solve_gen_model(&p);
-        surety_scenarios *sc = solve_gen_scenarios(md, &p);
-        double bf = 0;
-        int feas = brute_force(md, sc, &bf);
+        surety_model *md;
+        surety_scenarios *sc;
+        double bf;
         surety_solve_options o;
-        surety_solve_options_init(&o);
-        o.dive_nodes = 1;
-        o.decomp_after = 1;
+        int feas = split_case_of(&p, &md, &sc, &bf, &o);
         o.decomp_rounds = 1 + (int)(t % 4 == 3);
-        o.lp_after = -1;
         o.decomp_root_only = 1;
         surety_result *r1 = NULL;
         double probes1 = 0;
