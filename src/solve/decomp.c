@@ -904,9 +904,8 @@ static int price_round(surety_solver *s, double deadline)
         if (s->state[j] == SURETY_JOB_FREE)
             lsum += lam[j];
     int priced = d->mu != NULL;
-    double T = 0;
     if (priced) {
-        T = top_k(s, d);
+        double T = top_k(s, d);
         lsum += T + 1e-12 * (T + 1); /* summed in another order below */
     }
     L = lsum;
@@ -970,7 +969,6 @@ static int price_round(surety_solver *s, double deadline)
                     s->dec_mrow[s->row_of[l]] += d->mtot[l];
             for (size_t r = 0; r < s->k && r < N0; r++)
                 s->dec_mpre[r + 1] = s->dec_mpre[r] + d->mtot[d->srt[r]];
-            s->dec_T = T;
         }
         d->best_priced = priced;
         for (size_t i = 0; i < m; i++) {

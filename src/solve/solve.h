@@ -302,10 +302,11 @@ struct surety_solver {
                           * given copies */
     size_t *dec_msrt;    /* N0: the given scenarios by dec_mtot, largest
                           * first */
-    double dec_T;        /* the k largest dec_mtot summed: the scenario
-                          * prices' share of dec_lsum (tree.c, dead_share) */
-    double *dec_mpre;    /* k+1: the d largest dec_mtot summed, d = 0..k:
-                          * the most that d dead scenarios take from dec_T */
+    double *dec_mpre;    /* k+1: the d largest dec_mtot summed, d = 0..k;
+                          * dec_mpre[k] is the scenario prices' share of
+                          * dec_lsum, summed as top_k sums it, and
+                          * dec_mpre[d] the most that d dead scenarios take
+                          * from it (tree.c, dead_share) */
     double dec_lsum;     /* its sum of prices (dec_root = dec_lsum + the
                           * sum of dec_v) */
     /* after the rounds, probes (decomp.c): n x m bounds on V_i at the best

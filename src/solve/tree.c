@@ -485,16 +485,19 @@ static double dead_share(const surety_solver *s, double c)
             d++;
         }
     }
-    /* summed in another order than dec_T: a margin */
-    double v = t - s->dec_T + 1e-12 * (t + s->dec_T + 1);
+    /* summed in another order than T = dec_mpre[k]: a margin */
+    double T = s->dec_mpre[k];
+    double v = t - T + 1e-12 * (t + T + 1);
     return v < 0 ? v : 0;
 }
 
-/* The cap of the node as it stands, its dead scenarios counted. */
+/* The cap of the node as it stands, its dead scenarios counted (the
+ * share lowers both of dec_cap_of's terms alike). */
 static double dec_cap(const surety_solver *s, double b)
 {
     double c = dec_cap_of(s, INFINITY, 0);
-    return dec_cap_of(s, b, dead_share(s, c));
+    c += dead_share(s, c);
+    return b < c ? b : c;
 }
 
 #ifdef SURETY_CHECK_INVARIANTS
