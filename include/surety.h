@@ -392,7 +392,9 @@ typedef struct surety_solve_options {
     int decomp_subgradient;
     /* non-zero: keep the scenarios that every feasible plan fits (dominated
      * by k+1 others, or fitting every plan) in the search instead of
-     * setting them aside; for comparisons, default 0 */
+     * setting them aside; default 0. The decomposition's one-resource
+     * solves turn it on: they seldom find such a scenario, and the search
+     * for them cost more than it saved */
     int keep_dominated;
     /* optional failure cost of each scenario (sc->N entries, finite and
      * >= 0; joint constraint only): the objective becomes the mean profit

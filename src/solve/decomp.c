@@ -234,6 +234,14 @@ static double sub_solve(const surety_solver *s, dec_sub *d,
      * simplex every round (ident, tightness 0.7, N=1000: 2.77 s a round
      * against 3.65 s with it, the same bounds) */
     o.lp_after = -1;
+    /* scenarios are not set aside (surety_solve_options.keep_dominated):
+     * a one-resource solve seldom finds one that every plan fits or that
+     * k+1 others dominate, yet its search for them (some 128 N signature
+     * tests) took a quarter of a restored node's solve. On n=40, m=4,
+     * N=1000 instances at capacity 0.3 the search is the same, node for
+     * node, and the proofs 1-20% sooner (bench/README.md, "One-resource
+     * solves set no scenario aside") */
+    o.keep_dominated = 1;
     surety_result *r = NULL;
     if (surety_solve_inner(&d->model, sc, &o, start != NULL, &r, NULL) !=
         SURETY_OK)
