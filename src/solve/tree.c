@@ -461,9 +461,10 @@ static double dec_cap_of(const surety_solver *s, double b, double share)
  * scenarios sum to at most M(D) plus the k - |D| largest of the others:
  * the cap may use that sum in place of T. Given scenarios are counted one
  * by one (copies merged into one row die together: dec_mrow sums their
- * prices), those set aside count as live. O(N) a call, and the walk down
- * the largest prices; skipped (0) when it cannot take the cap c to the
- * cutoff: |D| dead scenarios take at most the |D| largest prices. */
+ * prices), those set aside count as live. O(k) a call for the dead rows,
+ * and the walk down the largest prices; skipped (0) when it cannot take
+ * the cap c to the cutoff: |D| dead scenarios take at most the |D|
+ * largest prices. */
 static double dead_share(const surety_solver *s, double c)
 {
     if (!s->dec_mu || !(s->dec_root < INFINITY) || s->separate ||
@@ -474,10 +475,15 @@ static double dead_share(const surety_solver *s, double c)
         return 0;
     const double *M = s->dec_mtot;
     const size_t *row = s->row_of, *srt = s->dec_msrt;
+    /* the dead rows are those the trail took from live: each at most once
+     * on the path, and at most twice k entries in all (a row fixed by a
+     * bound may be overloaded later), where a pass over the rows read N */
     double t = 0;
-    for (size_t r = 0; r < N; r++)
-        if (s->dead[r] != SURETY_LIVE)
-            t += s->dec_mrow[r];
+    for (size_t e = 0; e < s->trail_len; e++) {
+        size_t x = s->trail[e];
+        if ((x & 3) == SURETY_LIVE && (x >> 2) < N)
+            t += s->dec_mrow[x >> 2];
+    }
     for (size_t r = 0; r < N0 && d < k; r++) {
         size_t l = srt[r];
         if (row[l] == SIZE_MAX || s->dead[row[l]] == SURETY_LIVE) {
