@@ -484,7 +484,7 @@ static surety_code solve_run(const surety_model *model,
         memcpy(s.tfix, s.state, s.n * sizeof *s.tfix);
         if (surety_heur_complete(&s, s.tfix, s.tplan, !light))
             surety_solve_offer(&s, s.tplan);
-        if (surety_bound_init(&s) != 0) {
+        if (surety_bound_init(&s, light) != 0) {
             surety_error_set(err, NULL, 0, 0, NULL,
                              "out of memory for the bound (%zu jobs, %zu "
                              "scenarios)", s.n, s.N);

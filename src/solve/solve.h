@@ -360,8 +360,9 @@ void surety_presolve_free(surety_solver *s);
 double surety_bound_node(surety_solver *s, double cutoff, size_t row);
 
 /* bound.c: chooses the Lagrangian prices at the root by subgradient steps
- * (needs the search arrays); 0, or -1 when out of memory. */
-int surety_bound_init(surety_solver *s);
+ * (needs the search arrays), except in a light one-resource joint solve,
+ * where the aggregated bound alone is used; 0, or -1 when out of memory. */
+int surety_bound_init(surety_solver *s, int light);
 void surety_bound_free(surety_solver *s);
 
 /* heur.c: greedy insertion with a violation budget and local search
