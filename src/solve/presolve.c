@@ -129,7 +129,10 @@ typedef struct eff_ctx {
     const double *row;
 } eff_ctx;
 
-/* p/w descending; w = 0 first (infinite efficiency); ties by index. */
+/* p/w descending; w = 0 first (infinite efficiency); ties by index. The
+ * products are compared exactly (their rounding errors by fma break the
+ * ties of the rounded ones), so that this is a total order and every
+ * sort gives the same order. */
 static int cmp_eff(const void *a, const void *b, void *ctx)
 {
     const eff_ctx *e = ctx;
@@ -139,7 +142,33 @@ static int cmp_eff(const void *a, const void *b, void *ctx)
     double x = e->p[ja] * wb, y = e->p[jb] * wa;
     if (x != y)
         return x > y ? -1 : 1;
+    double xe = fma(e->p[ja], wb, -x), ye = fma(e->p[jb], wa, -y);
+    if (xe != ye)
+        return xe > ye ? -1 : 1;
     return (ja > jb) - (ja < jb);
+}
+
+/* Up to this many candidates a scenario's efficiency order is sorted by
+ * insertion, the comparison inline: a call per comparison (qsort_r) cost
+ * more than the sort's work, a tenth of a restored node's one-resource
+ * solve (bench/README.md, "Sorts of a few jobs by insertion"). */
+#define EFF_INSERT_MAX 48
+
+static void sort_eff(uint32_t *e, size_t c, eff_ctx *ctx)
+{
+    if (c > EFF_INSERT_MAX) {
+        qsort_r(e, c, sizeof *e, cmp_eff, ctx);
+        return;
+    }
+    for (size_t a = 1; a < c; a++) {
+        uint32_t x = e[a];
+        size_t u = a;
+        while (u > 0 && cmp_eff(&x, &e[u - 1], ctx) < 0) {
+            e[u] = e[u - 1];
+            u--;
+        }
+        e[u] = x;
+    }
 }
 
 /* lighter hours first, ties by job index */
@@ -576,7 +605,7 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
             if (s->cand[j])
                 e[c++] = (uint32_t)j;
         eff_ctx ctx = {s->p, s->w + l * n};
-        qsort_r(e, c, sizeof *e, cmp_eff, &ctx);
+        sort_eff(e, c, &ctx);
     }
     /* and each candidate's position there, so that a node's knapsack
      * walks only the jobs that still fit, as bits of one word */
