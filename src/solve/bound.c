@@ -1253,17 +1253,19 @@ int surety_bound_init(surety_solver *s, int light)
         surety_xfree(g);
         return -1;
     }
-    /* A one-resource solve inside another (the decomposition's), joint:
-     * the per-resource bound is the aggregated one without its
-     * refinements. In the test suite's 477 such solves it was never below
-     * the aggregated bound by more than rounding (2.4e-9), yet its prices
-     * and per-scenario orders took an eighth of a restored node's solve,
-     * so they are not computed. A user's one-resource model still gets
-     * both bounds reported. */
+    /* A light solve (inside another, from a start plan: the
+     * decomposition's) of one resource, joint: with one resource the rows
+     * "each job once" are the bounds x_j <= 1 that every knapsack keeps,
+     * its single round stays at zero prices, and the per-resource bound
+     * is the aggregated one without the latter's refinements (required
+     * jobs' hours, Martello-Toth's U2). In the test suite's 477 such
+     * solves that chose it, it was below the aggregated bound by rounding
+     * only (at most 2.4e-9), yet its prices and per-scenario orders took
+     * about 8% of a restored node's solve, so they are not computed. A
+     * user's one-resource model still gets both bounds reported. */
     if (light && m == 1 && !s->separate) {
         surety_xfree(best);
         surety_xfree(g);
-        possible_pairs(s, 0);
         s->use_lagr = 0;
         s->root_lagr = INFINITY;
         s->root_agg = surety_bound_node(s, -INFINITY, 0);

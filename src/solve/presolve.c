@@ -149,25 +149,38 @@ static int cmp_eff(const void *a, const void *b, void *ctx)
 }
 
 /* Up to this many candidates a scenario's efficiency order is sorted by
- * insertion, the comparison inline: a call per comparison (qsort_r) cost
- * more than the sort's work, a tenth of a restored node's one-resource
- * solve (bench/README.md, "Sorts of a few jobs by insertion"). */
+ * insertion: a call per comparison (qsort_r) cost more than the sort's
+ * work, an eighth of a restored node's one-resource solve (bench/README.md,
+ * "Sorts of a few jobs by insertion"). The insertion compares the rounded
+ * ratios p/w (key, c entries of scratch), and cmp_eff only where two are
+ * equal: a candidate has p > 0 and w >= 0 (w = 0: +inf, no NaN), and
+ * rounding is monotone, so ratios whose rounded values differ compare
+ * the same way exactly, and the order is cmp_eff's. */
 #define EFF_INSERT_MAX 48
 
-static void sort_eff(uint32_t *e, size_t c, eff_ctx *ctx)
+static void sort_eff(uint32_t *e, size_t c, eff_ctx *ctx, double *key)
 {
     if (c > EFF_INSERT_MAX) {
         qsort_r(e, c, sizeof *e, cmp_eff, ctx);
         return;
     }
+    for (size_t a = 0; a < c; a++) {
+        double w = ctx->row[e[a]];
+        key[a] = w > 0 ? ctx->p[e[a]] / w : INFINITY;
+    }
     for (size_t a = 1; a < c; a++) {
         uint32_t x = e[a];
+        double kx = key[a];
         size_t u = a;
-        while (u > 0 && cmp_eff(&x, &e[u - 1], ctx) < 0) {
+        while (u > 0 && (key[u - 1] < kx ||
+                         (key[u - 1] == kx &&
+                          cmp_eff(&x, &e[u - 1], ctx) < 0))) {
             e[u] = e[u - 1];
+            key[u] = key[u - 1];
             u--;
         }
         e[u] = x;
+        key[u] = kx;
     }
 }
 
@@ -596,8 +609,11 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
     /* per scenario, candidates by efficiency p_j / w_lj, sorted once here
      * so that each node's fractional knapsacks are linear scans */
     s->eff = surety_xmalloc(s->N * (s->ncand ? s->ncand : 1), sizeof *s->eff);
-    if (!s->eff)
+    double *key = surety_xmalloc(s->ncand ? s->ncand : 1, sizeof *key);
+    if (!s->eff || !key) {
+        surety_xfree(key);
         goto oom;
+    }
     for (size_t l = 0; l < s->N; l++) {
         uint32_t *e = s->eff + l * s->ncand;
         size_t c = 0;
@@ -605,8 +621,9 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
             if (s->cand[j])
                 e[c++] = (uint32_t)j;
         eff_ctx ctx = {s->p, s->w + l * n};
-        sort_eff(e, c, &ctx);
+        sort_eff(e, c, &ctx, key);
     }
+    surety_xfree(key);
     /* and each candidate's position there, so that a node's knapsack
      * walks only the jobs that still fit, as bits of one word */
     if (s->ncand <= 64) {
