@@ -957,15 +957,21 @@ static void sort_cq(solve_cq *a, size_t c, solve_cq *tmp)
  * values at most thr are sorted, thr being at least the (b+1)-th smallest
  * by weight (the node's quantile, computed over these values or fewer:
  * fewer can only raise an order statistic); if they do not reach past
- * weight b after all, every live scenario is sorted. */
+ * weight b after all, every live scenario is sorted. Where many values
+ * are at most thr (thr at the cap, which many scenarios reach deep in a
+ * one-resource solve), q, the smallest value whose weight with the ones
+ * below passes b, is selected first, and only the values below q are
+ * sorted, those equal to q following in the order they were gathered:
+ * that is the sorted order's prefix up to past weight b (the sort is
+ * stable), so the walk reads the same values in the same order. */
 static double cost_bound(surety_solver *s, double bound, double cap,
                          double thr)
 {
     size_t N = s->N, c, b = s->k - s->dead_w[0], live;
     double slack = 1e-12 * (s->pscale + 1), dead_mu, best, paid;
-    size_t wsum, t;
+    size_t wsum, t, wc;
 again:
-    c = live = 0;
+    c = live = wc = 0;
     dead_mu = 0;
     for (size_t l = 0; l < N; l++) {
         if (s->dead[l] != SURETY_LIVE) {
@@ -979,9 +985,27 @@ again:
             continue;
         s->cq[c].v = v;
         s->cq[c].mu = s->mu[l];
+        wc += s->cnt[l];
         s->cq[c++].w = s->cnt[l];
     }
-    sort_cq(s->cq, c, s->cq2);
+    if (wc > b && c > 2 * (b + 1) + 16) {
+        for (size_t r = 0; r < c; r++) {
+            s->cqv[r] = s->cq[r].v;
+            s->cqw[r] = (unsigned)s->cq[r].w;
+        }
+        double q = surety_select_weighted(s->cqv, s->cqw, c, b);
+        size_t lt = 0, eq = 0;
+        for (size_t r = 0; r < c; r++)
+            if (s->cq[r].v < q)
+                s->cq[lt++] = s->cq[r];
+            else if (s->cq[r].v == q)
+                s->cq2[eq++] = s->cq[r];
+        memcpy(s->cq + lt, s->cq2, eq * sizeof *s->cq);
+        sort_cq(s->cq, lt, s->cq2);
+        c = lt + eq;
+    } else {
+        sort_cq(s->cq, c, s->cq2);
+    }
     best = -INFINITY;
     paid = 0;
     wsum = 0;

@@ -523,7 +523,9 @@ surety_code surety_presolve_run(surety_solver *s, char *reason,
         !s->cand || !s->order || !s->rclass || merge_scenarios(s) != 0)
         goto oom;
     if (s->mu && (!(s->cq = surety_xmalloc(s->N, sizeof *s->cq)) ||
-                  !(s->cq2 = surety_xmalloc(s->N, sizeof *s->cq2))))
+                  !(s->cq2 = surety_xmalloc(s->N, sizeof *s->cq2)) ||
+                  !(s->cqv = surety_xmalloc(s->N, sizeof *s->cqv)) ||
+                  !(s->cqw = surety_xmalloc(s->N, sizeof *s->cqw))))
         goto oom;
 
     /* the job's value: its mean profit, summed as plan.c does */
@@ -688,6 +690,8 @@ void surety_presolve_free(surety_solver *s)
     surety_xfree(s->mu);
     surety_xfree(s->cq);
     surety_xfree(s->cq2);
+    surety_xfree(s->cqv);
+    surety_xfree(s->cqw);
     surety_xfree(s->cap);
     surety_xfree(s->cap_hi);
     surety_xfree(s->p);

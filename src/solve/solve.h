@@ -124,6 +124,8 @@ struct surety_solver {
     double *mu;          /* N failure costs (the copies' sum), with
                           * opt->scenario_cost; else NULL */
     solve_cq *cq, *cq2;  /* N each: scratch of the cost bound (bound.c) */
+    double *cqv;         /* N: its values, for a selection */
+    unsigned *cqw;       /* N: their weights */
     double *cap;         /* m capacities in base hours, C_i / f_i */
     double *cap_hi;      /* m: above this a load is clearly overloaded */
     double *p;           /* n mean profits (sum over l / N0) */
