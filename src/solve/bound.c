@@ -1265,18 +1265,10 @@ int surety_bound_init(surety_solver *s, int light)
     size_t n = s->n, N = s->N, m = s->m;
     s->lam = surety_xcalloc(n, sizeof *s->lam);
     s->rp = surety_xcalloc(n, sizeof *s->rp);
-    s->leff = surety_xmalloc(N * (s->ncand ? s->ncand : 1), sizeof *s->leff);
-    s->kl = surety_xmalloc(m * N, sizeof *s->kl);
     s->ql = surety_xmalloc(m, sizeof *s->ql);
     s->lx = surety_xmalloc(n, sizeof *s->lx);
-    double *best = surety_xcalloc(n, sizeof *best);
-    double *g = surety_xmalloc(n, sizeof *g);
-    if (!s->lam || !s->rp || !s->leff || !s->kl || !s->ql || !s->lx ||
-        !best || !g) {
-        surety_xfree(best);
-        surety_xfree(g);
+    if (!s->lam || !s->rp || !s->ql || !s->lx)
         return -1;
-    }
     /* A light solve (inside another, from a start plan: the
      * decomposition's) of one resource, joint: with one resource the rows
      * "each job once" are the bounds x_j <= 1 that every knapsack keeps,
@@ -1285,15 +1277,23 @@ int surety_bound_init(surety_solver *s, int light)
      * jobs' hours, Martello-Toth's U2). In the test suite's 477 such
      * solves that chose it, it was below the aggregated bound by rounding
      * only (at most 2.4e-9), yet its prices and per-scenario orders took
-     * about 8% of a restored node's solve, so they are not computed. A
-     * user's one-resource model still gets both bounds reported. */
+     * about 8% of a restored node's solve, so they are not computed (nor
+     * their tables allocated). A user's one-resource model still gets both
+     * bounds reported. */
     if (light && m == 1 && !s->separate) {
-        surety_xfree(best);
-        surety_xfree(g);
         s->use_lagr = 0;
         s->root_lagr = INFINITY;
         s->root_agg = surety_bound_node(s, -INFINITY, 0);
         return 0;
+    }
+    s->leff = surety_xmalloc(N * (s->ncand ? s->ncand : 1), sizeof *s->leff);
+    s->kl = surety_xmalloc(m * N, sizeof *s->kl);
+    double *best = surety_xcalloc(n, sizeof *best);
+    double *g = surety_xmalloc(n, sizeof *g);
+    if (!s->leff || !s->kl || !best || !g) {
+        surety_xfree(best);
+        surety_xfree(g);
+        return -1;
     }
     /* the per-resource values kept down the tree, when their trail takes
      * at most about 256 MB (else each node recomputes them all) */
