@@ -106,10 +106,11 @@ expect 1 "bad --split-rounds" -- "$surety" solve "$tut" --split-rounds 0
 # after the probes, nodes taken up again solve the split with all their
 # placements, unless --split-root-only; the same optimum either way
 d20=$src/instances/bench/diff-n20-m3-N100-e050-t05-s1.json
-expect 0 "split at restored nodes" -- "$surety" solve "$d20" --split-after 1 --split-rounds 2 --json --progress
+expect 0 "split at restored nodes" -- "$surety" solve "$d20" --split-after 1 --split-rounds 5 --json --progress
 has "$tmp/err" "decomposition at restored nodes:" "restored nodes solve the split by default"
+has "$tmp/err" "decomposition parts bounded at the nodes:" "and the nodes bound each resource's part"
 grep '"objective"' "$tmp/out" >"$tmp/obj1"
-expect 0 "split at the root only" -- "$surety" solve "$d20" --split-after 1 --split-rounds 2 --split-root-only --json --progress
+expect 0 "split at the root only" -- "$surety" solve "$d20" --split-after 1 --split-rounds 5 --split-root-only --json --progress
 if grep -qF "decomposition at restored nodes:" "$tmp/err"; then
     failed=$((failed + 1)); echo "FAIL: --split-root-only still split restored nodes"
 else passed=$((passed + 1)); fi

@@ -185,6 +185,33 @@ static void split_options(surety_solve_options *o, uint64_t t, int threads,
     o->log_ctx = ctx;
 }
 
+/* Each resource's part bounded at the node (priced.c) against every job
+ * set of its open jobs (chk_part), at every node that bounds it, from
+ * the first node after the probes: large allowances (eps up to 0.5 on 40
+ * to 100 scenarios: a child's list then holds every scenario) and the
+ * usual ones; joint constraints only (it does not run on separate ones).
+ * The log must show the bound cutting nodes off. */
+Test(invariants, parts_bounded_at_the_node_hold_for_every_job_set)
+{
+    log_sum cut = {"decomposition parts bounded at the nodes: %ld nodes", 0};
+    for (uint64_t t = 0; t < 24; t++) {
+        solve_gen_params p = {.n = 9 + t % 3, .m = 2 + t % 2,
+                              .N = 40 + 30 * (t % 3),
+                              .eps = t % 3 == 0 ? 0.5 : t % 3 == 1 ? 0.3 : 0.1,
+                              .tightness = 0.4 + 0.1 * (double)(t % 4),
+                              .dist = (solve_gen_dist)(t % 3),
+                              .p_forbid = t % 4 == 3 ? 0.2 : 0,
+                              .seed = 0x5eed4000 + t};
+        surety_solve_options o;
+        split_options(&o, t, 1, sum_log, &cut);
+        o.decomp_jobs_only = t % 5 == 4;
+        solve_checked(&p, NULL, &o);
+    }
+    cr_assert(cut.total >= 30, "the bound cut off only %ld nodes",
+              cut.total);
+    cr_log_info("nodes cut off: %ld", cut.total);
+}
+
 /* The same caps on models whose resources are alike (some jobs forbidden
  * in some of them): a round, a probe or a restored node solves each
  * distinct one-resource problem once (decomp.c, twin_of and node_twin),

@@ -218,6 +218,7 @@ static void solver_free(surety_solver *s)
     surety_lpb_free(s);
     surety_decomp_free(s);
     surety_lns_free(s);
+    surety_priced_free(s);
     surety_xfree(s->dec_lam);
     surety_xfree(s->dec_v);
     surety_xfree(s->dec_mu);
@@ -651,6 +652,10 @@ static surety_code solve_run(const surety_model *model,
               "resource's; %ld nodes, %.2f s",
               s.dec_nsolves, s.dec_npruned, s.dec_ntwins,
               s.dec_nodes[SURETY_DEC_NODES], s.dec_secs[SURETY_DEC_NODES]);
+    if (s.pc_state > 0)
+        logf_(&s, SURETY_LOG_INFO,
+              "decomposition parts bounded at the nodes: %ld nodes cut off",
+              s.pc_cuts);
     if (s.lns_parts)
         logf_(&s, SURETY_LOG_INFO,
               "parts of the best plan searched again: %ld parts, %ld nodes, "

@@ -50,6 +50,19 @@ typedef struct solve_cq {
     double v, mu;
     size_t w;
 } solve_cq;
+/* priced.c: a scenario's value in a resource's walk, and a node's record
+ * of a resource's part */
+typedef struct solve_pcq {
+    double v, mu;
+    size_t w;
+    uint32_t l;
+} solve_pcq;
+typedef struct solve_prec {
+    double v;   /* the part's bound */
+    double fc;  /* prices of the scenarios overloaded outside the list */
+    size_t fw;  /* their weight */
+    size_t nl;  /* the list's length */
+} solve_prec;
 typedef struct solve_lp solve_lp; /* lpbound.c */
 typedef struct solve_dec solve_dec; /* decomp.c */
 /* The decomposition's phases, as its counts are kept (dec_nodes) */
@@ -322,6 +335,31 @@ struct surety_solver {
     long dec_ntwins;     /* besides those, values copied from an identical
                           * resource solved at the same node */
     int dec_nodes_on;    /* restored nodes solve their own V_i (tree.c) */
+    /* each resource's part of a node's cap bounded at the node (priced.c),
+     * from the best round's prices once the probes start */
+    int pc_state;        /* 0 not built yet, 1 on, -1 off */
+    size_t pc_nq;        /* open jobs of positive reduced profit at the root */
+    uint32_t *pc_job;    /* pc_nq: those jobs */
+    double *pc_q;        /* pc_nq: their reduced profits p_j - lam_j */
+    uint32_t *pc_ord;    /* N*pc_nq: per searched row, positions in pc_job
+                          * by reduced profit per hour, largest first */
+    unsigned char *pc_rank; /* N*pc_nq: each one's place in its row's
+                             * order, or NULL (more than 64 jobs) */
+    double *pc_mu;       /* m*N: each resource's prices per searched row */
+    uint32_t *pc_ok;     /* pc_nq: scratch, the open ones of a resource */
+    solve_pcq *pc_cq;    /* N: scratch of the walk */
+    double *pc_v;        /* N: its values, for a selection */
+    unsigned *pc_w;      /* N: their weights */
+    size_t pc_L;         /* scenarios a child recomputes (its parent's
+                          * list): k+17, at most N */
+    solve_prec *pc_rec;  /* (nb+2)*m: per depth and resource, its value */
+    uint32_t *pc_rows;   /* (nb+2)*m*pc_L: and its list, by value */
+    size_t *pc_src;      /* (nb+2)*m: where the node's record is (a
+                          * child keeps its parent's for the resources
+                          * it places no job in) */
+    unsigned char *pc_have; /* nb+2: the records of that depth are the
+                             * current path's node's */
+    long pc_cuts;        /* nodes whose bound it took to the cutoff */
     double dec_rule_inc; /* the incumbent when pairs were last ruled out */
     surety_dec_watch dec_watch; /* called after each price round, or NULL */
     void *dec_watch_ctx;
@@ -394,6 +432,20 @@ void surety_heur_free(surety_solver *s);
 int surety_solve_offer(surety_solver *s, const long *plan);
 double surety_solve_now(void);
 void surety_solve_log_progress(surety_solver *s, int force, char mark);
+
+/* priced.c: sum over the resources of the smaller of dec_c[i] and
+ * resource i's part of the current node's completions that beat the
+ * cutoff, bounded at the node at the best round's prices; NAN where it
+ * does not apply (yet). */
+#define SURETY_PC_ALL (-3L) /* surety_priced_parts: every resource anew */
+double surety_priced_parts(surety_solver *s, size_t depth, long last);
+/* the node at depth `depth` was bounded without it */
+static inline void surety_priced_forget(surety_solver *s, size_t depth)
+{
+    if (s->pc_have)
+        s->pc_have[depth] = 0;
+}
+void surety_priced_free(surety_solver *s);
 
 /* solve.c: surety_solve, with `light` non-zero for a solve inside
  * another (decomp.c), whose caller passes a good start: the root's

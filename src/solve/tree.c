@@ -534,6 +534,38 @@ static void chk_cap(const surety_solver *s)
 }
 #endif
 
+/* b capped by the node's cap with each resource's part also bounded at
+ * the node itself (priced.c; the node at `depth`, its last decision
+ * `last` as surety_priced_parts takes it), the dead scenarios' share
+ * counted as dec_cap counts it. Valid for the completions that beat the
+ * cutoff, which is all a node's bound is for; not kept in dec_c. */
+static double priced_cap(surety_solver *s, double b, size_t depth,
+                         long last)
+{
+    double parts = surety_priced_parts(s, depth, last);
+    if (isnan(parts))
+        return b;
+    double c = s->dec_lsum - s->rej_lam + parts;
+    c += dead_share(s, c);
+#ifdef SURETY_CHECK_INVARIANTS
+    if (s->n <= 12) {
+        double best = surety_chk_completion(s);
+        double tol = 1e-9 * (s->pscale + 1);
+        if (best > surety_cutoff(s) && c < best - tol) {
+            fprintf(stderr, "invariant: a node's priced cap %.12g is below "
+                    "its best completion %.12g, which beats the cutoff\n",
+                    c, best);
+            abort();
+        }
+    }
+#endif
+    if (!(c < b))
+        return b;
+    if (b > surety_cutoff(s) && !(c > surety_cutoff(s)))
+        s->pc_cuts++;
+    return c;
+}
+
 /* The bound b of a node restored from the pool, capped by its own
  * one-resource problems once the probes are done (decomp.c,
  * surety_decomp_node): they lower dec_c, which the node's dive inherits
@@ -679,6 +711,10 @@ static void dive(surety_solver *s, size_t d, double node_bound)
                 b = cap;
             if (b > cut) /* the bound may have fixed more scenarios dead */
                 b = dec_cap(s, b);
+            if (b > cut && s->dec_c)
+                b = priced_cap(s, b, d + 1, ch[t].c);
+            else
+                surety_priced_forget(s, d + 1);
             if (b > node_bound)
                 b = node_bound; /* the parent's bound covers the child */
             if (b > cut) {
@@ -754,6 +790,10 @@ double surety_tree_search(surety_solver *s)
                 nb = e.bound;
             if (nb > cut && s->lp_on)
                 nb = lp_bound(s, d, cut, nb);
+            if (nb > cut && s->dec_c)
+                nb = priced_cap(s, nb, d, SURETY_PC_ALL);
+            else
+                surety_priced_forget(s, d);
             if (nb > cut && d > 0)
                 nb = node_split(s, nb);
             s->restart_row = 0;
