@@ -187,10 +187,11 @@ static void split_options(surety_solve_options *o, uint64_t t, int threads,
 
 /* Each resource's part bounded at the node (priced.c) against every job
  * set of its open jobs (chk_part), at every node that bounds it, from
- * the first node after the probes: large allowances (eps up to 0.5 on 40
- * to 100 scenarios: a child's list then holds every scenario) and the
- * usual ones; joint constraints only (it does not run on separate ones).
- * The log must show the bound cutting nodes off. */
+ * the first node after the probes, and the cap against the node's best
+ * completion on its own pairs (tree.c, priced_cap): large allowances (eps
+ * up to 0.5 on 40 to 100 scenarios) and the usual ones; joint constraints
+ * only (it does not run on separate ones). The log must show the bound
+ * cutting nodes off. */
 Test(invariants, parts_bounded_at_the_node_hold_for_every_job_set)
 {
     log_sum cut = {"decomposition parts bounded at the nodes: %ld nodes", 0};

@@ -297,12 +297,19 @@ static double part_full(surety_solver *s, size_t i, solve_prec *rec,
 }
 
 /* Resource i's part at a child from its parent's list (prec, prows):
- * those scenarios' values are recomputed; every other one's is at most
- * its value where the list was made, which is at least all of the list's
- * there, so the walk reads the list first, and a walk that ends within
- * it needs nothing else. The others overloaded since are left among the
- * valued ones (a relaxation). Returns NAN when the walk would go past
- * the list (the caller then computes the part from every scenario). */
+ * only those scenarios' values are recomputed, and the walk goes up
+ * them alone. Why that is enough: take any F that holds the overloaded
+ * rows and weighs at most k, and t* the first list row in the walk's
+ * order that F leaves out. The walk reaches t*, since F holds the list
+ * rows before it and their weight fits; the plan's value is at most
+ * u(t*), and F's prices at least what the walk has paid by then (they
+ * are at least 0). So the walk's best is at least the plan's, whatever
+ * the rows off the list are worth. Rows overloaded since, off the list,
+ * are simply not counted as failed (a relaxation). Returns NAN when the
+ * walk would pass the list's end (then every list row fits in F; the
+ * caller takes the part from every scenario); the list's weight with
+ * the overloaded rows' is the same all down the path, more than k when
+ * the list was made, so that does not happen as the lists are sized. */
 static double part_list(surety_solver *s, size_t i, const solve_prec *prec,
                         const uint32_t *prows, solve_prec *rec,
                         uint32_t *rows, const uint32_t *ok, size_t no,
@@ -331,16 +338,22 @@ static double part_list(surety_solver *s, size_t i, const solve_prec *prec,
         rec->fc = fc;
         return -INFINITY;
     }
-    /* the list comes in the order of its values where it was made, which
-     * a decision moves little: insertion */
-    for (size_t t = 1; t < c; t++) {
-        solve_pcq x = a[t];
-        size_t u = t;
-        while (u > 0 && a[u - 1].v > x.v) {
-            a[u] = a[u - 1];
-            u--;
+    /* the list comes in the order of its values where it was made: on a
+     * short list, insertion (quicker there than qsort on the 40-job
+     * instances); a long one, whose order a placed job may change much,
+     * is sorted */
+    if (c > 128) {
+        qsort(a, c, sizeof *a, cmp_cq);
+    } else {
+        for (size_t t = 1; t < c; t++) {
+            solve_pcq x = a[t];
+            size_t u = t;
+            while (u > 0 && a[u - 1].v > x.v) {
+                a[u] = a[u - 1];
+                u--;
+            }
+            a[u] = x;
         }
-        a[u] = x;
     }
     double paid = fc;
     int done;
@@ -357,13 +370,14 @@ static double part_list(surety_solver *s, size_t i, const solve_prec *prec,
 
 #ifdef SURETY_CHECK_INVARIANTS
 #include <stdio.h>
+#include <stdlib.h>
 /* Built only for tests/test_invariants.c: resource i's bound v against
  * every job set S of its open jobs (those the node's row allows it) with
  * the jobs placed in it, scenario by scenario: S fails the rows its load
  * takes above cap_hi, which must weigh at most k, and is worth its
  * reduced profit less their prices; v may be no lower (the head of this
- * file: a plan fails at least those rows). Whatever the cutoff; up to 10
- * open jobs. Aborts. */
+ * file: a plan fails at least those rows), its prices summed anew from
+ * the best round's. Whatever the cutoff; up to 10 open jobs. Aborts. */
 static void chk_part(const surety_solver *s, size_t i, double v)
 {
     size_t n = s->n, m = s->m, N = s->N, no = 0, job[10];
@@ -377,7 +391,14 @@ static void chk_part(const surety_solver *s, size_t i, double v)
             job[no++] = j;
         }
     }
-    const double *ld = s->load + i * N, *mu = s->pc_mu + i * N;
+    /* the prices again from the best round's, not from pc_mu */
+    double *mu = calloc(N ? N : 1, sizeof *mu);
+    if (!mu)
+        return;
+    for (size_t l0 = 0; s->dec_mu && l0 < s->N0; l0++)
+        if (s->row_of[l0] != SIZE_MAX)
+            mu[s->row_of[l0]] += s->dec_mu[i * s->N0 + l0];
+    const double *ld = s->load + i * N;
     for (unsigned set = 0; set < 1u << no; set++) {
         double q = fixed, paid = 0;
         size_t fw = 0;
@@ -402,6 +423,7 @@ static void chk_part(const surety_solver *s, size_t i, double v)
             abort();
         }
     }
+    free(mu);
 }
 #endif
 
@@ -432,8 +454,9 @@ static double part_of(surety_solver *s, size_t i, const solve_prec *prec,
     if (isnan(best))
         best = part_full(s, i, rec, rows, s->pc_ok, no, qall);
     /* sums in another order than the plans' own: a margin */
-    double v = fixed + best;
-    v += 1e-9 * (fabs(fixed) + qall + fabs(best) + s->pscale + 1);
+    double v = best == -INFINITY ? -INFINITY : fixed + best;
+    if (v > -INFINITY)
+        v += 1e-9 * (fabs(fixed) + qall + fabs(best) + s->pscale + 1);
     rec->v = v;
 #ifdef SURETY_CHECK_INVARIANTS
     chk_part(s, i, v);

@@ -691,6 +691,12 @@ surety_code surety_solve_inner(const surety_model *model,
 #ifdef SURETY_CHECK_INVARIANTS
 double surety_chk_completion(const surety_solver *s)
 {
+    return surety_chk_completion_on(s, s->pxs);
+}
+
+double surety_chk_completion_on(const surety_solver *s,
+                                const unsigned char *px)
+{
     size_t n = s->n, m = s->m;
     const surety_model *full = s->model;
     surety_job *jobs = surety_xcalloc(n, sizeof *jobs);
@@ -704,7 +710,7 @@ double surety_chk_completion(const surety_solver *s)
         jobs[j].allowed = al + j * m;
         for (size_t i = 0; i < m; i++)
             al[j * m + i] = st == SURETY_JOB_FREE
-                                ? full->jobs[j].allowed[i] && s->pxs[j * m + i]
+                                ? full->jobs[j].allowed[i] && px[j * m + i]
                                 : st == (long)i;
         if (st >= 0)
             jobs[j].required = 1;

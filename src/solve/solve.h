@@ -471,6 +471,9 @@ surety_code surety_solve_watched(const surety_model *model,
  * path tested against enumeration and CBC on its own); NAN when that
  * solve does not prove an optimum. */
 double surety_chk_completion(const surety_solver *s);
+/* the same on the pairs px allows (a node's row of pxs) */
+double surety_chk_completion_on(const surety_solver *s,
+                                const unsigned char *px);
 #endif
 
 /* solve.c: the scenario knapsacks a solve's node bounds evaluated (the

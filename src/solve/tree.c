@@ -546,15 +546,23 @@ static double priced_cap(surety_solver *s, double b, size_t depth,
     if (isnan(parts))
         return b;
     double c = s->dec_lsum - s->rej_lam + parts;
+#ifdef SURETY_CHECK_INVARIANTS
+    double c0 = c;
+#endif
     c += dead_share(s, c);
 #ifdef SURETY_CHECK_INVARIANTS
     if (s->n <= 12) {
+        /* without the share, against every completion on the pairs the
+         * node allows (each part bounds every job set on them, whatever
+         * the cutoff); with it, against those that beat the cutoff */
+        double near = surety_chk_completion_on(s, s->pxcur);
         double best = surety_chk_completion(s);
         double tol = 1e-9 * (s->pscale + 1);
-        if (best > surety_cutoff(s) && c < best - tol) {
-            fprintf(stderr, "invariant: a node's priced cap %.12g is below "
-                    "its best completion %.12g, which beats the cutoff\n",
-                    c, best);
+        if (c0 < near - tol || (best > surety_cutoff(s) && c < best - tol)) {
+            fprintf(stderr, "invariant: a node's priced cap %.12g (%.12g "
+                    "with its dead scenarios) is below its best completion "
+                    "%.12g on its own pairs, or %.12g, which beats the "
+                    "cutoff\n", c0, c, near, best);
             abort();
         }
     }
