@@ -151,6 +151,22 @@ static int cmp_cq(const void *a, const void *b)
     return x < y ? -1 : x > y;
 }
 
+/* Job t (a position in pc_job) into the residual *r of a row: whole when
+ * it fits (1), else the fraction that fills *r, which ends the knapsack
+ * (0). */
+static inline int take(const surety_solver *s, const double *row,
+                       uint32_t t, double *r, double *v)
+{
+    double w = row[s->pc_job[t]];
+    if (w <= *r) {
+        *v += s->pc_q[t];
+        *r -= w;
+        return 1;
+    }
+    *v += s->pc_q[t] * (*r / w);
+    return 0;
+}
+
 /* The fractional knapsack of resource i's open jobs ok[0..no)
  * (positions in pc_job, reduced profits summed in qall) into residual r
  * in row l. */
@@ -170,16 +186,9 @@ static double row_value(const surety_solver *s, size_t i, size_t l,
         }
         if (hsum <= r)
             return qall;
-        for (; bits; bits &= bits - 1) {
-            uint32_t t = ord[__builtin_ctzll(bits)];
-            double w = row[s->pc_job[t]];
-            if (w <= r) {
-                v += s->pc_q[t];
-                r -= w;
-            } else {
-                return v + s->pc_q[t] * (r / w);
-            }
-        }
+        for (; bits; bits &= bits - 1)
+            if (!take(s, row, ord[__builtin_ctzll(bits)], &r, &v))
+                break;
         return v;
     }
     for (size_t t = 0; t < no; t++)
@@ -187,19 +196,38 @@ static double row_value(const surety_solver *s, size_t i, size_t l,
     if (hsum <= r)
         return qall;
     for (size_t u = 0; u < nq; u++) {
-        uint32_t t = ord[u];
-        size_t j = s->pc_job[t];
-        if (s->state[j] != SURETY_JOB_FREE || !s->pxcur[j * s->m + i])
-            continue;
-        double w = row[j];
-        if (w <= r) {
-            v += s->pc_q[t];
-            r -= w;
-        } else {
-            return v + s->pc_q[t] * (r / w);
-        }
+        size_t j = s->pc_job[ord[u]];
+        if (s->state[j] == SURETY_JOB_FREE && s->pxcur[j * s->m + i] &&
+            !take(s, row, ord[u], &r, &v))
+            break;
     }
     return v;
+}
+
+/* Resource i's rows rows[0..nr) (every row, 0..nr-1, when rows is NULL)
+ * into pc_cq with their values; those its committed load overloads
+ * already (in every F) go into *fw and *fc instead. Returns how many went
+ * into pc_cq. */
+static size_t gather(surety_solver *s, size_t i, const uint32_t *rows,
+                     size_t nr, const uint32_t *ok, size_t no, double qall,
+                     size_t *fw, double *fc)
+{
+    size_t N = s->N, c = 0;
+    const double *ld = s->load + i * N, *mu = s->pc_mu + i * N;
+    double hi = s->cap_hi[i];
+    for (size_t t = 0; t < nr; t++) {
+        size_t l = rows ? rows[t] : t;
+        double r = hi - ld[l];
+        if (r < 0) {
+            *fc += mu[l];
+            *fw += s->cnt[l];
+            continue;
+        }
+        double v = no ? row_value(s, i, l, ok, no, qall, r) : 0;
+        s->pc_cq[c++] = (solve_pcq){.v = v, .mu = mu[l], .w = s->cnt[l],
+                                    .l = (uint32_t)l};
+    }
+    return c;
 }
 
 /* The walk over items a[0..c) sorted by value (the scenarios of smallest
@@ -233,22 +261,10 @@ static double part_full(surety_solver *s, size_t i, solve_prec *rec,
                         uint32_t *rows, const uint32_t *ok, size_t no,
                         double qall)
 {
-    size_t N = s->N, k = s->k, L = s->pc_L;
-    const double *ld = s->load + i * N, *mu = s->pc_mu + i * N;
-    double hi = s->cap_hi[i], fc = 0;
-    size_t fw = 0, c = 0;
+    size_t N = s->N, k = s->k, L = s->pc_L, fw = 0;
+    double fc = 0;
     solve_pcq *a = s->pc_cq;
-    for (size_t l = 0; l < N; l++) {
-        double r = hi - ld[l];
-        if (r < 0) { /* overloaded already: in every F */
-            fc += mu[l];
-            fw += s->cnt[l];
-            continue;
-        }
-        double v = no ? row_value(s, i, l, ok, no, qall, r) : 0;
-        a[c++] = (solve_pcq){.v = v, .mu = mu[l], .w = s->cnt[l],
-                             .l = (uint32_t)l};
-    }
+    size_t c = gather(s, i, NULL, N, ok, no, qall, &fw, &fc);
     rec->fw = fw;
     rec->fc = fc;
     rec->nl = 0;
@@ -315,23 +331,10 @@ static double part_list(surety_solver *s, size_t i, const solve_prec *prec,
                         uint32_t *rows, const uint32_t *ok, size_t no,
                         double qall)
 {
-    size_t N = s->N, k = s->k;
-    const double *ld = s->load + i * N, *mu = s->pc_mu + i * N;
-    double hi = s->cap_hi[i], fc = prec->fc;
-    size_t fw = prec->fw, c = 0;
+    size_t k = s->k, fw = prec->fw;
+    double fc = prec->fc;
     solve_pcq *a = s->pc_cq;
-    for (size_t t = 0; t < prec->nl; t++) {
-        size_t l = prows[t];
-        double r = hi - ld[l];
-        if (r < 0) {
-            fc += mu[l];
-            fw += s->cnt[l];
-            continue;
-        }
-        double v = no ? row_value(s, i, l, ok, no, qall, r) : 0;
-        a[c++] = (solve_pcq){.v = v, .mu = mu[l], .w = s->cnt[l],
-                             .l = (uint32_t)l};
-    }
+    size_t c = gather(s, i, prows, prec->nl, ok, no, qall, &fw, &fc);
     if (fw > k) {
         rec->nl = 0;
         rec->fw = fw;
