@@ -302,18 +302,14 @@ static double part_full(surety_solver *s, size_t i, solve_prec *rec,
     for (size_t t = 0; t < nl; t++)
         rows[t] = a[t].l;
     rec->nl = nl;
+    /* a list cut short holds L = k+17 rows, which weigh more than k: the
+     * walk ends within it. Only a list of every valued row can be walked
+     * to its end, and then every scenario may fail */
     double paid = fc;
     int done;
     double best = walk(s, a, nl, fw, &paid, &done);
-    if (!done && nl < c) {
-        /* the list's weight is within the allowance: on through the rest,
-         * which are all above it */
-        qsort(a + nl, c - nl, sizeof *a, cmp_cq);
-        paid = fc;
-        best = walk(s, a, c, fw, &paid, &done);
-    }
     if (!done && qall - paid > best)
-        best = qall - paid; /* every scenario may fail */
+        best = qall - paid;
     return best;
 }
 
