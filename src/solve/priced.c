@@ -89,6 +89,18 @@ static void order_row(surety_solver *s, size_t l, double *e)
             s->pc_rank[l * nq + ord[u]] = (unsigned char)u;
 }
 
+/* A row keeps each job's rank in its order when at most 64 jobs are
+ * priced, so that a knapsack reads its open jobs as the bits of one word
+ * (row_value); with more it walks the whole order. The invariant build
+ * walks the whole order on models of an even number of jobs too, so that
+ * the tests, whose models are small, check both (tests/test_invariants.c,
+ * parts_bounded_at_the_node_hold_for_every_job_set). */
+#ifdef SURETY_CHECK_INVARIANTS
+#define RANKED(s, nq) ((nq) <= 64 && (s)->n % 2 == 1)
+#else
+#define RANKED(s, nq) ((nq) <= 64)
+#endif
+
 /* Built once the prices are final (the probes start after the last
  * round, with dec_c). Returns 0, or -1 out of memory. */
 static int priced_init(surety_solver *s)
@@ -113,7 +125,7 @@ static int priced_init(surety_solver *s)
     s->pc_nq = nq;
     size_t cells = N * (nq ? nq : 1);
     s->pc_ord = surety_xmalloc(cells, sizeof *s->pc_ord);
-    s->pc_rank = nq <= 64 ? surety_xmalloc(cells, 1) : NULL;
+    s->pc_rank = RANKED(s, nq) ? surety_xmalloc(cells, 1) : NULL;
     s->pc_mu = surety_xcalloc(m * N, sizeof *s->pc_mu);
     s->pc_cq = surety_xmalloc(N, sizeof *s->pc_cq);
     s->pc_v = surety_xmalloc(N, sizeof *s->pc_v);
@@ -126,9 +138,9 @@ static int priced_init(surety_solver *s)
     s->pc_src = surety_xmalloc(D, sizeof *s->pc_src);
     s->pc_have = surety_xcalloc(s->nb + 2, 1);
     double *e = surety_xmalloc(nq ? nq : 1, sizeof *e);
-    if (!s->pc_ord || (nq <= 64 && !s->pc_rank) || !s->pc_mu || !s->pc_cq ||
-        !s->pc_v || !s->pc_w || !s->pc_rec || !s->pc_rows || !s->pc_src ||
-        !s->pc_have || !e) {
+    if (!s->pc_ord || (RANKED(s, nq) && !s->pc_rank) || !s->pc_mu ||
+        !s->pc_cq || !s->pc_v || !s->pc_w || !s->pc_rec || !s->pc_rows ||
+        !s->pc_src || !s->pc_have || !e) {
         surety_xfree(e);
         return -1;
     }
