@@ -2249,6 +2249,65 @@ Test(solve, separate_searches_reach_the_split_by_its_work)
     cr_log_info("%ld of 6 closed within 200 nodes", closed);
 }
 
+/* A joint search's nodes evaluate more than the window of knapsacks on
+ * average (every 32nd and each restored node recompute every scenario),
+ * yet the decomposition's first step comes only after decomp_after nodes
+ * (tree.c, work_reached): counted in knapsacks it came after a third of
+ * them at 10 000 scenarios and slowed trees that close soon after
+ * (bench/README.md, "The decomposition's start counted in nodes for
+ * joint searches"). Here many restored nodes (dives of 8) and few
+ * scenarios in the window (k = 20 of 400) put the knapsacks of
+ * decomp_after joint nodes well before decomp_after nodes: a search
+ * stopped one node short of it must have run no price round, and one
+ * given the whole allowance must run them. */
+Test(solve, joint_searches_reach_the_split_by_their_nodes)
+{
+    long before = 0, after = 0, open = 0;
+    for (uint64_t t = 0; t < 6; t++) {
+        solve_gen_params p = {.n = 20 + t % 2, .m = 4, .N = 400, .eps = 0.05,
+                              .tightness = 0.5,
+                              .dist = SOLVE_GEN_LOGNORMAL,
+                              .seed = mix(33500 + t)};
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        for (int whole = 0; whole < 2; whole++) {
+            surety_solve_options o;
+            surety_solve_options_init(&o);
+            o.decomp_after = 300;
+            o.dive_nodes = 8;
+            o.node_limit = whole ? 600 : 299;
+            long rounds = 0;
+            surety_result *res = NULL;
+            surety_error err;
+            surety_error_clear(&err);
+            cr_assert_eq(surety_solve_watched(md, sc, &o, count_round,
+                                              &rounds, &res, &err),
+                         SURETY_OK, "%s", err.message);
+            check_result(md, sc, res);
+            if (!whole) {
+                cr_assert(rounds == 0, "instance %lu: %ld price round(s) "
+                          "within %ld nodes, before decomp_after",
+                          (unsigned long)t, rounds,
+                          surety_result_nodes(res));
+                open += surety_result_status(res) != SURETY_OPTIMAL;
+                before += surety_result_nodes(res);
+            } else if (surety_result_nodes(res) > 300) {
+                after += rounds > 0;
+            }
+            surety_result_free(res);
+        }
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_log_info("%ld nodes before the mark; %ld searches past it ran rounds",
+                before, after);
+    /* the check bites only where the searches reach the node limit */
+    cr_assert(open >= 4, "only %ld of 6 searches were still open at 299 "
+              "nodes", open);
+    cr_assert(after >= 4, "only %ld searches ran rounds past decomp_after",
+              after);
+}
+
 /* The slow suite (SURETY_SLOW=1, meson test --suite slow): searches long
  * enough for the scenario prices to grow (up to 60 rounds), whose bounds
  * must stay at least the optimum found without the decomposition. The
