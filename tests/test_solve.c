@@ -2252,8 +2252,9 @@ Test(solve, separate_searches_reach_the_split_by_its_work)
 /* A joint search's nodes evaluate more than the window of knapsacks on
  * average (every 32nd and each restored node recompute every scenario),
  * yet the decomposition's first step comes only after decomp_after nodes
- * (tree.c, work_reached): counted in knapsacks it came after a third of
- * them at 10 000 scenarios and slowed trees that close soon after
+ * (tree.c, work_reached): counted in knapsacks it came after about three
+ * fifths of them at 10 000 scenarios and slowed trees that close soon
+ * after
  * (bench/README.md, "The decomposition's start counted in nodes for
  * joint searches"). Here many restored nodes (dives of 8) and few
  * scenarios in the window (k = 20 of 400) put the knapsacks of

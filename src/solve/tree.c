@@ -300,8 +300,8 @@ static void root_lp(surety_solver *s)
  * more. A joint search counts nodes only: its nodes evaluate more than
  * the window on average (every 32nd and each restored node recompute
  * every scenario), most of all at large N, where the knapsacks reached
- * the mark after a third of the nodes and started the decomposition in
- * trees that close soon after (bench/README.md, "The decomposition's
+ * the mark after about three fifths of the nodes and started the
+ * decomposition in trees that close soon after (bench/README.md, "The decomposition's
  * start counted in nodes for joint searches"). */
 static int work_reached(const surety_solver *s, long after)
 {
