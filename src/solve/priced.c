@@ -386,7 +386,6 @@ static double part_list(surety_solver *s, size_t i, const solve_prec *prec,
 
 #ifdef SURETY_CHECK_INVARIANTS
 #include <stdio.h>
-#include <stdlib.h>
 /* Built only for tests/test_invariants.c: resource i's bound v against
  * every job set S of its open jobs (those the node's row allows it) with
  * the jobs placed in it, scenario by scenario: S fails the rows its load

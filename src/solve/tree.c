@@ -301,8 +301,8 @@ static void root_lp(surety_solver *s)
  * the window on average (every 32nd and each restored node recompute
  * every scenario), most of all at large N, where the knapsacks reached
  * the mark after about three fifths of the nodes and started the
- * decomposition in trees that close soon after (bench/README.md, "The decomposition's
- * start counted in nodes for joint searches"). */
+ * decomposition in trees that close soon after (bench/README.md, "The
+ * decomposition's start counted in nodes for joint searches"). */
 static int work_reached(const surety_solver *s, long after)
 {
     if (s->nodes >= after)
