@@ -649,9 +649,11 @@ static surety_code solve_run(const surety_model *model,
         logf_(&s, SURETY_LOG_INFO,
               "decomposition at restored nodes: %ld one-resource solves, "
               "%ld nodes pruned; %ld more answered by an identical "
-              "resource's; %ld nodes, %.2f s",
+              "resource's; %ld nodes, %.2f s; %ld restored nodes left "
+              "without them, at distances where they took off little",
               s.dec_nsolves, s.dec_npruned, s.dec_ntwins,
-              s.dec_nodes[SURETY_DEC_NODES], s.dec_secs[SURETY_DEC_NODES]);
+              s.dec_nodes[SURETY_DEC_NODES], s.dec_secs[SURETY_DEC_NODES],
+              s.dec_nleft);
     if (s.pc_state > 0)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition parts bounded at the nodes: %ld nodes cut off",

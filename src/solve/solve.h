@@ -65,6 +65,8 @@ typedef struct solve_prec {
 } solve_prec;
 typedef struct solve_lp solve_lp; /* lpbound.c */
 typedef struct solve_dec solve_dec; /* decomp.c */
+/* Classes of a restored node's distance to the cutoff (tree.c) */
+enum { SURETY_RN_CLASSES = 16 };
 /* The decomposition's phases, as its counts are kept (dec_nodes) */
 enum { SURETY_DEC_ROUNDS, SURETY_DEC_PROBES, SURETY_DEC_NODES };
 typedef struct solve_lns solve_lns; /* lns.c */
@@ -332,6 +334,16 @@ struct surety_solver {
     long dec_probes, dec_ruled; /* one-resource probes; pairs ruled out */
     long dec_nsolves;    /* one-resource solves at restored nodes */
     long dec_npruned;    /* restored nodes those solves pruned */
+    long dec_nleft;      /* restored nodes left without them (tree.c,
+                          * node_split: at their distance such solves
+                          * took off little) */
+    /* per distance class (tree.c, dist_class): restored nodes solved,
+     * and the share of their distance to the cutoff that the solves took
+     * off, summed (a pruned node's as 1); skipped nodes counted for the
+     * probe */
+    long rn_tried[SURETY_RN_CLASSES];
+    double rn_took[SURETY_RN_CLASSES];
+    long rn_skips;
     long dec_ntwins;     /* besides those, values copied from an identical
                           * resource solved at the same node */
     int dec_nodes_on;    /* restored nodes solve their own V_i (tree.c) */
