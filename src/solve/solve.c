@@ -294,7 +294,7 @@ static int search_alloc(surety_solver *s)
     s->ubv = surety_xcalloc(N, sizeof *s->ubv);
     s->ubt_l = surety_xmalloc((nb + 1) * N, sizeof *s->ubt_l);
     s->ubt_v = surety_xmalloc((nb + 1) * N, sizeof *s->ubt_v);
-    /* a child recomputes about 2(b+1)+16 scenarios (bound.c), b <= k */
+    /* a child recomputes at most 2(b+1)+16 scenarios (bound.c), b <= k */
     s->rlcap = 2 * (s->k + 1) + 16 < N ? 2 * (s->k + 1) + 16 : N;
     s->rl = surety_xmalloc((nb + 2) * (s->rlcap ? s->rlcap : 1), sizeof *s->rl);
     s->rln = surety_xmalloc(nb + 2, sizeof *s->rln);
