@@ -340,10 +340,13 @@ typedef struct surety_solve_options {
     /* nodes searched before the LP relaxation of the strengthened big-M
      * formulation is solved at the root, to cap every bound from then on
      * and rule out pairs by reduced cost (an instance that closes sooner
-     * never pays for it); 0: the default (65536, or never where the
-     * decomposition bound runs from 65536 nodes on or sooner: decomp_after
-     * at most 65536 and not negative, at least two resources, lp_restored
-     * off); < 0: never. Needs the
+     * never pays for it); 0: the default (65536; where the decomposition
+     * bound runs from 65536 nodes on or sooner, that is decomp_after at
+     * most 65536 and not negative, at least two resources and lp_restored
+     * off, instead right after its first price round, and only if that
+     * round searched 131072 one-resource nodes or more and the allowed
+     * pairs times N are at most 262144); < 0: never.
+     * Needs the
      * best-bound pool (dive_nodes >= 0) and at most 4096 scenario columns
      * (N, or m*N for separate constraints); under a time limit the root LP
      * stops after a quarter of the time left, with a bound that is still

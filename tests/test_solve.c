@@ -1473,6 +1473,80 @@ Test(solve, decomposition_work_is_counted_per_phase)
               "rounds", longer);
 }
 
+/* The rounds' line and the root LP's line of one search. */
+typedef struct dec_lp_log {
+    dec_log dec;
+    double lp_root;
+    int lp_seen;
+} dec_lp_log;
+
+static void catch_lp(void *ctx, surety_log_level level, const char *line)
+{
+    dec_lp_log *g = ctx;
+    catch_dec(&g->dec, level, line);
+    if (sscanf(line, "LP bound: root %lf,", &g->lp_root) == 1)
+        g->lp_seen = 1;
+}
+
+/* Where the decomposition starts by default, the root LP is solved only
+ * once the first price round has searched SURETY_LP_COSTLY (131 072)
+ * one-resource nodes or more (tree.c, lp_due): with 60 jobs, rounds that
+ * costly leave the LP the better bound by far. One round each, so that
+ * the rounds' line gives the first round's nodes: the LP comes exactly
+ * when they reach the mark, on models on both sides of it; and then the
+ * reported bound is at most the LP's and at least the plan's value. */
+Test(solve, root_lp_follows_a_costly_first_round)
+{
+    /* first rounds of about 36 000, 172 000 and 20 000 nodes */
+    static const size_t jobs[] = {46, 50, 52};
+    int costly = 0, cheap = 0;
+    for (uint64_t t = 0; t < 3; t++) {
+        solve_gen_params p;
+        memset(&p, 0, sizeof p);
+        p.n = jobs[t];
+        p.m = 3;
+        p.N = 60;
+        p.eps = 0.05;
+        p.tightness = 0.5;
+        p.seed = mix(41001 + 2 * t);
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.decomp_after = 2000;
+        o.decomp_rounds = 1;
+        o.node_limit = 40000;
+        o.log = catch_lp;
+        dec_lp_log g;
+        memset(&g, 0, sizeof g);
+        o.log_ctx = &g;
+        surety_result *res = solve_ok(md, sc, &o);
+        cr_assert(g.dec.seen && g.dec.rounds == 1, "model %llu: no round",
+                  (unsigned long long)t);
+        cr_log_info("model %llu: first round %ld nodes, LP %s",
+                    (unsigned long long)t, g.dec.nodes[0],
+                    g.lp_seen ? "solved" : "not solved");
+        cr_assert_eq(g.lp_seen, g.dec.nodes[0] >= 131072,
+                     "model %llu: first round of %ld nodes, LP %s",
+                     (unsigned long long)t, g.dec.nodes[0],
+                     g.lp_seen ? "solved" : "not solved");
+        double bound = surety_result_bound(res);
+        cr_assert(bound >= surety_result_objective(res));
+        if (g.lp_seen)
+            cr_assert(bound <= g.lp_root + 1e-9 * (fabs(g.lp_root) + 1),
+                      "model %llu: bound %.9g above the root LP's %.9g",
+                      (unsigned long long)t, bound, g.lp_root);
+        costly += g.lp_seen;
+        cheap += !g.lp_seen;
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_assert(costly >= 1 && cheap >= 1,
+              "%d costly and %d cheap first rounds: the models no longer "
+              "fall on both sides of the mark", costly, cheap);
+}
+
 /* opt->threads runs the decomposition's one-resource solves side by side
  * (decomp.c, run_subs). Each solve is deterministic and independent of
  * the others, so with the restored nodes' own solves off, a search on 1,

@@ -284,6 +284,8 @@ struct surety_solver {
     /* ---- LP bound (lpbound.c) ---- */
     solve_lp *lpb;       /* NULL: not used */
     long lp_after;       /* nodes after which the root LP is solved */
+    int lp_costly;       /* and, where lp_after < 0, once the price rounds
+                          * prove costly (tree.c, lp_due) */
     int lp_on;           /* the root LP has been solved */
     long lp_solves, lp_iters, lp_prunes, lp_fixed;
     double lp_root;      /* the LP bound at the root, or INFINITY */

@@ -294,6 +294,30 @@ static void root_lp(surety_solver *s)
     surety_solve_log_progress(s, 1, 'R');
 }
 
+/* Is the root LP due? Once the tree has run lp_after nodes, or, where the
+ * decomposition bound starts instead (lp_costly), once its first price
+ * round has searched SURETY_LP_COSTLY one-resource nodes or more. Such
+ * rounds come with 60 jobs and more, whose one-resource problems hold many
+ * jobs each: on `gen.py diff -n 60 -m 3` the first round searched 316 000
+ * nodes at N=100 and 600 000 at N=1000, where the first rounds of the
+ * 40-job instances search 1 600-36 000 (the most at capacity 0.5). There
+ * the LP, seconds at most, is far below what the rounds reach within a
+ * minute (N=1000: 60 199 against 65 661 after 6 rounds in 51 s;
+ * bench/README.md, "The root LP where the price rounds are costly"). The
+ * rounds go on; each bound caps the other's. lp_costly is set only where
+ * the LP is small enough to end soon (solve.c). */
+#define SURETY_LP_COSTLY 131072
+
+static int lp_due(const surety_solver *s)
+{
+    if (!s->lpb || s->lp_on)
+        return 0;
+    if (s->lp_after > 0)
+        return s->nodes >= s->lp_after;
+    return s->lp_costly && s->dec_iters == 1 &&
+           s->dec_nodes[SURETY_DEC_ROUNDS] >= SURETY_LP_COSTLY;
+}
+
 /* Has the tree searched `after` nodes, or, under separate constraints,
  * evaluated the scenario knapsacks of that many joint nodes (the quantile
  * window of bound.c)? The second counts for searches whose nodes cost
@@ -808,7 +832,7 @@ double surety_tree_search(surety_solver *s)
         dive(s, 0, b);
     }
     while (!s->stop && s->npool > 0) {
-        if (s->lpb && !s->lp_on && s->nodes >= s->lp_after)
+        if (lp_due(s))
             root_lp(s);
         /* before the pop, so that its progress line sees every open node */
         decomp_round(s);
