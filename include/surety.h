@@ -345,8 +345,7 @@ typedef struct surety_solve_options {
      * most 65536 and not negative, at least two resources and lp_restored
      * off, instead right after its first price round, and only if that
      * round searched 131072 one-resource nodes or more and the allowed
-     * pairs times N are at most 262144); < 0: never.
-     * Needs the
+     * pairs times N are at most 262144); < 0: never. Needs the
      * best-bound pool (dive_nodes >= 0) and at most 4096 scenario columns
      * (N, or m*N for separate constraints); under a time limit the root LP
      * stops after a quarter of the time left, with a bound that is still

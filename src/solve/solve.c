@@ -523,8 +523,8 @@ static surety_code solve_run(const surety_model *model,
              * and more, where the LP is the better bound by far (tree.c,
              * lp_due), and the LP is small: at most 2^18 pair-scenario
              * coefficients (pairs times N). With 60-80 jobs on three or
-             * four resources and 1000 scenarios (180-240 pairs) it was
-             * solved in 2-5 s; with 500 and 1000 pairs it had not ended
+             * four resources and 1000 scenarios (180-240 pairs) it took
+             * about 4-5 s; with 500 and 1000 pairs it had not ended
              * after a quarter of a 60-s limit, and its bound was far above
              * the tree's (bench/README.md, "The root LP where the price
              * rounds are costly") */
