@@ -362,7 +362,7 @@ typedef struct surety_solve_options {
      * many nodes of a joint search where nodes cost more (separate
      * constraints); 0: the default (65536); < 0: never. Needs the
      * best-bound pool and at least two resources. Its rounds then take
-     * about four times the tree's bound work, counted in scenario knapsacks
+     * about ten times the tree's bound work, counted in scenario knapsacks
      * (their nodes are not counted in the result's nodes, nor limited by
      * node_limit; each one-resource solve stops after 200 000 nodes and
      * at the time limit). After its price rounds it
@@ -372,7 +372,9 @@ typedef struct surety_solve_options {
      * restored from the pool solves each resource's problem with all of
      * its decisions at once, which caps its subtree, as long as those
      * solves (the rounds' and probes' included) have taken no more
-     * scenario knapsacks than the tree since the first round. */
+     * scenario knapsacks than the tree since the first round. Where the
+     * root LP follows a costly first round (lp_after) and that round's
+     * bound is above the LP's, the decomposition ends there. */
     long decomp_after;
     /* most price rounds before the probes; 0 or less: the default (60) */
     int decomp_rounds;

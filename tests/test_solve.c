@@ -1476,16 +1476,22 @@ Test(solve, decomposition_work_is_counted_per_phase)
 /* The rounds' line and the root LP's line of one search. */
 typedef struct dec_lp_log {
     dec_log dec;
+    double dec_root; /* the best round's bound */
     double lp_root;
     int lp_seen;
+    int ended; /* the rounds ended after a costly first one */
 } dec_lp_log;
 
 static void catch_lp(void *ctx, surety_log_level level, const char *line)
 {
     dec_lp_log *g = ctx;
     catch_dec(&g->dec, level, line);
+    sscanf(line, "decomposition bound: %lf,", &g->dec_root);
     if (sscanf(line, "LP bound: root %lf,", &g->lp_root) == 1)
         g->lp_seen = 1;
+    if (strncmp(line, "decomposition: ended after its first price round",
+                48) == 0)
+        g->ended = 1;
 }
 
 /* Where the decomposition starts by default, the root LP is solved only
@@ -1545,6 +1551,66 @@ Test(solve, root_lp_follows_a_costly_first_round)
     cr_assert(costly >= 1 && cheap >= 1,
               "%d costly and %d cheap first rounds: the models no longer "
               "fall on both sides of the mark", costly, cheap);
+}
+
+/* After the LP that a costly first round called for, the decomposition
+ * ends when that round's bound is above the LP's (tree.c,
+ * costly_rounds_end), and only then; the best round's bound still caps
+ * the reported one. Models with costly first rounds, up to three rounds
+ * each. */
+Test(solve, costly_rounds_end_above_the_root_lp)
+{
+    /* first rounds below and above the LP */
+    static const size_t jobs[] = {48, 50};
+    int ended = 0, lp = 0;
+    for (uint64_t t = 0; t < 2; t++) {
+        solve_gen_params p;
+        memset(&p, 0, sizeof p);
+        p.n = jobs[t];
+        p.m = 3;
+        p.N = 60;
+        p.eps = 0.05;
+        p.tightness = 0.5;
+        p.seed = mix(41002 + t);
+        surety_model *md = solve_gen_model(&p);
+        surety_scenarios *sc = solve_gen_scenarios(md, &p);
+        surety_solve_options o;
+        surety_solve_options_init(&o);
+        o.decomp_after = 2000;
+        o.decomp_rounds = 3;
+        o.node_limit = 40000;
+        o.log = catch_lp;
+        dec_lp_log g;
+        memset(&g, 0, sizeof g);
+        o.log_ctx = &g;
+        surety_result *res = solve_ok(md, sc, &o);
+        cr_log_info("model %llu: %ld rounds, %ld nodes, bound %.6f, LP %s "
+                    "%.6f, %s", (unsigned long long)t, g.dec.rounds,
+                    g.dec.nodes[0], g.dec_root, g.lp_seen ? "solved" : "not",
+                    g.lp_root, g.ended ? "ended" : "not ended");
+        cr_assert(g.dec.seen, "model %llu: no round", (unsigned long long)t);
+        if (g.ended)
+            cr_assert(g.lp_seen && g.dec.rounds == 1 &&
+                          g.dec.nodes[0] >= 131072 && g.dec_root > g.lp_root,
+                      "model %llu: ended without cause",
+                      (unsigned long long)t);
+        if (g.lp_seen && g.dec.rounds == 1 && g.dec_root > g.lp_root)
+            cr_assert(g.ended, "model %llu: a round above the LP, not ended",
+                      (unsigned long long)t);
+        double bound = surety_result_bound(res);
+        cr_assert(bound >= surety_result_objective(res));
+        cr_assert(bound <= g.dec_root + 1e-9 * (fabs(g.dec_root) + 1));
+        if (g.lp_seen)
+            cr_assert(bound <= g.lp_root + 1e-9 * (fabs(g.lp_root) + 1));
+        ended += g.ended;
+        lp += g.lp_seen;
+        surety_result_free(res);
+        surety_model_destroy(md);
+        solve_gen_scenarios_free(sc);
+    }
+    cr_assert(ended == 1 && lp == 2,
+              "%d of the models ended their rounds, %d solved the LP: they no "
+              "longer fall on both sides of the LP", ended, lp);
 }
 
 /* opt->threads runs the decomposition's one-resource solves side by side

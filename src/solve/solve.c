@@ -648,6 +648,10 @@ static surety_code solve_run(const surety_model *model,
               s.dec_root, s.dec_iters, s.dec_nodes[SURETY_DEC_ROUNDS],
               s.dec_secs[SURETY_DEC_ROUNDS], s.dec_master_secs, s.dec_made,
               s.dec_heur_secs, s.dec_found);
+    if (s.dec_ended)
+        logf_(&s, SURETY_LOG_INFO,
+              "decomposition: ended after its first price round, costly and "
+              "above the root LP's bound");
     if (s.dec_twins)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition: %ld one-resource solves answered by an "

@@ -293,6 +293,7 @@ struct surety_solver {
     solve_dec *dec;      /* NULL until the first round */
     long dec_after;      /* tree nodes before the first round; < 0 never */
     int dec_done;        /* no more rounds or probes */
+    int dec_ended;       /* ended after a costly first round (tree.c) */
     double dec_root;     /* the best round's value, or INFINITY */
     long dec_iters;      /* price rounds */
     /* the one-resource solves' nodes and the time spent, apart for the
