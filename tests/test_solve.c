@@ -1494,6 +1494,39 @@ static void catch_lp(void *ctx, surety_log_level level, const char *line)
         g->ended = 1;
 }
 
+/* One search of a generated model of n jobs, 3 resources and 60
+ * scenarios, the decomposition from 2000 nodes on with at most `rounds`
+ * price rounds, stopped after 40 000 nodes: its log lines in g, its bound
+ * and value in bound and value. */
+static void costly_run(size_t n, uint64_t seed, int rounds, dec_lp_log *g,
+                       double *bound, double *value)
+{
+    solve_gen_params p;
+    memset(&p, 0, sizeof p);
+    p.n = n;
+    p.m = 3;
+    p.N = 60;
+    p.eps = 0.05;
+    p.tightness = 0.5;
+    p.seed = seed;
+    surety_model *md = solve_gen_model(&p);
+    surety_scenarios *sc = solve_gen_scenarios(md, &p);
+    surety_solve_options o;
+    surety_solve_options_init(&o);
+    o.decomp_after = 2000;
+    o.decomp_rounds = rounds;
+    o.node_limit = 40000;
+    o.log = catch_lp;
+    memset(g, 0, sizeof *g);
+    o.log_ctx = g;
+    surety_result *res = solve_ok(md, sc, &o);
+    *bound = surety_result_bound(res);
+    *value = surety_result_objective(res);
+    surety_result_free(res);
+    surety_model_destroy(md);
+    solve_gen_scenarios_free(sc);
+}
+
 /* Where the decomposition starts by default, the root LP is solved only
  * once the first price round has searched SURETY_LP_COSTLY (131 072)
  * one-resource nodes or more (tree.c, lp_due): with 60 jobs, rounds that
@@ -1507,26 +1540,9 @@ Test(solve, root_lp_follows_a_costly_first_round)
     static const size_t jobs[] = {46, 50, 52};
     int costly = 0, cheap = 0;
     for (uint64_t t = 0; t < 3; t++) {
-        solve_gen_params p;
-        memset(&p, 0, sizeof p);
-        p.n = jobs[t];
-        p.m = 3;
-        p.N = 60;
-        p.eps = 0.05;
-        p.tightness = 0.5;
-        p.seed = mix(41001 + 2 * t);
-        surety_model *md = solve_gen_model(&p);
-        surety_scenarios *sc = solve_gen_scenarios(md, &p);
-        surety_solve_options o;
-        surety_solve_options_init(&o);
-        o.decomp_after = 2000;
-        o.decomp_rounds = 1;
-        o.node_limit = 40000;
-        o.log = catch_lp;
         dec_lp_log g;
-        memset(&g, 0, sizeof g);
-        o.log_ctx = &g;
-        surety_result *res = solve_ok(md, sc, &o);
+        double bound, value;
+        costly_run(jobs[t], mix(41001 + 2 * t), 1, &g, &bound, &value);
         cr_assert(g.dec.seen && g.dec.rounds == 1, "model %llu: no round",
                   (unsigned long long)t);
         cr_log_info("model %llu: first round %ld nodes, LP %s",
@@ -1536,17 +1552,13 @@ Test(solve, root_lp_follows_a_costly_first_round)
                      "model %llu: first round of %ld nodes, LP %s",
                      (unsigned long long)t, g.dec.nodes[0],
                      g.lp_seen ? "solved" : "not solved");
-        double bound = surety_result_bound(res);
-        cr_assert(bound >= surety_result_objective(res));
+        cr_assert(bound >= value);
         if (g.lp_seen)
             cr_assert(bound <= g.lp_root + 1e-9 * (fabs(g.lp_root) + 1),
                       "model %llu: bound %.9g above the root LP's %.9g",
                       (unsigned long long)t, bound, g.lp_root);
         costly += g.lp_seen;
         cheap += !g.lp_seen;
-        surety_result_free(res);
-        surety_model_destroy(md);
-        solve_gen_scenarios_free(sc);
     }
     cr_assert(costly >= 1 && cheap >= 1,
               "%d costly and %d cheap first rounds: the models no longer "
@@ -1564,26 +1576,9 @@ Test(solve, costly_rounds_end_above_the_root_lp)
     static const size_t jobs[] = {48, 50};
     int ended = 0, lp = 0;
     for (uint64_t t = 0; t < 2; t++) {
-        solve_gen_params p;
-        memset(&p, 0, sizeof p);
-        p.n = jobs[t];
-        p.m = 3;
-        p.N = 60;
-        p.eps = 0.05;
-        p.tightness = 0.5;
-        p.seed = mix(41002 + t);
-        surety_model *md = solve_gen_model(&p);
-        surety_scenarios *sc = solve_gen_scenarios(md, &p);
-        surety_solve_options o;
-        surety_solve_options_init(&o);
-        o.decomp_after = 2000;
-        o.decomp_rounds = 3;
-        o.node_limit = 40000;
-        o.log = catch_lp;
         dec_lp_log g;
-        memset(&g, 0, sizeof g);
-        o.log_ctx = &g;
-        surety_result *res = solve_ok(md, sc, &o);
+        double bound, value;
+        costly_run(jobs[t], mix(41002 + t), 3, &g, &bound, &value);
         cr_log_info("model %llu: %ld rounds, %ld nodes, bound %.6f, LP %s "
                     "%.6f, %s", (unsigned long long)t, g.dec.rounds,
                     g.dec.nodes[0], g.dec_root, g.lp_seen ? "solved" : "not",
@@ -1597,16 +1592,12 @@ Test(solve, costly_rounds_end_above_the_root_lp)
         if (g.lp_seen && g.dec.rounds == 1 && g.dec_root > g.lp_root)
             cr_assert(g.ended, "model %llu: a round above the LP, not ended",
                       (unsigned long long)t);
-        double bound = surety_result_bound(res);
-        cr_assert(bound >= surety_result_objective(res));
+        cr_assert(bound >= value);
         cr_assert(bound <= g.dec_root + 1e-9 * (fabs(g.dec_root) + 1));
         if (g.lp_seen)
             cr_assert(bound <= g.lp_root + 1e-9 * (fabs(g.lp_root) + 1));
         ended += g.ended;
         lp += g.lp_seen;
-        surety_result_free(res);
-        surety_model_destroy(md);
-        solve_gen_scenarios_free(sc);
     }
     cr_assert(ended == 1 && lp == 2,
               "%d of the models ended their rounds, %d solved the LP: they no "
