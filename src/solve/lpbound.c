@@ -130,6 +130,11 @@ static int add_lp_row(solve_lp *q, const double *a, double lo, double hi,
     return 0;
 }
 
+size_t surety_lpb_pairs(const surety_solver *s)
+{
+    return s->lpb ? s->lpb->nx : 0;
+}
+
 int surety_lpb_init(surety_solver *s)
 {
     size_t n = s->n, m = s->m, N = s->N, G = s->G;

@@ -521,30 +521,20 @@ static surety_code solve_run(const surety_model *model,
              * (bench/README.md, "The decomposition's share raised to four
              * fifths"); unless the rounds prove costly, as with 60 jobs
              * and more, where the LP is the better bound by far (tree.c,
-             * lp_due), and the LP is small: at most 2^18 pair-scenario
-             * coefficients (pairs times N). With 60-80 jobs on three or
-             * four resources and 1000 scenarios (180-240 pairs) it took
-             * about 4-5 s; with 500 and 1000 pairs it had not ended
-             * after a quarter of a 60-s limit, and its bound was far above
-             * the tree's (bench/README.md, "The root LP where the price
-             * rounds are costly") */
+             * lp_due, which sets the LP up then, if it is small) */
             int dec_runs = s.dec_after > 0 && s.dec_after <= after &&
                            s.m >= 2 && opt->dive_nodes >= 0;
             s.lp_after = opt->lp_after != 0 ? opt->lp_after
                          : dec_runs && !opt->lp_restored ? -1
                                                          : after;
-            size_t pairs = 0;
-            for (size_t t = 0; t < s.nb; t++)
-                for (size_t i = 0; i < s.m; i++)
-                    pairs += s.allowed[s.order[t] * s.m + i] != 0;
             s.lp_costly = opt->lp_after == 0 && s.lp_after < 0 &&
-                          (double)pairs * (double)s.N <= 262144.0;
+                          opt->dive_nodes >= 0;
             s.dec_nodes_on = !opt->decomp_root_only;
             s.lns_after = opt->improve_after == 0 ? after
                                                   : opt->improve_after;
             if (opt->scenario_cost)
                 s.lns_after = -1; /* the parts' searches price no failures */
-            int lr = (s.lp_after > 0 || s.lp_costly) && opt->dive_nodes >= 0
+            int lr = s.lp_after > 0 && opt->dive_nodes >= 0
                          ? surety_lpb_init(&s)
                          : 1;
             if (lr != 0)

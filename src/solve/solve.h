@@ -284,8 +284,8 @@ struct surety_solver {
     /* ---- LP bound (lpbound.c) ---- */
     solve_lp *lpb;       /* NULL: not used */
     long lp_after;       /* nodes after which the root LP is solved */
-    int lp_costly;       /* and, where lp_after < 0, once the price rounds
-                          * prove costly (tree.c, lp_due) */
+    int lp_costly;       /* where lp_after < 0: set up and solved once the
+                          * price rounds prove costly (tree.c, lp_due) */
     int lp_on;           /* the root LP has been solved */
     long lp_solves, lp_iters, lp_prunes, lp_fixed;
     double lp_root;      /* the LP bound at the root, or INFINITY */
@@ -554,6 +554,8 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
                        double qbound, int rounds, double work,
                        size_t *fixed);
 void surety_lpb_free(surety_solver *s);
+/* The LP's pair columns: the allowed (job, resource) pairs it decides. */
+size_t surety_lpb_pairs(const surety_solver *s);
 
 /* tree.c: the value a bound must beat: the incumbent plus the user's gap
  * tolerance (never below rounding noise), -INFINITY before any plan. */

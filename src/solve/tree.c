@@ -294,43 +294,57 @@ static void root_lp(surety_solver *s)
     surety_solve_log_progress(s, 1, 'R');
 }
 
-/* Is the root LP due? Once the tree has run lp_after nodes, or, where the
- * decomposition bound starts instead (lp_costly), once its first price
- * round has searched SURETY_LP_COSTLY one-resource nodes or more. Such
- * rounds come with 60 jobs and more, whose one-resource problems hold many
- * jobs each: on `gen.py diff -n 60 -m 3` the first round searched 316 000
- * nodes at N=100 and 600 000 at N=1000, where the first rounds of the
- * 40-job instances search 1 600-36 000 (the most at capacity 0.5). There
- * the LP, seconds at most, is far below what the rounds reach within a
- * minute (N=1000: 60 199 against 65 661 after 6 rounds in 51 s;
- * bench/README.md, "The root LP where the price rounds are costly"). The
- * rounds go on; each bound caps the other's. lp_costly is set only where
- * the LP is small enough to end soon (solve.c). */
+/* Is the root LP due? LP_BY_NODES once the tree has run lp_after nodes;
+ * or, where the decomposition bound starts instead (lp_costly),
+ * LP_BY_ROUND once its first price round has searched SURETY_LP_COSTLY
+ * one-resource nodes or more. Such rounds come with 60 jobs and more,
+ * whose one-resource problems hold many jobs each: on `gen.py diff -n 60
+ * -m 3` the first round searched 316 000 nodes at N=100 and 600 000 at
+ * N=1000, where the first rounds of the 40-job instances search 1
+ * 600-36 000 (the most at capacity 0.5). There the LP, seconds at most, is
+ * far below what the rounds reach within a minute (N=1000: 60 199 against
+ * 65 661 after 6 rounds in 51 s; bench/README.md, "The root LP where the
+ * price rounds are costly"). The LP is set up then, once, and kept only if
+ * it is small enough to end soon: at most SURETY_LP_SMALL pair-scenario
+ * coefficients (pair columns times N). With 180-240 pairs at 1000
+ * scenarios it took about 4-5 s; with 500 and 1000 pairs it had not ended
+ * after a quarter of a 60-s limit, its bound far above the tree's. */
 #define SURETY_LP_COSTLY 131072
+#define SURETY_LP_SMALL 262144.0
+enum { LP_NOT_DUE, LP_BY_NODES, LP_BY_ROUND };
 
-static int lp_due(const surety_solver *s)
+static int lp_due(surety_solver *s)
 {
-    if (!s->lpb || s->lp_on)
-        return 0;
+    if (s->lp_on)
+        return LP_NOT_DUE;
     if (s->lp_after > 0)
-        return s->nodes >= s->lp_after;
-    return s->lp_costly && s->dec_iters == 1 &&
-           s->dec_nodes[SURETY_DEC_ROUNDS] >= SURETY_LP_COSTLY;
+        return s->lpb && s->nodes >= s->lp_after ? LP_BY_NODES : LP_NOT_DUE;
+    if (!s->lp_costly || s->dec_iters != 1 ||
+        s->dec_nodes[SURETY_DEC_ROUNDS] < SURETY_LP_COSTLY)
+        return LP_NOT_DUE;
+    s->lp_costly = 0; /* one try: the LP is set up here or not at all */
+    if (surety_lpb_init(s) != 0 ||
+        (double)surety_lpb_pairs(s) * (double)s->N > SURETY_LP_SMALL) {
+        surety_lpb_free(s); /* nothing to decide, too large, or no memory:
+                             * the search goes on without the LP */
+        return LP_NOT_DUE;
+    }
+    return LP_BY_ROUND;
 }
 
 /* After the LP that a costly first round called for: where that round's
  * bound is above the LP's, the decomposition ends (rounds, probes and the
  * restored nodes' solves), and the best round's bound keeps capping the
- * nodes. Its one-resource problems are searches of their own there, some
- * stopped by their node limit, and the rounds seldom got below the LP
- * within a minute: on `gen.py diff -n 60 -m 3 -N 100 --seed 2` 27 rounds
- * stalled at 60 865.1, above the LP's 60 717.5 (bench/README.md, "The
- * root LP where the price rounds are costly"). Left to the tree, that
- * time found better plans on the three such instances measured, with the
- * same bound. */
+ * nodes; elsewhere the rounds go on, and each bound caps the other's. Its
+ * one-resource problems are searches of their own there, some stopped by
+ * their node limit, and the rounds seldom got below the LP within a
+ * minute: on `gen.py diff -n 60 -m 3 -N 100 --seed 2` 27 rounds stalled at
+ * 60 865.1, above the LP's 60 717.5 (bench/README.md, "The root LP where
+ * the price rounds are costly"). Left to the tree, that time found better
+ * plans on the four such instances measured, with the same bound. */
 static void costly_rounds_end(surety_solver *s)
 {
-    if (!s->lp_costly || s->dec_done || !(s->dec_root > s->lp_root))
+    if (s->dec_done || !(s->dec_root > s->lp_root))
         return;
     s->dec_done = 1;
     s->dec_ended = 1;
@@ -851,9 +865,11 @@ double surety_tree_search(surety_solver *s)
         dive(s, 0, b);
     }
     while (!s->stop && s->npool > 0) {
-        if (lp_due(s)) {
+        int due = lp_due(s);
+        if (due != LP_NOT_DUE) {
             root_lp(s);
-            costly_rounds_end(s);
+            if (due == LP_BY_ROUND)
+                costly_rounds_end(s);
         }
         /* before the pop, so that its progress line sees every open node */
         decomp_round(s);
