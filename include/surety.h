@@ -343,7 +343,7 @@ typedef struct surety_solve_options {
      * never pays for it); 0: the default (65536; where the decomposition
      * bound runs from 65536 nodes on or sooner, that is decomp_after at
      * most 65536 and not negative, at least two resources and lp_restored
-     * off, instead right after its first price round, and only if that
+     * not above 0, instead right after its first price round, and only if that
      * round searched 131072 one-resource nodes or more and the allowed
      * pairs times N are at most 262144); < 0: never. Needs the
      * best-bound pool (dive_nodes >= 0) and at most 4096 scenario columns
@@ -351,8 +351,11 @@ typedef struct surety_solve_options {
      * stops after a quarter of the time left, with a bound that is still
      * valid. */
     long lp_after;
-    /* non-zero: also bound every node restored from the pool by its LP
-     * (a few rounds of scenario rows); default 0 */
+    /* > 0: once the root LP is solved, also bound by the LP (a few rounds
+     * of scenario rows) every node restored from the pool and the nodes of
+     * the first three levels of its dive; 0: the default, so only where
+     * the root LP came after a costly first price round (lp_after) and the
+     * allowed pairs times N are at most 32768; < 0: never */
     int lp_restored;
     /* nodes searched before the resource-decomposition bound is computed
      * at the root (each resource's own chance-constrained problem solved

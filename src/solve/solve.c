@@ -525,10 +525,11 @@ static surety_code solve_run(const surety_model *model,
             int dec_runs = s.dec_after > 0 && s.dec_after <= after &&
                            s.m >= 2 && opt->dive_nodes >= 0;
             s.lp_after = opt->lp_after != 0 ? opt->lp_after
-                         : dec_runs && !opt->lp_restored ? -1
+                         : dec_runs && opt->lp_restored <= 0 ? -1
                                                          : after;
             s.lp_costly = opt->lp_after == 0 && s.lp_after < 0 &&
                           opt->dive_nodes >= 0;
+            s.lp_nodes = opt->lp_restored > 0;
             s.dec_nodes_on = !opt->decomp_root_only;
             s.lns_after = opt->improve_after == 0 ? after
                                                   : opt->improve_after;
@@ -627,8 +628,9 @@ static surety_code solve_run(const surety_model *model,
     if (s.lp_solves)
         logf_(&s, SURETY_LOG_INFO,
               "LP bound: root %.6f, %ld solves, %ld iterations, %ld nodes "
-              "pruned, %ld pairs ruled out",
-              s.lp_root, s.lp_solves, s.lp_iters, s.lp_prunes, s.lp_fixed);
+              "bounded by it, %ld pruned, %ld pairs ruled out",
+              s.lp_root, s.lp_solves, s.lp_iters, s.lp_bounded, s.lp_prunes,
+              s.lp_fixed);
     if (s.dec_iters)
         logf_(&s, SURETY_LOG_INFO,
               "decomposition bound: %.6f, %ld price rounds, %ld nodes in "

@@ -287,7 +287,10 @@ struct surety_solver {
     int lp_costly;       /* where lp_after < 0: set up and solved once the
                           * price rounds prove costly (tree.c, lp_due) */
     int lp_on;           /* the root LP has been solved */
-    long lp_solves, lp_iters, lp_prunes, lp_fixed;
+    int lp_nodes;        /* the LP also bounds each restored node and the
+                          * first levels of its dive (tree.c, lp_bound) */
+    size_t dive_top;     /* depth of the node the current dive started at */
+    long lp_solves, lp_iters, lp_prunes, lp_fixed, lp_bounded;
     double lp_root;      /* the LP bound at the root, or INFINITY */
     /* ---- resource-decomposition bound (decomp.c) ---- */
     solve_dec *dec;      /* NULL until the first round */

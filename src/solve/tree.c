@@ -256,18 +256,27 @@ static size_t pool_max(const surety_solver *s)
     return ((size_t)256 << 20) / (sizeof(solve_open) + (s->nb + 1) * sizeof(long));
 }
 
-/* The LP bound (lpbound.c) of a node restored from the pool at depth
- * `row`, whose quantile bound b beat the cutoff, with a few rounds of
- * scenario rows, when the caller asked for it (lp_restored: measured not
- * to pay on the instances of bench/README.md, "LP bound"). Returns the
- * node's bound. */
+/* The LP bound (lpbound.c) of a node at depth `row` whose other bounds
+ * came to b > cut, with a few rounds of scenario rows, where the search
+ * bounds nodes by their LP (lp_nodes): each node restored from the pool,
+ * and the nodes of the first SURETY_LP_TOP levels of its dive. Returns
+ * the node's bound. Those nodes head the largest subtrees, and the pool
+ * orders them by bound: with the branching order fixed, a node's LP falls
+ * only as the jobs the LP splits get decided, a few levels down. On `gen.py
+ * diff -n 60 -m 3 -N 100 --seed 2` the restored nodes alone took the 60-s
+ * gap from 9.10% to 7.32%, and with the first 1 / 3 / 6 levels of their
+ * dives to 7.20 / 7.13 / 7.73% (bench/README.md, "The LP at the top of
+ * each dive"). */
+#define SURETY_LP_TOP 3
+
 static double lp_bound(surety_solver *s, size_t row, double cut, double b)
 {
-    if (!s->opt->lp_restored)
+    if (!s->lp_nodes || !s->lp_on || !(b > cut))
         return b;
     size_t fixed = 0;
     s->lp_deadline = INFINITY;
     double lb = surety_lpb_node(s, cut, row, b, 3, 1e9, &fixed);
+    s->lp_bounded++;
     s->lp_fixed += (long)fixed;
     if (!(lb > cut))
         s->lp_prunes++;
@@ -311,6 +320,20 @@ static void root_lp(surety_solver *s)
  * after a quarter of a 60-s limit, its bound far above the tree's. */
 #define SURETY_LP_COSTLY 131072
 #define SURETY_LP_SMALL 262144.0
+/* ... and where it is smaller still, SURETY_LP_NODES pair-scenario
+ * coefficients at most, and the decomposition has ended above it
+ * (costly_rounds_end), the LP also bounds the nodes that head the largest
+ * subtrees (lp_bound), unless the caller says. Measured in 60-s runs of
+ * `gen.py` models of 60-100 jobs and 3 resources (bench/README.md, "The
+ * LP at the top of each dive"): at 100 scenarios (18 000-30 000
+ * coefficients) the gaps fell on six of seven models, by 0.7-3.5 points,
+ * and stayed on the seventh; at 200 scenarios and 48 000 coefficients by
+ * 0.5; at 54 000-60 000 the bound stayed and one plan got worse; at 1000
+ * scenarios a node's LP took about 60 ms, pruned nothing in a minute and
+ * left the tree a twentieth of its nodes. Where the rounds go on, node
+ * LPs showed no clear gain (15.19% to 14.39%, 6.18% to 6.28%, on two
+ * models of 80 jobs): the time stays theirs. */
+#define SURETY_LP_NODES 32768.0
 enum { LP_NOT_DUE, LP_BY_NODES, LP_BY_ROUND };
 
 static int lp_due(surety_solver *s)
@@ -833,6 +856,8 @@ static void dive(surety_solver *s, size_t d, double node_bound)
                 surety_priced_forget(s, d + 1);
             if (b > node_bound)
                 b = node_bound; /* the parent's bound covers the child */
+            if (d + 1 <= s->dive_top + SURETY_LP_TOP)
+                b = lp_bound(s, d + 1, cut, b);
             if (b > cut) {
                 try_partial(s);
                 if (b > surety_cutoff(s))
@@ -870,6 +895,10 @@ double surety_tree_search(surety_solver *s)
             root_lp(s);
             if (due == LP_BY_ROUND)
                 costly_rounds_end(s);
+            if (due == LP_BY_ROUND && s->dec_ended &&
+                s->opt->lp_restored == 0 &&
+                (double)surety_lpb_pairs(s) * (double)s->N <= SURETY_LP_NODES)
+                s->lp_nodes = 1;
         }
         /* before the pop, so that its progress line sees every open node */
         decomp_round(s);
@@ -908,8 +937,7 @@ double surety_tree_search(surety_solver *s)
                 nb = cap;
             if (nb > e.bound)
                 nb = e.bound;
-            if (nb > cut && s->lp_on)
-                nb = lp_bound(s, d, cut, nb);
+            nb = lp_bound(s, d, cut, nb);
             if (nb > cut && s->dec_c)
                 nb = priced_cap(s, nb, d, SURETY_PC_ALL);
             else
@@ -921,6 +949,7 @@ double surety_tree_search(surety_solver *s)
                 try_partial(s);
                 if (nb > surety_cutoff(s)) {
                     s->spill_at = s->nodes + budget;
+                    s->dive_top = d;
                     dive(s, d, nb);
                 }
             }
