@@ -73,6 +73,14 @@ expect 4 "root LP after 1 node" -- "$surety" solve "$src/instances/workshops-30.
 has "$tmp/err" "LP bound: root" "root LP reported on the progress stream"
 expect 0 "root LP never" -- "$surety" solve "$tut" --lp-after never --quiet
 expect 1 "bad --lp-after" -- "$surety" solve "$tut" --lp-after 0
+# the LP at the top of each dive: on when asked, off when told
+expect 4 "node LPs always" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --lp-after 1 --node-lp always --node-limit 6000 --progress
+if ! grep -Eq "LP bound: root .*, [1-9][0-9]* nodes bounded by it" "$tmp/err"; then
+    failed=$((failed + 1)); echo "FAIL: no node bounded by the LP with --node-lp always"; cat "$tmp/err"
+else passed=$((passed + 1)); fi
+expect 4 "node LPs never" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --lp-after 1 --node-lp never --node-limit 6000 --progress
+has "$tmp/err" ", 0 nodes bounded by it" "no node bounded by the LP with --node-lp never"
+expect 1 "bad --node-lp" -- "$surety" solve "$tut" --node-lp sometimes
 # by default the root LP runs only where the split does not: past 65 536
 # nodes, without and with the split
 expect 4 "root LP by default without the split" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --split-after never --node-limit 70000 --progress

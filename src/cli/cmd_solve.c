@@ -14,7 +14,8 @@
 static const char solve_help[] =
     "usage: surety solve MODEL [-n N] [--seed S] [--risk EPS] [-o PLAN.json]\n"
     "                    [--time-limit SEC] [--gap G] [--node-limit K]\n"
-    "                    [--lp-after K|never] [--split-after K|never]\n"
+    "                    [--lp-after K|never] [--node-lp auto|always|never]\n"
+    "                    [--split-after K|never]\n"
     "                    [--split-prices jobs|scenarios] [--split-rounds K]\n"
     "                    [--split-steps bundle|subgradient]\n"
     "                    [--split-root-only] [--keep-dominated]\n"
@@ -38,6 +39,12 @@ static const char solve_help[] =
     "                    round if that round searched 131072 nodes or more\n"
     "                    and pairs times scenarios are at most 262144;\n"
     "                    'never' turns it off)\n"
+    "  --node-lp W       once the root LP is solved, also bound by it each node\n"
+    "                    taken up from the best bound and the first three\n"
+    "                    levels below it: 'auto' (default: where the split\n"
+    "                    ended after a costly first round above a small LP,\n"
+    "                    pairs times scenarios at most 32768), 'always' or\n"
+    "                    'never'\n"
     "  --split-after K   from K nodes on (under separate constraints, or from\n"
     "                    the work of K joint nodes), bound the optimum by each\n"
     "                    resource's own problem, solved by the same search,\n"
@@ -288,6 +295,7 @@ int cmd_solve(int argc, char **argv)
         {"node-limit", required_argument, 0, 'k'},
         {"threads", required_argument, 0, 'T'},
         {"lp-after", required_argument, 0, 'L'},
+        {"node-lp", required_argument, 0, 'N'},
         {"split-after", required_argument, 0, 'S'},
         {"keep-dominated", no_argument, 0, 'D'},
         {"improve-after", required_argument, 0, 'I'},
@@ -348,6 +356,16 @@ int cmd_solve(int argc, char **argv)
             if (strcmp(optarg, "jobs") != 0 && strcmp(optarg, "scenarios") != 0)
                 return cli_usage_error("solve", "--split-prices needs 'jobs' or 'scenarios'");
             sopt.decomp_jobs_only = strcmp(optarg, "jobs") == 0;
+            break;
+        case 'N':
+            if (strcmp(optarg, "auto") == 0)
+                sopt.lp_restored = 0;
+            else if (strcmp(optarg, "always") == 0)
+                sopt.lp_restored = 1;
+            else if (strcmp(optarg, "never") == 0)
+                sopt.lp_restored = -1;
+            else
+                return cli_usage_error("solve", "--node-lp needs 'auto', 'always' or 'never'");
             break;
         case 'B':
             if (strcmp(optarg, "bundle") != 0 && strcmp(optarg, "subgradient") != 0)
