@@ -343,8 +343,8 @@ typedef struct surety_solve_options {
      * never pays for it); 0: the default (65536; where the decomposition
      * bound runs from 65536 nodes on or sooner, that is decomp_after at
      * most 65536 and not negative, at least two resources and lp_restored
-     * not above 0, instead right after its first price round, and only if that
-     * round searched 131072 one-resource nodes or more and the allowed
+     * not above 0, instead right after its first price round, and only if
+     * that round searched 131072 one-resource nodes or more and the allowed
      * pairs times N are at most 262144); < 0: never. Needs the
      * best-bound pool (dive_nodes >= 0) and at most 4096 scenario columns
      * (N, or m*N for separate constraints); under a time limit the root LP
@@ -354,8 +354,9 @@ typedef struct surety_solve_options {
     /* > 0: once the root LP is solved, also bound by the LP (a few rounds
      * of scenario rows) every node restored from the pool and the nodes of
      * the first three levels of its dive; 0: the default, so only where
-     * the root LP came after a costly first price round (lp_after) and the
-     * allowed pairs times N are at most 32768; < 0: never */
+     * the root LP came after a costly first price round (lp_after), the
+     * decomposition ended there because that round's bound was above the
+     * LP's, and the allowed pairs times N are at most 32768; < 0: never */
     int lp_restored;
     /* nodes searched before the resource-decomposition bound is computed
      * at the root (each resource's own chance-constrained problem solved

@@ -325,16 +325,19 @@ static void root_lp(surety_solver *s)
  * (costly_rounds_end), the LP also bounds the nodes that head the largest
  * subtrees (lp_bound), unless the caller says. Measured in 60-s runs of
  * `gen.py` models of 60-100 jobs and 3 resources (bench/README.md, "The
- * LP at the top of each dive"): at 100 scenarios (18 000-30 000
- * coefficients) the gaps fell on eight of nine models, by 0.7-3.5 points,
- * and stayed on the ninth (at 100 jobs only after about 30 s: until then
- * the node LPs cost the tree more than they prune); at 200 scenarios and 48 000 coefficients by
- * 0.5; at 54 000-60 000 the bound stayed and one plan got worse; at 1000
- * scenarios a call of the simplex took about 60 ms (3 ms at 100), the
- * node LPs pruned nothing in a minute and left the tree a twentieth of
- * its nodes. Where the rounds go on, node LPs showed no clear gain
- * (15.19% to 14.39%, 6.18% to 6.28%, on two models of 80 jobs): the time
- * stays theirs. */
+ * LP at the top of each dive"):
+ * - 100 scenarios, 18 000-30 000 coefficients: the gaps fell on eight of
+ *   nine models, by 0.7-3.5 points, and stayed on the ninth; at 100 jobs
+ *   only after about 30 s, until when the node LPs cost the tree more
+ *   than they prune;
+ * - 200 scenarios, 48 000: 0.5 points, on the one model measured; the
+ *   mark stays below it;
+ * - 54 000-60 000: the same bound, and one plan worse;
+ * - 1000 scenarios: a call of the simplex took about 60 ms (3 ms at 100);
+ *   the node LPs pruned nothing in a minute and left the tree a twentieth
+ *   of its nodes.
+ * Where the rounds go on, node LPs showed no clear gain (15.19% to 14.39%,
+ * 6.18% to 6.28%, on two models of 80 jobs): the time stays theirs. */
 #define SURETY_LP_NODES 32768.0
 enum { LP_NOT_DUE, LP_BY_NODES, LP_BY_ROUND };
 
