@@ -369,7 +369,8 @@ static int lp_due(surety_solver *s)
  * minute: on `gen.py diff -n 60 -m 3 -N 100 --seed 2` 27 rounds stalled at
  * 60 865.1, above the LP's 60 717.5 (bench/README.md, "The root LP where
  * the price rounds are costly"). Left to the tree, that time found better
- * plans on the four such instances measured, with the same bound. */
+ * plans on the four such instances measured, with the same bound. The
+ * LP, if small, then bounds the top of each dive too (SURETY_LP_NODES). */
 static void costly_rounds_end(surety_solver *s)
 {
     if (s->dec_done || !(s->dec_root > s->lp_root))
@@ -377,6 +378,9 @@ static void costly_rounds_end(surety_solver *s)
     s->dec_done = 1;
     s->dec_ended = 1;
     surety_decomp_free(s);
+    if (s->opt->lp_restored == 0 &&
+        (double)surety_lpb_pairs(s) * (double)s->N <= SURETY_LP_NODES)
+        s->lp_nodes = 1;
 }
 
 /* Has the tree searched `after` nodes, or, under separate constraints,
@@ -900,10 +904,6 @@ double surety_tree_search(surety_solver *s)
             root_lp(s);
             if (due == LP_BY_ROUND)
                 costly_rounds_end(s);
-            if (due == LP_BY_ROUND && s->dec_ended &&
-                s->opt->lp_restored == 0 &&
-                (double)surety_lpb_pairs(s) * (double)s->N <= SURETY_LP_NODES)
-                s->lp_nodes = 1;
         }
         /* before the pop, so that its progress line sees every open node */
         decomp_round(s);
