@@ -81,6 +81,20 @@ else passed=$((passed + 1)); fi
 expect 4 "node LPs never" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --lp-after 1 --node-lp never --node-limit 6000 --progress
 has "$tmp/err" ", 0 nodes bounded by it" "no node bounded by the LP with --node-lp never"
 expect 1 "bad --node-lp" -- "$surety" solve "$tut" --node-lp sometimes
+# dives of one node bring the pool, restored nodes and node LPs into a
+# search that the first dive closes by default; the optimum stays
+expect 0 "default dives" -- "$surety" solve "$tut" --lp-after 1 --node-lp always --json --progress
+lacks "$tmp/err" "LP bound: root" "the first dive closes the tutorial before the LP"
+grep '"objective"' "$tmp/out" >"$tmp/objd"
+expect 0 "dives of one node" -- "$surety" solve "$tut" --dive-nodes 1 --lp-after 1 --node-lp always --json --progress
+if ! grep -Eq "LP bound: root .*, [1-9][0-9]* nodes bounded by it" "$tmp/err"; then
+    failed=$((failed + 1)); echo "FAIL: no node bounded by the LP with --dive-nodes 1"; cat "$tmp/err"
+else passed=$((passed + 1)); fi
+has "$tmp/out" "$(cat "$tmp/objd")" "same objective with dives of one node"
+expect 0 "depth first only" -- "$surety" solve "$tut" --dive-nodes all --json --quiet
+has "$tmp/out" "$(cat "$tmp/objd")" "same objective depth first only"
+expect 1 "bad --dive-nodes" -- "$surety" solve "$tut" --dive-nodes 0
+expect 1 "bad --dive-nodes word" -- "$surety" solve "$tut" --dive-nodes some
 # by default the root LP runs only where the split does not: past 65 536
 # nodes, without and with the split
 expect 4 "root LP by default without the split" -- "$surety" solve "$src/instances/workshops-30.json" -n 100 --split-after never --node-limit 70000 --progress

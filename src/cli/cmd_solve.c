@@ -19,7 +19,7 @@ static const char solve_help[] =
     "                    [--split-prices jobs|scenarios] [--split-rounds K]\n"
     "                    [--split-steps bundle|subgradient]\n"
     "                    [--split-root-only] [--keep-dominated]\n"
-    "                    [--improve-after K|never]\n"
+    "                    [--improve-after K|never] [--dive-nodes K|all]\n"
     "                    [--threads T] [--progress] [--quiet] [--json]\n"
     "\n"
     "Finds the most profitable plan that fits all but at most floor(eps*N) of\n"
@@ -74,6 +74,11 @@ static const char solve_help[] =
     "                    rest kept, for up to a quarter of the search's work,\n"
     "                    less while no better plan comes (default 65536;\n"
     "                    'never' turns it off)\n"
+    "  --dive-nodes K    nodes of one depth-first dive before the search takes\n"
+    "                    up the open node of best bound (default 4096), or\n"
+    "                    'all' for depth first only; a small K brings the\n"
+    "                    best-bound pool and its restored nodes into small\n"
+    "                    searches (for tests and comparisons)\n"
     "  --keep-dominated  search every distinct scenario, also those that every\n"
     "                    feasible plan fits (set aside by default; same answer,\n"
     "                    for comparisons)\n"
@@ -299,6 +304,7 @@ int cmd_solve(int argc, char **argv)
         {"split-after", required_argument, 0, 'S'},
         {"keep-dominated", no_argument, 0, 'D'},
         {"improve-after", required_argument, 0, 'I'},
+        {"dive-nodes", required_argument, 0, 'V'},
         {"split-prices", required_argument, 0, 'P'},
         {"split-rounds", required_argument, 0, 'R'},
         {"split-steps", required_argument, 0, 'B'},
@@ -351,6 +357,14 @@ int cmd_solve(int argc, char **argv)
         case 'I':
             if (parse_after(optarg, &sopt.improve_after))
                 return cli_usage_error("solve", "--improve-after needs a positive whole number or 'never'");
+            break;
+        case 'V':
+            if (strcmp(optarg, "all") == 0)
+                sopt.dive_nodes = -1;
+            else if (cli_parse_size(optarg, &v) || v == 0 || v > (size_t)LONG_MAX)
+                return cli_usage_error("solve", "--dive-nodes needs a positive whole number or 'all'");
+            else
+                sopt.dive_nodes = (long)v;
             break;
         case 'P':
             if (strcmp(optarg, "jobs") != 0 && strcmp(optarg, "scenarios") != 0)
