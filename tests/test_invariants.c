@@ -13,7 +13,9 @@
  *    of the path's decisions against a recount;
  *  - the per-resource values in use against their knapsacks, and each
  *    per-resource quantile against the job sets it bounds, enumerated
- *    (bound.c, chk_lagr and chk_quant).
+ *    (bound.c, chk_lagr and chk_quant);
+ *  - each pair the LP rules out by its reduced cost against the LP
+ *    solved again with that pair forced in (lpbound.c, chk_fixing).
  * These are internal checks: an optimum that survives a broken trail is
  * still wrong on other instances, and the optimum tests (test_solve.c,
  * against CBC, GLPK and enumeration) do not always see it. The plans are

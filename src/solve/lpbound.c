@@ -92,7 +92,7 @@ void surety_lpb_free(surety_solver *s)
     if (!q)
         return;
     surety_lp_free(q->lp);
-    if (q->bm)
+    if (q->bm && q->bm_ok) /* bm_ok may be missing after a failed set-up */
         for (size_t i = 0; i < s->m; i++)
             if (q->bm_ok[i] == 1)
                 surety_bigm_free(&q->bm[i]);
@@ -506,6 +506,43 @@ static size_t separate(surety_solver *s, size_t most)
     return added;
 }
 
+#ifdef SURETY_CHECK_INVARIANTS
+#include <stdio.h>
+#include <stdlib.h>
+/* Invariant build only: pair column v, just ruled out by its reduced cost,
+ * is forced to 1 and the LP (the node's bounds and rows) solved again by
+ * the simplex: its optimum must not beat the cutoff, or the rule ruled
+ * out a pair some point of the relaxation, and so possibly some plan,
+ * needs. The rule reads the bound off the duals (Lq + d_v); this solve
+ * does not, so a wrong sign or factor in the rule shows here whatever the
+ * incumbent. The basis is put back; the caller's next solve starts from
+ * it. */
+static void chk_fixing(surety_solver *s, size_t v, double cutoff)
+{
+    solve_lp *q = s->lpb;
+    size_t nb = surety_lp_ncols(q->lp) + surety_lp_nrows(q->lp);
+    signed char *basis = malloc(nb);
+    if (!basis)
+        return;
+    surety_lp_get_basis(q->lp, basis);
+    surety_lp_set_cutoff(q->lp, -INFINITY);
+    surety_lp_set_iter_limit(q->lp, 1000000);
+    surety_lp_set_col_bounds(q->lp, v, 1, 1);
+    surety_lp_status st = surety_lp_solve(q->lp);
+    double obj = surety_lp_obj(q->lp);
+    if (st == SURETY_LP_OPTIMAL && obj > cutoff + 1e-6 * (fabs(cutoff) + 1)) {
+        fprintf(stderr, "invariant: pair (job %zu, resource %zu) ruled out "
+                "by its reduced cost, yet the LP with it reaches %.17g "
+                "above the cutoff %.17g\n", q->xj[v], q->xi[v], obj, cutoff);
+        abort();
+    }
+    surety_lp_set_col_bounds(q->lp, v, 0, 1);
+    surety_lp_set_basis(q->lp, basis, surety_lp_nrows(q->lp));
+    surety_lp_set_iter_limit(q->lp, 256);
+    free(basis);
+}
+#endif
+
 double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
                        double qbound, int rounds, double work,
                        size_t *fixed)
@@ -562,6 +599,9 @@ double surety_lpb_node(surety_solver *s, double cutoff, size_t row,
             if (dv < 0 && Lq + dv <= cutoff) {
                 px[j * m + i] = 0;
                 (*fixed)++;
+#ifdef SURETY_CHECK_INVARIANTS
+                chk_fixing(s, v, cutoff);
+#endif
             }
         }
     }
