@@ -571,11 +571,18 @@ def solve_surety(surety, path, extra, work):
     plan_path = os.path.join(work, "plan.json")
     if os.path.exists(plan_path):
         os.unlink(plan_path)
-    rc, out, err = run([surety, "solve", path, "--json", "--quiet", "--threads", "1",
+    rc, out, err = run([surety, "solve", path, "--json", "--progress", "--threads", "1",
                         "-o", plan_path] + SURETY_ARGS + extra, timeout=600)
     if rc not in (0, 4) or not out.strip():
         raise RuntimeError("surety solve exit %d: %s" % (rc, err.strip()[:300]))
-    return json.loads(out), plan_path
+    res = json.loads(out)
+    # what the search went through, from its log on stderr: nodes restored from the pool
+    # bounded by the LP, and the restored nodes' own split solves
+    m = re.search(r"LP bound: root .*?, (\d+) nodes bounded by it", err)
+    res["_lp_nodes"] = int(m.group(1)) if m else 0
+    m = re.search(r"decomposition at restored nodes: (\d+) one-resource solves", err)
+    res["_restored_solves"] = int(m.group(1)) if m else 0
+    return res, plan_path
 
 
 def reference(inst, surety, path, limit, stats):
@@ -906,6 +913,11 @@ def main(argv):
         stats["limited_runs"] += nlim
         stats["status_" + res["status"]] += 1
         nodes.append(int(res.get("nodes") or 0))
+        if res["_lp_nodes"]:
+            stats["lp_node_instances"] += 1
+            stats["lp_nodes"] += res["_lp_nodes"]
+        if res["_restored_solves"]:
+            stats["restored_solve_instances"] += 1
         stats["ref_" + str(vst)] += 1
         for src, (st, _) in ref["sources"].items():
             stats["src_%s_%s" % (src, st)] += 1
@@ -1009,6 +1021,9 @@ def main(argv):
               "over 100 nodes, %d over 1000" % (
                   nodes[len(nodes) // 2], nodes[int(0.9 * (len(nodes) - 1))], nodes[-1],
                   sum(1 for v in nodes if v > 100), sum(1 for v in nodes if v > 1000)))
+    print("instances whose LP bounded nodes below the root: %d (%d nodes); whose restored "
+          "nodes solved their own split: %d" % (stats["lp_node_instances"], stats["lp_nodes"],
+                                                stats["restored_solve_instances"]))
     print("seconds: surety %.1f, cbc %.1f, enumeration %.1f, highs %.1f" % (
         stats["surety_s"], stats["cbc_s"], stats["enum_s"], stats["highs_s"]))
     print("\n| feature | value | runs | optimal | infeasible | no reference | disagree |")
