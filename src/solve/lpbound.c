@@ -508,20 +508,21 @@ static size_t separate(surety_solver *s, size_t most)
 
 #ifdef SURETY_CHECK_INVARIANTS
 #include <stdio.h>
-#include <stdlib.h>
+#include <stdlib.h> /* abort */
 /* Invariant build only: pair column v, just ruled out by its reduced cost,
  * is forced to 1 and the LP (the node's bounds and rows) solved again by
  * the simplex: its optimum must not beat the cutoff, or the rule ruled
  * out a pair some point of the relaxation, and so possibly some plan,
  * needs. The rule reads the bound off the duals (Lq + d_v); this solve
  * does not, so a wrong sign or factor in the rule shows here whatever the
- * incumbent. The basis is put back; the caller's next solve starts from
- * it. */
+ * incumbent. The column and the basis are put back; the cutoff and the
+ * iteration limit are set again at the start of every surety_lpb_node,
+ * the only other place that solves this LP. */
 static void chk_fixing(surety_solver *s, size_t v, double cutoff)
 {
     solve_lp *q = s->lpb;
     size_t nb = surety_lp_ncols(q->lp) + surety_lp_nrows(q->lp);
-    signed char *basis = malloc(nb);
+    signed char *basis = surety_xmalloc(nb, 1);
     if (!basis)
         return;
     surety_lp_get_basis(q->lp, basis);
@@ -538,8 +539,7 @@ static void chk_fixing(surety_solver *s, size_t v, double cutoff)
     }
     surety_lp_set_col_bounds(q->lp, v, 0, 1);
     surety_lp_set_basis(q->lp, basis, surety_lp_nrows(q->lp));
-    surety_lp_set_iter_limit(q->lp, 256);
-    free(basis);
+    surety_xfree(basis);
 }
 #endif
 
