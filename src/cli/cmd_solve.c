@@ -92,12 +92,13 @@ static const char solve_help[] =
     "Exit codes: 0 solved (optimal or proven infeasible), 4 stopped by a limit,\n"
     "5 interrupted (the best plan so far is still printed and written).\n";
 
-/* A node count K > 0, or 'never' (-1), for --lp-after and --split-after;
- * non-zero when the text is neither. */
-static int parse_after(const char *text, long *out)
+/* A node count K > 0, or the word (-1): 'never' for --lp-after,
+ * --split-after and --improve-after, 'all' for --dive-nodes; non-zero when
+ * the text is neither. */
+static int parse_count(const char *text, const char *word, long *out)
 {
     size_t v;
-    if (strcmp(text, "never") == 0) {
+    if (strcmp(text, word) == 0) {
         *out = -1;
         return 0;
     }
@@ -347,24 +348,20 @@ int cmd_solve(int argc, char **argv)
             sopt.node_limit = (long)v;
             break;
         case 'L':
-            if (parse_after(optarg, &sopt.lp_after))
+            if (parse_count(optarg, "never", &sopt.lp_after))
                 return cli_usage_error("solve", "--lp-after needs a positive whole number or 'never'");
             break;
         case 'S':
-            if (parse_after(optarg, &sopt.decomp_after))
+            if (parse_count(optarg, "never", &sopt.decomp_after))
                 return cli_usage_error("solve", "--split-after needs a positive whole number or 'never'");
             break;
         case 'I':
-            if (parse_after(optarg, &sopt.improve_after))
+            if (parse_count(optarg, "never", &sopt.improve_after))
                 return cli_usage_error("solve", "--improve-after needs a positive whole number or 'never'");
             break;
         case 'V':
-            if (strcmp(optarg, "all") == 0)
-                sopt.dive_nodes = -1;
-            else if (cli_parse_size(optarg, &v) || v == 0 || v > (size_t)LONG_MAX)
+            if (parse_count(optarg, "all", &sopt.dive_nodes))
                 return cli_usage_error("solve", "--dive-nodes needs a positive whole number or 'all'");
-            else
-                sopt.dive_nodes = (long)v;
             break;
         case 'P':
             if (strcmp(optarg, "jobs") != 0 && strcmp(optarg, "scenarios") != 0)
