@@ -1277,18 +1277,26 @@ int surety_bound_init(surety_solver *s, int light)
     s->lx = surety_xmalloc(n, sizeof *s->lx);
     if (!s->lam || !s->rp || !s->ql || !s->lx)
         return -1;
-    /* A light solve (inside another, from a start plan: the
-     * decomposition's) of one resource, joint: with one resource the rows
-     * "each job once" are the bounds x_j <= 1 that every knapsack keeps,
-     * its single round stays at zero prices, and the per-resource bound
-     * is the aggregated one without the latter's refinements (required
-     * jobs' hours, Martello-Toth's U2). In the test suite's 477 such
-     * solves that chose it, it was below the aggregated bound by rounding
-     * only (at most 2.4e-9), yet its prices and per-scenario orders took
-     * about 8% of a restored node's solve, so they are not computed (nor
-     * their tables allocated). A user's one-resource model still gets both
-     * bounds reported. */
-    if (light && m == 1 && !s->separate) {
+    /* A light solve (inside another, from a start plan) with the joint
+     * constraint uses the aggregated bound alone; its prices and
+     * per-scenario orders are not computed (nor their tables allocated).
+     * - The decomposition's one-resource solves: with one resource the
+     *   rows "each job once" are the bounds x_j <= 1 that every knapsack
+     *   keeps, its single round stays at zero prices, and the per-resource
+     *   bound is the aggregated one without the latter's refinements
+     *   (required jobs' hours, Martello-Toth's U2). In the test suite's
+     *   477 such solves that chose it, it was below the aggregated bound
+     *   by rounding only (at most 2.4e-9), yet it took about 8% of a
+     *   restored node's solve.
+     * - The parts of lns.c (two or three resources): the 60 price steps,
+     *   each sorting every scenario's jobs, took most of a part's time
+     *   (about 1 of the 1.5 s the parts took in a 20-s proof), outside the
+     *   work the parts are paced by, and 13 of 82 parts kept the bound.
+     *   Without it the 0.3 proofs ran 0-6% faster, node for node nearly
+     *   the same (bench/README.md, "The parts without the per-resource
+     *   bound").
+     * A user's model still gets both bounds reported. */
+    if (light && !s->separate) {
         s->use_lagr = 0;
         s->root_lagr = INFINITY;
         s->root_agg = surety_bound_node(s, -INFINITY, 0);

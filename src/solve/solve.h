@@ -418,8 +418,8 @@ void surety_presolve_free(surety_solver *s);
 double surety_bound_node(surety_solver *s, double cutoff, size_t row);
 
 /* bound.c: chooses the Lagrangian prices at the root by subgradient steps
- * (needs the search arrays), except in a light one-resource joint solve,
- * where the aggregated bound alone is used; 0, or -1 when out of memory. */
+ * (needs the search arrays), except in a light joint solve, where the
+ * aggregated bound alone is used; 0, or -1 when out of memory. */
 int surety_bound_init(surety_solver *s, int light);
 void surety_bound_free(surety_solver *s);
 
@@ -466,9 +466,10 @@ static inline void surety_priced_forget(surety_solver *s, size_t depth)
 void surety_priced_free(surety_solver *s);
 
 /* solve.c: surety_solve, with `light` non-zero for a solve inside
- * another (decomp.c), whose caller passes a good start: the root's
+ * another (decomp.c, lns.c), whose caller passes a good start: the root's
  * greedy runs without its local search, which would otherwise take most
- * of the work of a short one-resource solve. */
+ * of the work of a short one-resource solve, and a joint solve bounds by
+ * the aggregated bound alone (surety_bound_init). */
 surety_code surety_solve_inner(const surety_model *model,
                                const surety_scenarios *sc,
                                const surety_solve_options *opt, int light,
