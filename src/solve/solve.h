@@ -258,6 +258,13 @@ struct surety_solver {
     long *tplan, *tfix;  /* n each: plans built by the tree */
     uint64_t hseed;      /* random sequence of the search's improvement runs */
     size_t hiters;       /* improvement iterations per run in the tree */
+    /* the tree's improvement runs that found nothing space themselves
+     * out (tree.c, dive): a run every 2^ils_step turns; ils_miss runs in
+     * a row without a better plan at that step; ils_inc the best plan's
+     * value when the step was last reset */
+    unsigned ils_step, ils_miss;
+    size_t ils_turn;
+    double ils_inc;
 
     /* ---- incumbent ---- */
     int have_inc;

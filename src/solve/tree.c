@@ -750,6 +750,11 @@ static double node_split(surety_solver *s, double b)
     return c;
 }
 
+/* Improvement runs in a row without a better plan after which the
+ * tree's runs come half as often (dive); set, not tuned, as the parts'
+ * SURETY_LNS_PATIENCE is. */
+#define SURETY_ILS_MISSES 8
+
 typedef struct child {
     long c;
     double b;
@@ -777,14 +782,31 @@ static void dive(surety_solver *s, size_t d, double node_bound)
         /* and a few iterations of the local search from the incumbent,
          * sized in solve.c to a small share of the search's work; a search
          * that runs long is unlikely to close soon, so its plan matters
-         * more: the share grows with the node count, up to 8 times */
-        if (s->have_inc && s->hiters > 0) {
+         * more: the share grows with the node count, up to 8 times. After
+         * every SURETY_ILS_MISSES runs in a row that find nothing, the
+         * runs come every other turn, down to one turn in 16, until the
+         * best plan changes, whoever finds it: on the 0.3 proofs they
+         * found better plans only in the first seconds, and after a
+         * better plan from the parts (bench/README.md, "Improvement runs
+         * that find nothing spaced out") */
+        if (s->have_inc && s->inc != s->ils_inc) {
+            s->ils_inc = s->inc;
+            s->ils_step = 0;
+            s->ils_miss = 0;
+        }
+        if (s->have_inc && s->hiters > 0 &&
+            (s->ils_turn++ & (((size_t)1 << s->ils_step) - 1)) == 0) {
             size_t grow = 1 + (size_t)s->nodes / 131072;
             memcpy(s->tplan, s->inc_plan, s->n * sizeof *s->tplan);
             if (surety_heur_improve(s, s->tplan,
                                     s->hiters * (grow < 8 ? grow : 8)) &&
-                surety_solve_offer(s, s->tplan))
+                surety_solve_offer(s, s->tplan)) {
                 surety_solve_log_progress(s, 1, 'L');
+            } else if (++s->ils_miss >= SURETY_ILS_MISSES) {
+                s->ils_miss = 0;
+                if (s->ils_step < 4)
+                    s->ils_step++;
+            }
         }
     }
     size_t j = s->order[d], m = s->m;
